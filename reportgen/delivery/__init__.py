@@ -1,0 +1,1 @@
+"""Delivery of the month's reports: e-mail, PDF encryption and the delivery ledger."""

@@ -1,0 +1,1 @@
+"""Reading and validating the client book (roster, daily logs, skinfolds, phases)."""

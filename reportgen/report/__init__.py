@@ -1,0 +1,1 @@
+"""Rendering: view model, charts and layout of the client report, practitioner summary and overview."""

@@ -1,0 +1,209 @@
+"""What the analysis of one client produces: the contract between the science
+pipeline (``reportgen.analysis``) and everything that shows or exports it
+(reports, summary.csv, the overview).
+
+All values are in canonical units (kg, kcal/day, %, dates).  A value the data
+cannot support is ``None`` and carries a ``reason`` code instead; it is never
+replaced by zero or a guess.  Wording lives in templates, not here: reasons
+and flags are short stable codes plus numbers.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass, field
+from typing import Literal
+
+from reportgen.io.model import Client, DailyLog, DateArray, FloatArray, Problem
+
+FlagSeverity = Literal["info", "caution", "urgent"]
+
+
+@dataclass(frozen=True)
+class Estimate:
+    """A point estimate with an interval (default 80 %), or a reason it is missing."""
+
+    value: float | None
+    low: float | None = None
+    high: float | None = None
+    level: float = 0.80
+    reason: str | None = None  # code such as "too-few-days" when value is None
+
+    @property
+    def known(self) -> bool:
+        return self.value is not None
+
+    @classmethod
+    def missing(cls, reason: str) -> Estimate:
+        return cls(value=None, reason=reason)
+
+
+@dataclass(frozen=True)
+class TrendSeries:
+    """Smoothed trend weight on the log's daily grid."""
+
+    method: str  # "local-linear-trend" or "ema"
+    dates: DateArray
+    level_kg: FloatArray
+    level_low_kg: FloatArray  # 80 % band
+    level_high_kg: FloatArray
+    slope_kg_per_day: FloatArray
+    slope_sd_kg_per_day: FloatArray
+    noise_sd_kg: float  # estimated day-to-day weigh-in noise (observation SD)
+
+
+@dataclass(frozen=True)
+class BodyCompResult:
+    """One skinfold session turned into body composition."""
+
+    date: dt.date
+    equation: str  # e.g. "jackson-pollock-3", "durnin-womersley-4", "bmi-deurenberg"
+    conversion: str  # "siri" or "brozek" ("none" for BMI-based estimates)
+    sum_mm: float | None  # sum of the equation's sites (None for BMI-based)
+    sites: tuple[str, ...]
+    density_g_ml: float | None
+    bodyfat_pct: float
+    bodyfat_se_pct: float  # equation standard error expressed in %BF
+    weight_kg: float  # trend weight on that date
+    fat_mass_kg: float
+    lean_mass_kg: float
+    rough: bool = False  # True for the BMI-based fallback
+    warnings: tuple[str, ...] = ()  # codes: "age-outside-derivation", "sum-over-120", ...
+
+
+@dataclass(frozen=True)
+class PhaseResult:
+    """One phase, analysed from its start to its end or the report month's end."""
+
+    name: str
+    kind: str
+    start: dt.date
+    end: dt.date | None  # as written in the book; None while running
+    window_end: dt.date  # last day analysed (phase end or month end, whichever first)
+    days: int
+    weight_days: int
+    intake_days: int
+    trend_start_kg: float | None
+    trend_end_kg: float | None
+    trend_change_kg: float | None
+    rate_kg_per_week: Estimate
+    rate_pct_per_week: Estimate
+    mean_intake_kcal: float | None
+    target_kcal: float | None
+    realised_deficit_kcal: Estimate  # positive = deficit
+    observed_tdee_kcal: Estimate
+    expected_tdee_kcal: Estimate
+    expected_method: str | None  # "own-baseline" or "resting-equation" (lower confidence)
+    adaptation_kcal: Estimate  # observed - expected; negative = below expected
+    adaptation_pct: Estimate  # of expected
+    deficit_depth_pct: float | None  # realised deficit as % of maintenance
+    days_in_deficit: int | None  # consecutive deficit days up to window end
+    bodyfat_start_pct: float | None
+    bodyfat_end_pct: float | None
+    fat_mass_change_kg: float | None
+    lean_mass_change_kg: float | None
+    status: str  # "ok", "running", "too-few-days", "special-handling", ...
+    notes: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class ExpenditureSeries:
+    """Daily expenditure trajectory from the state-space model of weight with intake."""
+
+    dates: DateArray
+    tdee_kcal: FloatArray
+    low_kcal: FloatArray
+    high_kcal: FloatArray
+
+
+@dataclass(frozen=True)
+class Signal:
+    """One adaptation signal beyond expenditure (steps, hunger, energy rating)."""
+
+    name: str  # "steps", "hunger", "energy"
+    baseline: float | None
+    recent: float | None
+    change: float | None  # recent - baseline, in the signal's unit
+    change_pct: float | None
+    slope_per_week: float | None
+    direction: str  # "up", "down", "flat", "unknown"
+    size: str  # "none", "small", "moderate", "large", "unknown"
+    days: int
+
+
+@dataclass(frozen=True)
+class Projection:
+    """Forward simulation at the current intake (Hall et al. 2011 adult model)."""
+
+    start: dt.date
+    intake_kcal: float
+    dates: DateArray
+    weight_kg: FloatArray
+    low_kg: FloatArray
+    high_kg: FloatArray
+    goal_weight_kg: float | None
+    goal_date: dt.date | None  # None with a goal means "not at this intake" within the horizon
+    intake_for_rate_kcal: dict[float, Estimate] = field(default_factory=dict)  # %BW/week -> intake
+
+
+@dataclass(frozen=True)
+class Flag:
+    """A safety or data flag; wording and advice come from templates by ``code``."""
+
+    code: str  # e.g. "rapid-loss", "low-bmi", "low-intake", "minor", "pregnant", "implausible-adaptation"
+    severity: FlagSeverity
+    values: dict[str, float | str] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class MethodUsed:
+    """An equation or model used for this client, for the methods page."""
+
+    code: str  # e.g. "jackson-pollock-3"
+    name: str  # published name, e.g. "Jackson & Pollock 1978, 3-site"
+    reference: str  # full citation
+    see: str | None = None  # standard error, formatted with its unit
+
+
+@dataclass(frozen=True)
+class DataQuality:
+    days_in_period: int
+    weight_days: int
+    intake_days: int
+    outliers: tuple[tuple[dt.date, float], ...]  # excluded weigh-ins (date, kg)
+    gaps: tuple[tuple[dt.date, dt.date], ...]  # runs of > 7 days without a weigh-in
+    warnings: tuple[Problem, ...]  # from reading the book
+
+
+@dataclass(frozen=True)
+class ClientAnalysis:
+    """Everything computed for one client for one report month."""
+
+    client: Client
+    month: str  # "YYYY-MM"
+    as_of: dt.date  # last day of the report month (analysis cut-off)
+    age_years: int | None
+    minor: bool
+    special_handling: tuple[str, ...]  # "minor", "pregnant": no deficit analysis
+    log: DailyLog  # cut at as_of; for charts
+    trend: TrendSeries | None
+    ema: TrendSeries | None
+    current_weight_kg: Estimate  # trend weight at as_of
+    month_change_kg: Estimate  # trend change over the report month
+    weekly_rate_kg: Estimate  # current weekly rate (kg/week, negative = loss)
+    weekly_rate_pct: Estimate  # as % of body weight per week
+    month_mean_intake_kcal: float | None
+    bmi: float | None
+    bodycomp: tuple[BodyCompResult, ...]  # per skinfold session, in date order
+    bodyfat_fallback: BodyCompResult | None  # BMI-based rough estimate when no skinfolds
+    resting_kcal: dict[str, float]  # equation code -> kcal/day at current weight
+    phases: tuple[PhaseResult, ...]  # every phase so far, in date order
+    current_phase: PhaseResult | None
+    week_of_phase: int | None
+    expenditure: ExpenditureSeries | None
+    signals: tuple[Signal, ...]
+    projection: Projection | None
+    flags: tuple[Flag, ...]
+    methods: tuple[MethodUsed, ...]
+    quality: DataQuality
+    notes: tuple[str, ...] = ()  # reason codes for things not shown

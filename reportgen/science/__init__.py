@@ -1,0 +1,1 @@
+"""Pure science functions: no I/O, units in names, each citing its published source."""

@@ -1,0 +1,1 @@
+"""Shipped wording (jinja2 templates) for reports and e-mails; see reportgen.report.templating."""
