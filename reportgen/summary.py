@@ -1,0 +1,168 @@
+"""summary.csv: one row per client per phase overlapping the report month.
+
+Values come straight from :class:`reportgen.results.PhaseResult`, always in kg,
+kcal/day and %, whatever the report's display units.  A value the analysis
+could not estimate is written blank, never as zero.  Numbers have a fixed
+number of decimals per column so that reruns are byte-identical; every column
+is described in ``docs/summary_columns.md``.
+"""
+
+from __future__ import annotations
+
+import csv
+import datetime as dt
+import io
+import math
+from collections.abc import Iterable
+
+from reportgen.results import ClientAnalysis, Estimate, PhaseResult
+
+SUMMARY_COLUMNS: tuple[str, ...] = (
+    "client_id",
+    "phase",
+    "start",
+    "end",
+    "days",
+    "weight_days",
+    "intake_days",
+    "trend_start_kg",
+    "trend_end_kg",
+    "trend_change_kg",
+    "rate_pct_per_week",
+    "mean_intake_kcal",
+    "realised_deficit_kcal",
+    "observed_tdee_kcal",
+    "observed_tdee_low_kcal",
+    "observed_tdee_high_kcal",
+    "expected_tdee_kcal",
+    "adaptation_kcal",
+    "adaptation_pct",
+    "bodyfat_start_pct",
+    "bodyfat_end_pct",
+    "fat_mass_change_kg",
+    "lean_mass_change_kg",
+    "status",
+)
+
+# Decimals per numeric column (the unit is in the column name).
+DECIMALS: dict[str, int] = {
+    "trend_start_kg": 2,
+    "trend_end_kg": 2,
+    "trend_change_kg": 2,
+    "rate_pct_per_week": 2,
+    "mean_intake_kcal": 0,
+    "realised_deficit_kcal": 0,
+    "observed_tdee_kcal": 0,
+    "observed_tdee_low_kcal": 0,
+    "observed_tdee_high_kcal": 0,
+    "expected_tdee_kcal": 0,
+    "adaptation_kcal": 0,
+    "adaptation_pct": 1,
+    "bodyfat_start_pct": 1,
+    "bodyfat_end_pct": 1,
+    "fat_mass_change_kg": 2,
+    "lean_mass_change_kg": 2,
+}
+
+SummaryRow = dict[str, str]
+
+
+def format_number(value: float | None, decimals: int) -> str:
+    """Fixed-decimal text; blank for a missing or non-finite value; never ``-0``."""
+    if value is None:
+        return ""
+    x = float(value)
+    if not math.isfinite(x):
+        return ""
+    text = f"{x:.{decimals}f}"
+    if text.startswith("-") and float(text) == 0.0:
+        text = text[1:]
+    return text
+
+
+def _count(value: int | None) -> str:
+    return "" if value is None else str(int(value))
+
+
+def _date(value: dt.date | None) -> str:
+    return "" if value is None else value.isoformat()
+
+
+def month_bounds(month: str) -> tuple[dt.date, dt.date]:
+    """First and last day of a ``YYYY-MM`` month."""
+    first = dt.date.fromisoformat(f"{month}-01")
+    nxt = dt.date(first.year + (first.month == 12), first.month % 12 + 1, 1)
+    return first, nxt - dt.timedelta(days=1)
+
+
+def overlaps_month(phase: PhaseResult, month: str) -> bool:
+    """Whether the phase has at least one day inside the report month."""
+    first, last = month_bounds(month)
+    return phase.start <= last and (phase.end is None or phase.end >= first)
+
+
+def phase_row(client_id: str, p: PhaseResult) -> SummaryRow:
+    """The summary.csv row for one analysed phase."""
+
+    def est(e: Estimate, column: str) -> str:
+        return format_number(e.value, DECIMALS[column])
+
+    def num(v: float | None, column: str) -> str:
+        return format_number(v, DECIMALS[column])
+
+    tdee = p.observed_tdee_kcal
+    row: SummaryRow = {
+        "client_id": client_id,
+        "phase": p.name,
+        "start": _date(p.start),
+        "end": _date(p.end),
+        "days": _count(p.days),
+        "weight_days": _count(p.weight_days),
+        "intake_days": _count(p.intake_days),
+        "trend_start_kg": num(p.trend_start_kg, "trend_start_kg"),
+        "trend_end_kg": num(p.trend_end_kg, "trend_end_kg"),
+        "trend_change_kg": num(p.trend_change_kg, "trend_change_kg"),
+        "rate_pct_per_week": est(p.rate_pct_per_week, "rate_pct_per_week"),
+        "mean_intake_kcal": num(p.mean_intake_kcal, "mean_intake_kcal"),
+        "realised_deficit_kcal": est(p.realised_deficit_kcal, "realised_deficit_kcal"),
+        "observed_tdee_kcal": est(tdee, "observed_tdee_kcal"),
+        # The interval only makes sense around a known estimate.
+        "observed_tdee_low_kcal": num(tdee.low if tdee.known else None, "observed_tdee_low_kcal"),
+        "observed_tdee_high_kcal": num(
+            tdee.high if tdee.known else None, "observed_tdee_high_kcal"
+        ),
+        "expected_tdee_kcal": est(p.expected_tdee_kcal, "expected_tdee_kcal"),
+        "adaptation_kcal": est(p.adaptation_kcal, "adaptation_kcal"),
+        "adaptation_pct": est(p.adaptation_pct, "adaptation_pct"),
+        "bodyfat_start_pct": num(p.bodyfat_start_pct, "bodyfat_start_pct"),
+        "bodyfat_end_pct": num(p.bodyfat_end_pct, "bodyfat_end_pct"),
+        "fat_mass_change_kg": num(p.fat_mass_change_kg, "fat_mass_change_kg"),
+        "lean_mass_change_kg": num(p.lean_mass_change_kg, "lean_mass_change_kg"),
+        "status": p.status,
+    }
+    return row
+
+
+def summary_rows(analysis: ClientAnalysis) -> list[SummaryRow]:
+    """Rows for every phase of ``analysis`` that overlaps its report month, by start date."""
+    cid = analysis.client.client_id
+    phases = [p for p in analysis.phases if overlaps_month(p, analysis.month)]
+    phases.sort(key=lambda p: (p.start, p.name))
+    return [phase_row(cid, p) for p in phases]
+
+
+def sort_rows(rows: Iterable[SummaryRow]) -> list[SummaryRow]:
+    """Deterministic order: by client id, then phase start, then phase name."""
+    return sorted(rows, key=lambda r: (r["client_id"], r["start"], r["phase"]))
+
+
+def summary_csv(rows: Iterable[SummaryRow]) -> bytes:
+    """The whole summary.csv (UTF-8, no BOM, ``\\n`` line ends, header first)."""
+    buf = io.StringIO()
+    writer = csv.DictWriter(
+        buf, fieldnames=list(SUMMARY_COLUMNS), lineterminator="\n", extrasaction="raise"
+    )
+    writer.writeheader()
+    for row in sort_rows(rows):
+        writer.writerow(row)
+    return buf.getvalue().encode("utf-8")
