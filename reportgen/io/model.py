@@ -98,6 +98,8 @@ class Client:
     pregnant: bool = False
     goal_weight_kg: float | None = None
     extra: dict[str, str] = field(default_factory=dict)  # other roster columns, as text
+    roster_file: str | None = None  # where the row came from (relative to the book)
+    roster_row: int | None = None  # its spreadsheet row number (header = 1)
 
     def age_years(self, on: dt.date) -> int | None:
         """Completed years of age on ``on`` (rounded down), or None if unknown."""

@@ -1,0 +1,313 @@
+"""The client book as a whole: roster and phases, one client's files, and the book check.
+
+``read_roster`` reads the book-level files once; ``read_client`` reads only one client's
+files (so parallel workers each read their own client and memory stays flat).  Neither ever
+writes to, moves or locks an input file.
+"""
+
+from __future__ import annotations
+
+import calendar
+import datetime as dt
+from collections.abc import Iterable
+from pathlib import Path
+
+from reportgen.io import limits
+from reportgen.io.daily import parse_daily
+from reportgen.io.model import (
+    Client,
+    ClientRecord,
+    DailyLog,
+    InputError,
+    Phase,
+    Problem,
+    Roster,
+    SkinfoldSession,
+)
+from reportgen.io.phases import check_overlaps, parse_phases
+from reportgen.io.roster import parse_roster
+from reportgen.io.skinfolds import parse_skinfolds
+from reportgen.io.tables import Table, build_table, read_csv_table, read_xlsx_sheets
+
+ROSTER_FILES = ("clients.csv", "clients.xlsx")
+PHASES_FILE = "phases.csv"
+XLSX_SHEETS = ("daily", "skinfolds", "phases")
+
+
+def month_end_of(month: str) -> dt.date:
+    """Last day of ``"YYYY-MM"``."""
+    try:
+        year, mon = (int(x) for x in month.split("-"))
+        return dt.date(year, mon, calendar.monthrange(year, mon)[1])
+    except (ValueError, calendar.IllegalMonthError) as exc:
+        raise ValueError(f'month "{month}" is not of the form YYYY-MM (e.g. 2026-11)') from exc
+
+
+def _roster_file(book: Path) -> str:
+    present = [f for f in ROSTER_FILES if (book / f).is_file()]
+    if not present:
+        raise InputError(
+            Problem(
+                "error",
+                "missing-file",
+                f"{book} has no clients.csv or clients.xlsx; is this the client book folder?",
+            )
+        )
+    if len(present) > 1:
+        raise InputError(
+            Problem(
+                "error",
+                "two-sources",
+                "the book has both clients.csv and clients.xlsx; keep one",
+                file="clients.xlsx",
+            )
+        )
+    return present[0]
+
+
+def _roster_table(book: Path, rel: str) -> tuple[Table | None, list[Problem]]:
+    if rel.endswith(".csv"):
+        return read_csv_table(book, rel)
+    sheets, names, problems = read_xlsx_sheets(book, rel, ("clients",))
+    if sheets is None:
+        return None, problems
+    if "clients" in sheets:
+        name, rows = sheets["clients"]
+    else:  # no sheet called "clients": the first sheet is the roster
+        from python_calamine import CalamineWorkbook
+
+        with CalamineWorkbook.from_path(str(book / rel)) as wb:
+            name, rows = names[0], wb.get_sheet_by_index(0).to_python(skip_empty_area=False)
+    table, more = build_table(rel, name, rows, None)
+    return table, problems + more
+
+
+def read_roster(book_dir: Path, today: dt.date | None = None) -> Roster:
+    """Read the roster and ``phases.csv``.
+
+    Raises :class:`InputError` only when the book itself is unusable (no roster file, or
+    one that cannot be read); row-level problems go into ``Roster.problems``.
+    """
+    book = Path(book_dir)
+    today = today or dt.date.today()
+    if not book.is_dir():
+        raise InputError(Problem("error", "missing-file", f"{book} is not a folder"))
+    rel = _roster_file(book)
+    table, problems = _roster_table(book, rel)
+    fatal = [p for p in problems if p.code in ("unreadable-file", "empty-file")]
+    if table is None or fatal:
+        raise InputError(fatal[0] if fatal else problems[0])
+    clients, more = parse_roster(table, today)
+    problems += more
+    if any(p.code == "missing-column" for p in more):
+        raise InputError(next(p for p in more if p.code == "missing-column"))
+    phases: dict[str, tuple[Phase, ...]] = {}
+    sources = [rel]
+    if (book / PHASES_FILE).is_file():
+        sources.append(PHASES_FILE)
+        ptable, pprobs = read_csv_table(book, PHASES_FILE)
+        problems += pprobs
+        if ptable is not None:
+            by_client, pprobs = parse_phases(ptable)
+            problems += pprobs
+            known = {c.client_id for c in clients}
+            for cid, rows in by_client.items():
+                if cid not in known:
+                    problems.append(
+                        Problem(
+                            "error",
+                            "unknown-client",
+                            f'phases.csv has a phase for client_id "{cid}", who is not in '
+                            f"{rel}; add the client or correct the id",
+                            file=PHASES_FILE,
+                            row=rows[0][0],
+                            column=ptable.raw_columns[ptable.index("client_id") or 0],
+                            value=cid,
+                            client_id=cid,
+                        )
+                    )
+                    continue
+                phases[cid], overlap = check_overlaps(rows, PHASES_FILE, cid)
+                problems += overlap
+    return Roster(
+        book_dir=str(book.resolve()),
+        clients=clients,
+        phases=phases,
+        problems=tuple(problems),
+        source_files=tuple(sources),
+    )
+
+
+def _client_problem(code: str, message: str, client: Client, file: str | None = None) -> Problem:
+    return Problem("error", code, message, file=file, client_id=client.client_id)
+
+
+def read_client(
+    book_dir: Path,
+    client: Client,
+    phases: tuple[Phase, ...],
+    month_end: dt.date,
+    today: dt.date | None = None,
+    *,
+    roster_problems: Iterable[Problem] = (),
+) -> ClientRecord:
+    """Read and validate one client's files (never raises for bad data).
+
+    Data after ``month_end`` is cut off silently; data after ``today`` is ignored with a
+    ``future-date`` warning.  ``roster_problems`` may be all of ``Roster.problems``: those
+    with this client's id are added to the record, so roster or phase errors make the record
+    not ``ok``.
+    """
+    book = Path(book_dir)
+    today = today or dt.date.today()
+    cid = client.client_id
+    problems: list[Problem] = [p for p in roster_problems if p.client_id == cid]
+    sources: list[str] = []
+    if client.roster_file:
+        sources.append(client.roster_file)
+    if phases and (book / PHASES_FILE).is_file():
+        sources.append(PHASES_FILE)
+
+    log, outliers = DailyLog.empty(), ()
+    skinfolds: tuple[SkinfoldSession, ...] = ()
+    sheet_phases: list[tuple[int, Phase]] = []
+    sheet_file = None
+    csv_log, xlsx_log = f"logs/{cid}.csv", f"logs/{cid}.xlsx"
+    has_csv, has_xlsx = (book / csv_log).is_file(), (book / xlsx_log).is_file()
+    daily_table: Table | None = None
+    skin_tables: list[Table] = []
+    if has_csv and has_xlsx:
+        problems.append(
+            _client_problem(
+                "two-sources",
+                f"both {csv_log} and {xlsx_log} exist; keep one daily log",
+                client,
+                xlsx_log,
+            )
+        )
+    elif not has_csv and not has_xlsx:
+        problems.append(
+            _client_problem(
+                "missing-file",
+                f"no daily log: expected {csv_log} or {xlsx_log} (file names must match the "
+                "client_id exactly)",
+                client,
+                csv_log,
+            )
+        )
+    elif has_csv:
+        sources.append(csv_log)
+        daily_table, more = read_csv_table(book, csv_log, cid)
+        problems += more
+    else:
+        sources.append(xlsx_log)
+        sheets, names, more = read_xlsx_sheets(book, xlsx_log, XLSX_SHEETS, cid)
+        problems += more
+        if sheets is not None:
+            if "daily" not in sheets:
+                problems.append(
+                    _client_problem(
+                        "missing-sheet",
+                        f"{xlsx_log} has no sheet named daily (sheets: {', '.join(names)}); "
+                        "rename the sheet with the daily log to daily",
+                        client,
+                        xlsx_log,
+                    )
+                )
+            for key, (name, rows) in sheets.items():
+                if key != "daily" and not any(any(c not in ("", None) for c in r) for r in rows):
+                    continue  # an empty optional sheet is as good as none
+                table, more = build_table(xlsx_log, name, rows, cid)
+                problems += more
+                if table is None:
+                    continue
+                if key == "daily":
+                    daily_table = table
+                elif key == "skinfolds":
+                    skin_tables.append(table)
+                else:
+                    by_client, more = parse_phases(table, cid)
+                    problems += more
+                    sheet_phases = by_client.get(cid, [])
+                    sheet_file = xlsx_log
+    if daily_table is not None:
+        result = parse_daily(daily_table, cid, month_end, today)
+        log, outliers = result.log, result.outliers
+        problems += result.problems
+
+    skin_csv = f"skinfolds/{cid}.csv"
+    if (book / skin_csv).is_file():
+        sources.append(skin_csv)
+        table, more = read_csv_table(book, skin_csv, cid)
+        problems += more
+        if table is not None:
+            skin_tables.append(table)
+    if len(skin_tables) > 1:
+        problems.append(
+            _client_problem(
+                "two-sources",
+                f"skinfolds are in both {xlsx_log} (sheet skinfolds) and {skin_csv}; keep one",
+                client,
+                skin_csv,
+            )
+        )
+    elif skin_tables:
+        skinfolds, more = parse_skinfolds(skin_tables[0], cid, month_end, today)
+        problems += more
+
+    if sheet_phases:
+        if phases:
+            problems.append(
+                _client_problem(
+                    "two-sources",
+                    f"phases are in both {PHASES_FILE} and {xlsx_log} (sheet phases); keep one",
+                    client,
+                    xlsx_log,
+                )
+            )
+        else:
+            phases, more = check_overlaps(sheet_phases, sheet_file or xlsx_log, cid)
+            problems += more
+    phases = tuple(p for p in phases if p.start <= month_end)
+
+    minor = False
+    age = client.age_years(month_end)
+    if age is not None and age < limits.ADULT_AGE_YEARS:
+        minor = True
+        problems.append(
+            Problem(
+                "warning",
+                "special-handling",
+                f"client is {age} at the end of the report month (under "
+                f"{limits.ADULT_AGE_YEARS}): no deficit analysis; the report carries the "
+                "caution for minors",
+                file=client.roster_file,
+                row=client.roster_row,
+                column="birth_date",
+                value=client.birth_date.isoformat() if client.birth_date else None,
+                client_id=cid,
+            )
+        )
+    if client.pregnant:
+        problems.append(
+            Problem(
+                "warning",
+                "special-handling",
+                "client is marked pregnant: no deficit analysis; the report carries the "
+                "caution for pregnancy",
+                file=client.roster_file,
+                row=client.roster_row,
+                column="pregnant",
+                client_id=cid,
+            )
+        )
+    return ClientRecord(
+        client=client,
+        log=log,
+        skinfolds=skinfolds,
+        phases=phases,
+        problems=tuple(problems),
+        source_files=tuple(sources),
+        minor=minor,
+        outliers=outliers,
+    )

@@ -1,0 +1,172 @@
+"""The roster (``clients.csv`` or ``clients.xlsx``): one row per client."""
+
+from __future__ import annotations
+
+import datetime as dt
+import re
+from typing import Final
+
+from reportgen.io import limits
+from reportgen.io.cells import (
+    CellError,
+    check_range,
+    parse_date,
+    parse_number,
+    parse_sex,
+    parse_text,
+    parse_yes_no,
+)
+from reportgen.io.columns import check_columns
+from reportgen.io.model import Client, Problem
+from reportgen.io.tables import Cell, Table
+from reportgen.io.units import UNIT_AGREEMENT, UNIT_MAP, alternatives
+
+CLIENT_ID_RE: Final = re.compile(rf"[A-Za-z0-9_-]{{1,{limits.MAX_CLIENT_ID_LEN}}}")
+ROSTER_COLUMNS: Final = (
+    "client_id",
+    "name",
+    "sex",
+    "birth_date",
+    *alternatives("height_cm"),
+    "email",
+    "pregnant",
+    *alternatives("goal_weight_kg"),
+)
+_LIMITS: Final = {
+    "height_cm": (limits.HEIGHT_CM, "cm", "no plausible adult or adolescent height"),
+    "goal_weight_kg": (limits.WEIGHT_KG, "kg", "no plausible adult or adolescent weight"),
+}
+
+
+def parse_roster(table: Table, today: dt.date) -> tuple[tuple[Client, ...], list[Problem]]:
+    """Parse the roster table; problems carry the client id where one is known."""
+    problems, ok = check_columns(table, [("client_id",)], ROSTER_COLUMNS, None, warn_unknown=False)
+    if not ok:
+        return (), problems
+    pos = {c: p for c in ROSTER_COLUMNS if (p := table.index(c)) is not None}
+    raw = {c: table.raw_columns[p] for c, p in pos.items()}
+    extra_pos = [
+        (p, table.raw_columns[p])
+        for p, c in enumerate(table.columns)
+        if c and c not in ROSTER_COLUMNS
+    ]
+    clients: list[Client] = []
+    seen: dict[str, int] = {}
+    for row, cells in table.rows:
+        bad: list[Problem] = []
+
+        def cell(c: str, cells: tuple[Cell, ...] = cells) -> Cell:
+            return cells[pos[c]] if c in pos else None
+
+        def err(
+            code: str,
+            msg: str,
+            c: str | None,
+            cid: str | None,
+            row: int = row,
+            bad: list[Problem] = bad,
+        ) -> None:
+            v = cell(c) if c else None
+            bad.append(
+                Problem(
+                    "error",
+                    code,
+                    msg,
+                    file=table.file,
+                    row=row,
+                    column=raw.get(c) if c else None,
+                    value=None if v is None else str(v),
+                    client_id=cid,
+                )
+            )
+
+        cid = parse_text(cell("client_id"))
+        if not cid:
+            err("missing-value", f"row {row} has no client_id; add one", "client_id", None)
+            problems.extend(bad)
+            continue
+        if not CLIENT_ID_RE.fullmatch(cid):
+            err(
+                "bad-client-id",
+                f'client_id "{cid}" is not usable: use at most {limits.MAX_CLIENT_ID_LEN} '
+                "letters, digits, - and _ (no spaces)",
+                "client_id",
+                None,
+            )
+            problems.extend(bad)
+            continue
+        if cid in seen:
+            err(
+                "duplicate-client",
+                f'client_id "{cid}" appears in rows {seen[cid]} and {row}; give each client '
+                "one row and a unique id",
+                "client_id",
+                cid,
+            )
+            problems.extend(bad)
+            continue
+        seen[cid] = row
+
+        def get(c: str, fn, cid: str = cid):  # type: ignore[no-untyped-def]
+            try:
+                return fn(cell(c), raw.get(c, c))
+            except CellError as e:
+                err(e.code, e.message, c, cid)
+                return None
+
+        sex = get("sex", parse_sex)
+        birth = get("birth_date", parse_date)
+        if birth is not None:
+            age = today.year - birth.year - ((today.month, today.day) < (birth.month, birth.day))
+            if birth > today or age > limits.MAX_AGE_YEARS:
+                err(
+                    "out-of-range",
+                    f"birth_date {birth} gives an age of {age} years today; correct the date",
+                    "birth_date",
+                    cid,
+                )
+                birth = None
+        measures: dict[str, float | None] = {}
+        for canonical, (lims, unit, why) in _LIMITS.items():
+            got = []
+            for name in alternatives(canonical):
+                x = get(name, parse_number) if name in pos else None
+                if x is not None:
+                    got.append((name, x * (UNIT_MAP[name][1] if name in UNIT_MAP else 1.0)))
+            value = got[0][1] if got else None
+            if len(got) > 1 and abs(got[0][1] - got[1][1]) > UNIT_AGREEMENT[canonical]:
+                err(
+                    "unit-conflict",
+                    f"has both {raw[got[0][0]]} and {raw[got[1][0]]} with different values "
+                    f"({got[0][1]:.1f} vs {got[1][1]:.1f} {unit}); keep one",
+                    got[1][0],
+                    cid,
+                )
+                value = None
+            if value is not None:
+                try:
+                    check_range(value, lims, raw[got[0][0]], cell(got[0][0]), unit, why)
+                except CellError as e:
+                    err(e.code, e.message, got[0][0], cid)
+                    value = None
+            measures[canonical] = value
+        pregnant = get("pregnant", parse_yes_no) or False
+        email = parse_text(cell("email")) or None
+        extra = {name: parse_text(cells[p]) for p, name in extra_pos}
+        problems.extend(bad)
+        clients.append(
+            Client(
+                client_id=cid,
+                name=parse_text(cell("name")) or cid,
+                sex=sex,
+                birth_date=birth,
+                height_cm=measures["height_cm"],
+                email=email,
+                pregnant=bool(pregnant),
+                goal_weight_kg=measures["goal_weight_kg"],
+                extra=extra,
+                roster_file=table.file,
+                roster_row=row,
+            )
+        )
+    return tuple(clients), problems
