@@ -63,12 +63,12 @@ def parse_number(cell: Cell, column: str) -> float | None:
         # float() also takes "nan", "inf", "1_000" and non-ASCII digits: none are ours.
         if math.isfinite(x) and s.isascii() and "_" not in s:
             return x
-        if re.fullmatch(r"[+-]?\d+,\d+", s):
-            hint = "use a decimal point, not a comma (82.4, not 82,4)"
-        elif re.search(r"\d", s) and re.search(r"[A-Za-z]", s):
-            hint = "write the number alone; the unit belongs in the column name"
-        else:
-            hint = "enter a number with a decimal point (e.g. 82.4) or leave the cell blank"
+        hints = []
+        if re.search(r"\d,\d", s):
+            hints.append("use a decimal point, not a comma (82.4, not 82,4)")
+        if re.search(r"\d", s) and re.search(r"[^\W\d_]", s):
+            hints.append("write the number alone (the unit belongs in the column name)")
+        hint = "; ".join(hints) or "enter a number (e.g. 82.4) or leave the cell blank"
         raise CellError("bad-number", f"{column} {shown(cell)} is not a number; {hint}")
     raise CellError(
         "bad-number",

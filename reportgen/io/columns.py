@@ -60,6 +60,7 @@ def check_columns(
                         "ignored (check the spelling if it should be used)",
                         file=table.file,
                         column=raw,
+                        value=raw,
                         client_id=client_id,
                     )
                 )

@@ -59,8 +59,19 @@ def _err(code: str, msg: str, t: Table, cid: str, row: int, col: str | None, val
     )
 
 
-def _warn(code: str, msg: str, t: Table, cid: str, row: int | None, col: str | None) -> Problem:
-    return Problem("warning", code, msg, file=t.file, row=row, column=col, client_id=cid)
+def _warn(
+    code: str, msg: str, t: Table, cid: str, row: int | None, col: str | None, val: object = None
+) -> Problem:
+    return Problem(
+        "warning",
+        code,
+        msg,
+        file=t.file,
+        row=row,
+        column=col,
+        value=None if val is None else str(val),
+        client_id=cid,
+    )
 
 
 def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date) -> DailyResult:
@@ -156,6 +167,7 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
                     client_id,
                     row,
                     date_raw,
+                    cells[date_pos],
                 )
             )
             continue
@@ -251,6 +263,7 @@ def _drop_duplicates(
                     cid,
                     e.row,
                     date_raw,
+                    e.date,
                 )
             )
         else:
@@ -287,6 +300,7 @@ def _gaps(entries: list[_Entry], table: Table, cid: str, date_raw: str) -> list[
                     cid,
                     b.row,
                     date_raw,
+                    b.date,
                 )
             )
     return out

@@ -66,6 +66,7 @@ def parse_skinfolds(
                     f"knows ({', '.join(SKINFOLD_SITES)}); it is ignored",
                     file=table.file,
                     column=raw,
+                    value=raw,
                     client_id=client_id,
                 )
             )

@@ -1,0 +1,130 @@
+"""Checking a whole book: every client read and validated, all problems in one list."""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass
+from pathlib import Path
+
+from reportgen.io import limits
+from reportgen.io.book import month_end_of, read_client, read_roster
+from reportgen.io.model import ClientRecord, Problem, Roster
+
+
+@dataclass(frozen=True)
+class CheckResult:
+    """The outcome of :func:`check_book`."""
+
+    book_dir: str
+    month: str
+    today: dt.date
+    roster: Roster
+    records: tuple[ClientRecord, ...]
+
+    @property
+    def problems(self) -> tuple[Problem, ...]:
+        """Book-level problems first, then each client's, in a stable order."""
+        ids = {r.client.client_id for r in self.records}
+        book = [p for p in self.roster.problems if p.client_id not in ids]
+        per_client = [p for r in self.records for p in r.problems]
+        return tuple(sorted(book, key=_order)) + tuple(sorted(per_client, key=_order))
+
+    @property
+    def errors(self) -> tuple[Problem, ...]:
+        return tuple(p for p in self.problems if p.severity == "error")
+
+    @property
+    def warnings(self) -> tuple[Problem, ...]:
+        return tuple(p for p in self.problems if p.severity == "warning")
+
+    @property
+    def clients_with_errors(self) -> tuple[str, ...]:
+        return tuple(r.client.client_id for r in self.records if not r.ok)
+
+    @property
+    def ok(self) -> bool:
+        """No error anywhere (warnings allowed)."""
+        return not self.errors
+
+    def summary(self) -> str:
+        n = len(self.records)
+        bad = len(self.clients_with_errors)
+        e, w = len(self.errors), len(self.warnings)
+        return (
+            f"{n} client{'s' * (n != 1)} checked for {self.month}: "
+            f"{bad} with errors, {e} error{'s' * (e != 1)}, {w} warning{'s' * (w != 1)}"
+        )
+
+    def as_dict(self) -> dict[str, object]:
+        return {
+            "book": self.book_dir,
+            "month": self.month,
+            "today": self.today.isoformat(),
+            "clients_checked": len(self.records),
+            "clients_with_errors": list(self.clients_with_errors),
+            "errors": len(self.errors),
+            "warnings": len(self.warnings),
+            "problems": [p.as_dict() for p in self.problems],
+        }
+
+
+def _order(p: Problem) -> tuple[str, str, int, str, str]:
+    return (p.client_id or "", p.file or "", p.row or 0, p.column or "", p.code)
+
+
+def check_book(
+    book_dir: Path, month: str | None = None, today: dt.date | None = None
+) -> CheckResult:
+    """Read and validate every client of the book.
+
+    ``month`` ("YYYY-MM") defaults to the month of the latest (non-future) data in the book.
+    Raises :class:`~reportgen.io.model.InputError` only for an unusable book, and
+    ``ValueError`` for a malformed ``month``.
+    """
+    book = Path(book_dir)
+    today = today or dt.date.today()
+    roster = read_roster(book, today=today)
+    month_end = month_end_of(month) if month else today
+
+    def read_all(end: dt.date) -> list[ClientRecord]:
+        return [
+            read_client(
+                book,
+                c,
+                roster.phases.get(c.client_id, ()),
+                end,
+                today,
+                roster_problems=roster.problems,
+            )
+            for c in roster.clients
+        ]
+
+    records = read_all(month_end)
+    if month is None:
+        latest = max(
+            (r.log.dates[-1].astype(dt.date) for r in records if r.log.n_days),
+            default=today,
+        )
+        month = f"{latest.year:04d}-{latest.month:02d}"
+        month_end = month_end_of(month)
+        # Data up to today was read; the month of the latest data holds all of it, so only
+        # what depends on the month end itself (age) can differ: re-read those clients.
+        records = [
+            read_client(
+                book,
+                r.client,
+                roster.phases.get(r.client.client_id, ()),
+                month_end,
+                today,
+                roster_problems=roster.problems,
+            )
+            if _minor(r, month_end) != r.minor
+            else r
+            for r in records
+        ]
+    return CheckResult(str(book.resolve()), month, today, roster, tuple(records))
+
+
+def _minor(record: ClientRecord, on: dt.date) -> bool:
+    age = record.client.age_years(on)
+    return age is not None and age < limits.ADULT_AGE_YEARS
