@@ -1,0 +1,176 @@
+"""`reportgen batch BOOK --month YYYY-MM --out OUT`: the month-end run for every client."""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+import click
+
+if TYPE_CHECKING:
+    from reportgen.batch import BatchResult
+
+
+def _split_ids(value: str | None) -> list[str] | None:
+    if value is None:
+        return None
+    ids = [v.strip() for v in value.split(",") if v.strip()]
+    if not ids:
+        raise click.BadParameter(
+            "give at least one client id, e.g. c001,c002", param_hint="--clients"
+        )
+    return ids
+
+
+def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
+    from rich.console import Console
+    from rich.table import Table
+
+    out = Console(highlight=False)
+    err = Console(stderr=True, highlight=False)
+    failed = result.failed
+    with_warnings = [o for o in result.succeeded if o.warnings]
+    n_warnings = sum(len(o.warnings) for o in result.outcomes)
+
+    if verbose:
+        for o in failed:
+            if o.traceback:
+                err.print(f"[bold]{o.client_id}[/bold]: traceback", markup=True)
+                err.print(o.traceback, markup=False, end="")
+
+    if quiet:
+        for o in failed:
+            err.print(f"{o.client_id}: {o.reason}", markup=False)
+        for e in result.errors:
+            err.print(e, markup=False)
+        return
+
+    table = Table(title=f"reportgen batch {result.month}", title_justify="left")
+    table.add_column("", style="bold")
+    table.add_column("clients", justify="right")
+    table.add_column("")
+    table.add_row("done", str(len(result.succeeded)), "")
+    table.add_row(
+        "warnings",
+        str(len(with_warnings)),
+        f"{n_warnings} warning(s) in total, listed in manifest.json" if n_warnings else "",
+    )
+    table.add_row("failed", str(len(failed)), "")
+    for o in failed:
+        table.add_row("", o.client_id, o.reason)
+    out.print(table)
+    for e in result.errors:
+        err.print(e, markup=False)
+    out.print(f"Files are in {result.month_dir}", markup=False)
+    if failed and not verbose and any(o.traceback for o in failed):
+        out.print("Run again with --verbose to see the tracebacks of unexpected errors.")
+
+
+@click.command("batch")
+@click.argument("book", type=click.Path(file_okay=False, path_type=Path))
+@click.option("--month", required=True, metavar="YYYY-MM", help="The report month, e.g. 2026-11.")
+@click.option(
+    "--out",
+    "out_dir",
+    required=True,
+    type=click.Path(file_okay=False, path_type=Path),
+    help="Output folder; files go to OUT/<YYYY-MM>/.",
+)
+@click.option(
+    "--workers",
+    type=click.IntRange(min=1),
+    default=None,
+    help="Worker processes (default: one per core; 1 runs everything in this process).",
+)
+@click.option("--clients", "clients", metavar="ID,ID", help="Only these clients.")
+@click.option(
+    "--config",
+    "config_file",
+    type=click.Path(dir_okay=False, path_type=Path),
+    help="Practice configuration (TOML).",
+)
+@click.option("--quiet", "-q", is_flag=True, help="No progress bar and no result table.")
+@click.option("--verbose", "-v", is_flag=True, help="Show tracebacks of unexpected errors.")
+@click.option(
+    "--scheduler",
+    metavar="ADDRESS",
+    help="Send the per-client tasks to a Dask distributed scheduler (needs reportgen[cluster]).",
+)
+def batch_command(
+    book: Path,
+    month: str,
+    out_dir: Path,
+    workers: int | None,
+    clients: str | None,
+    config_file: Path | None,
+    quiet: bool,
+    verbose: bool,
+    scheduler: str | None,
+) -> None:
+    """Make every client's reports for one month, plus overview.pdf, summary.csv and manifest.json.
+
+    Exit code 0 when every client succeeded, 1 when some failed (the others
+    are still written), 2 for a usage error or an unreadable book.
+    """
+    from reportgen.batch import BatchUsageError, parse_month, run_batch
+    from reportgen.config import ConfigError, load_config
+    from reportgen.io.model import InputError
+
+    try:
+        parse_month(month)
+    except BatchUsageError as exc:
+        raise click.BadParameter(str(exc), param_hint="--month") from None
+    ids = _split_ids(clients)
+    try:
+        config = load_config(config_file)
+    except ConfigError as exc:
+        raise click.BadParameter(str(exc), param_hint="--config") from None
+
+    show_progress = not quiet and sys.stdout.isatty()
+    progress = None
+    bar = None
+    if show_progress:
+        from rich.progress import BarColumn, MofNCompleteColumn, Progress, TimeRemainingColumn
+
+        progress = Progress(
+            "[progress.description]{task.description}",
+            BarColumn(),
+            MofNCompleteColumn(),
+            TimeRemainingColumn(),
+            transient=True,
+        )
+
+    def on_start(total: int) -> None:
+        nonlocal bar
+        if progress is not None:
+            progress.start()
+            bar = progress.add_task(f"Reports for {month}", total=total)
+
+    def on_outcome(_outcome: object) -> None:
+        if progress is not None and bar is not None:
+            progress.advance(bar)
+
+    try:
+        result = run_batch(
+            book,
+            month,
+            out_dir,
+            config=config,
+            workers=workers,
+            client_ids=ids,
+            scheduler=scheduler,
+            on_start=on_start,
+            on_outcome=on_outcome,
+        )
+    except InputError as exc:
+        click.echo(f"Error: the book cannot be read: {exc}", err=True)
+        click.get_current_context().exit(2)
+    except BatchUsageError as exc:
+        raise click.UsageError(str(exc)) from None
+    finally:
+        if progress is not None:
+            progress.stop()
+
+    _print_result(result, quiet=quiet, verbose=verbose)
+    click.get_current_context().exit(result.exit_code)
