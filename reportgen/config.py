@@ -8,7 +8,9 @@ message that names the key, so a typo never silently falls back to a default.
 from __future__ import annotations
 
 import dataclasses
+import json
 import re
+import textwrap
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -154,62 +156,161 @@ def _coerce(table: str, key: str, value: Any, hint: Any) -> Any:
     raise ConfigError(f"{where}: unsupported setting type")  # pragma: no cover
 
 
-def config_from_dict(data: dict[str, Any], source: str | None = None) -> Config:
-    """Build a validated :class:`Config` from parsed TOML data."""
+def _table_problems(table: str, value: Any) -> tuple[dict[str, Any], list[str]]:
+    """Coerce one TOML table's keys; every bad key gives one message."""
+    cls = _TABLES[table]
+    hints = get_type_hints(cls)
+    kwargs: dict[str, Any] = {}
+    problems: list[str] = []
+    for key, v in value.items():
+        if key not in hints:
+            known = ", ".join(hints)
+            problems.append(f"unknown setting [{table}] {key}; known settings: {known}")
+            continue
+        try:
+            coerced = _coerce(table, key, v, hints[key])
+        except ConfigError as exc:
+            problems.append(str(exc))
+            continue
+        choices = _CHOICES.get((table, key))
+        if choices and coerced not in choices:
+            problems.append(
+                f"[{table}] {key} = {v!r} is not allowed; use one of: {', '.join(choices)}"
+            )
+            continue
+        kwargs[key] = coerced
+    return kwargs, problems
+
+
+def config_problems(data: dict[str, Any], source: str | None = None) -> list[str]:
+    """Every problem in parsed TOML data, one message each (empty when it is valid)."""
+    return _build(data, source)[1]
+
+
+def _build(data: dict[str, Any], source: str | None) -> tuple[Config | None, list[str]]:
     parts: dict[str, Any] = {}
+    problems: list[str] = []
     for table, value in data.items():
         if table not in _TABLES:
             known = ", ".join(f"[{t}]" for t in _TABLES)
-            raise ConfigError(f"unknown section [{table}]; known sections: {known}")
+            problems.append(f"unknown section [{table}]; known sections: {known}")
+            continue
         if not isinstance(value, dict):
-            raise ConfigError(f"[{table}] must be a section, not a single value")
-        cls = _TABLES[table]
-        hints = get_type_hints(cls)
-        kwargs: dict[str, Any] = {}
-        for key, v in value.items():
-            if key not in hints:
-                known = ", ".join(hints)
-                raise ConfigError(f"unknown setting [{table}] {key}; known settings: {known}")
-            coerced = _coerce(table, key, v, hints[key])
-            choices = _CHOICES.get((table, key))
-            if choices and coerced not in choices:
-                raise ConfigError(
-                    f"[{table}] {key} = {v!r} is not allowed; use one of: {', '.join(choices)}"
-                )
-            kwargs[key] = coerced
-        parts[table] = cls(**kwargs)
+            problems.append(f"[{table}] must be a section, not a single value")
+            continue
+        kwargs, more = _table_problems(table, value)
+        problems += more
+        parts[table] = _TABLES[table](**kwargs)
+    # The keys that were fine are checked for meaning too, so one run lists every problem.
     cfg = Config(**parts, source=source)
-    _check(cfg)
+    problems += _check(cfg)
+    return (None, problems) if problems else (cfg, [])
+
+
+def config_from_dict(data: dict[str, Any], source: str | None = None) -> Config:
+    """Build a validated :class:`Config` from parsed TOML data.
+
+    Raises :class:`ConfigError` naming every bad key (one per line).
+    """
+    cfg, problems = _build(data, source)
+    if cfg is None:
+        raise ConfigError("\n".join(problems))
     return cfg
 
 
-def _check(cfg: Config) -> None:
+#: strftime directives a report date may use: portable ones only (no platform extensions
+#: such as %-d, which Windows lacks).
+_DATE_DIRECTIVES = frozenset("aAbBdmyYj%")
+_DATE_PARTS = frozenset("bBdmyY")
+_EMAIL = re.compile(r"^[^@\s<>\"]+@[^@\s<>\"]+\.[^@\s<>\"]+$")
+_PNG_MAGIC = b"\x89PNG\r\n\x1a\n"
+
+
+def _date_format_problem(fmt: str) -> str | None:
+    where = f"[report] date_format = {fmt!r}"
+    directives = re.findall(r"%(.?)", fmt)
+    bad = sorted({d for d in directives if d not in _DATE_DIRECTIVES})
+    if bad:
+        shown = ", ".join("%" + d for d in bad)
+        return (
+            f"{where} uses {shown}, which is not a date code reportgen accepts; "
+            'use %d %m %Y %y %b %B %a %A %j (e.g. "%d %b %Y" gives 03 Nov 2026)'
+        )
+    if not _DATE_PARTS.intersection(directives):
+        return f'{where} shows no day, month or year; e.g. "%d %b %Y" gives 03 Nov 2026'
+    return None
+
+
+def _logo_problem(cfg: Config) -> str | None:
+    path = cfg.resolve_path(cfg.practice.logo)
+    if path is None:
+        return None
+    where = f"[practice] logo = {cfg.practice.logo!r}"
+    if path.suffix.lower() not in (".png", ".svg"):
+        return f"{where} must be a PNG or SVG file (.png or .svg)"
+    try:
+        head = path.read_bytes()[:4096]
+    except OSError:
+        rel = " (relative paths are taken from the configuration file's folder)"
+        return f"{where}: no such file at {path}{rel if cfg.source else ''}"
+    if path.suffix.lower() == ".png" and not head.startswith(_PNG_MAGIC):
+        return f"{where}: {path.name} is not a PNG image (save it again as PNG)"
+    if path.suffix.lower() == ".svg" and b"<svg" not in head:
+        return f"{where}: {path.name} is not an SVG image (no <svg> element at its start)"
+    return None
+
+
+def _check(cfg: Config) -> list[str]:
+    """Problems that involve a value's meaning (ranges, files, formats), one message each."""
+    out: list[str] = []
     r = cfg.report
     if not _COLOUR.match(r.accent_colour):
-        raise ConfigError(
-            f"[report] accent_colour = {r.accent_colour!r} must be a colour like \"#1F5A7A\""
-        )
+        out.append(f'[report] accent_colour = {r.accent_colour!r} must be a colour like "#1F5A7A"')
     for s in r.sections:
         if s not in SECTIONS:
-            raise ConfigError(
+            out.append(
                 f"[report] sections: {s!r} is not a section; use any of: {', '.join(SECTIONS)}"
             )
+    dupes = sorted({s for s in r.sections if r.sections.count(s) > 1})
+    if dupes:
+        out.append(f"[report] sections lists {', '.join(dupes)} more than once")
     if "cautions" not in r.sections:
-        raise ConfigError("[report] sections must include \"cautions\": every report carries them")
+        out.append('[report] sections must include "cautions": every report carries them')
     if not 1 <= r.projection_weeks <= 26:
-        raise ConfigError("[report] projection_weeks must be between 1 and 26")
+        out.append("[report] projection_weeks must be between 1 and 26")
+    problem = _date_format_problem(r.date_format)
+    if problem:
+        out.append(problem)
+    if r.templates_dir:
+        folder = cfg.resolve_path(r.templates_dir)
+        if folder is None or not folder.is_dir():
+            out.append(f"[report] templates_dir = {r.templates_dir!r}: no such folder at {folder}")
+    problem = _logo_problem(cfg)
+    if problem:
+        out.append(problem)
     if not 1.2 <= cfg.analysis.activity_factor <= 2.4:
-        raise ConfigError("[analysis] activity_factor must be between 1.2 and 2.4")
+        out.append("[analysis] activity_factor must be between 1.2 and 2.4")
     for rate in cfg.analysis.target_rates_pct_per_week:
         if not 0 < rate <= 1.5:
-            raise ConfigError(
+            out.append(
                 "[analysis] target_rates_pct_per_week values must be above 0 and at most 1.5"
             )
+            break
     m = cfg.mail
     if not 0 < m.port < 65536:
-        raise ConfigError(f"[mail] port = {m.port} is not a port number")
+        out.append(f"[mail] port = {m.port} is not a port number")
     if m.retries < 0 or m.retries > 10:
-        raise ConfigError("[mail] retries must be between 0 and 10")
+        out.append("[mail] retries must be between 0 and 10")
+    if m.timeout_s <= 0:
+        out.append("[mail] timeout_s must be above 0 seconds")
+    for key in ("from_address", "reply_to"):
+        value = getattr(m, key)
+        if value and not _EMAIL.match(value):
+            out.append(f"[mail] {key} = {value!r} is not an e-mail address like name@example.org")
+    for key in ("password_column", "referral_column"):
+        if not getattr(m, key).strip():
+            out.append(f"[mail] {key} must name a roster column")
+    return out
 
 
 def load_config(path: str | Path | None) -> Config:
@@ -228,4 +329,134 @@ def load_config(path: str | Path | None) -> Config:
     try:
         return config_from_dict(data, source=str(p))
     except ConfigError as exc:
-        raise ConfigError(f"{p}: {exc}") from None
+        raise ConfigError("\n".join(f"{p}: {line}" for line in str(exc).splitlines())) from None
+
+
+def check_config_file(path: str | Path) -> list[str]:
+    """Every problem in a configuration file, one message per line (empty: it is valid)."""
+    try:
+        load_config(path)
+    except ConfigError as exc:
+        return str(exc).splitlines()
+    return []
+
+
+# ---------------------------------------------------------------- the commented file
+
+#: What each section is for (first lines of its block in the written file).
+SECTION_DOCS: dict[str, str] = {
+    "practice": "Your practice, as printed on every report and summary.",
+    "report": "How the client reports look.",
+    "analysis": "Methods and assumptions of the analysis.",
+    "mail": "How `reportgen send` delivers the reports by e-mail.",
+}
+
+#: What each setting does; ``settings write`` prints these above each key.  A test checks
+#: that every field of every settings dataclass has an entry here and nothing else does.
+SETTING_DOCS: dict[str, dict[str, str]] = {
+    "practice": {
+        "name": "Practice name, shown at the top of every report.",
+        "address": "Postal address (one line), shown under the practice name.",
+        "phone": "Telephone number for clients, shown in the contact line under the name.",
+        "email": "Contact e-mail address, shown in the contact line; also the Reply-To of report "
+        "e-mails when [mail] reply_to is empty.",
+        "website": "Web address, shown in the contact line.",
+        "logo": "Logo printed at the top right of the reports: a PNG or SVG file. A "
+        "relative path is taken from this file's folder. Empty: no logo.",
+    },
+    "report": {
+        "paper": "Paper size of the PDFs.",
+        "weight_unit": "Unit for weights in the reports (inputs may use either).",
+        "energy_unit": "Unit for energy (intake, expenditure, deficit) in the reports.",
+        "date_format": "How dates are printed, as strftime codes: %d day, %m month number, "
+        '%b/%B month name, %Y year (e.g. "%d %b %Y" gives 03 Nov 2026).',
+        "accent_colour": "Accent colour of the reports (rules, headings, chart highlights), as "
+        '"#RRGGBB".',
+        "sections": "Which sections the client report contains, in this order. "
+        '"cautions" is always required.',
+        "templates_dir": "Folder with your own versions of the wording templates, laid out like "
+        "the shipped ones (report/..., mail/...); a file there replaces the shipped file of "
+        "the same name. A relative path is taken from this file's folder. Empty: shipped "
+        "wording only.",
+        "projection_weeks": "How many weeks ahead the report projects weight (1-26).",
+    },
+    "analysis": {
+        "bodyfat_equation": "Skinfold equation for body fat. auto picks Jackson-Pollock 7-site, "
+        "then 3-site, then Durnin-Womersley 4-site, by the sites measured.",
+        "density_conversion": "Conversion from body density to % fat (Siri 1961 or Brozek 1963).",
+        "activity_factor": "Physical activity level (PAL, 1.2-2.4) times resting energy, used "
+        "for expected expenditure only when a client has no usable maintenance baseline.",
+        "target_rates_pct_per_week": "Weekly loss rates (% of body weight per week, each above "
+        "0 and at most 1.5) for which the report shows the intake needed.",
+    },
+    "mail": {
+        "host": "SMTP server that sends the mail.",
+        "port": "SMTP port (587 for STARTTLS, 465 for TLS, 25 for plain).",
+        "security": "Connection security: starttls, tls, or none (only for a server on this "
+        "machine or a trusted network).",
+        "user": "Login name on the SMTP server; empty: no login. The password is read from "
+        "the REPORTGEN_SMTP_PASSWORD environment variable, never from this file.",
+        "from_address": "Sender address of the report e-mails.",
+        "from_name": "Sender name shown to clients.",
+        "reply_to": "Address client replies go to; empty: [practice] email, else the sender.",
+        "timeout_s": "Seconds to wait for the mail server before giving up on a message.",
+        "retries": "How often a failed message is tried again (0-10).",
+        "encrypt": "Protect each PDF with a password (AES-256) before sending it.",
+        "password_column": "Roster column holding a client's PDF password (when encrypt is on).",
+        "secret_file": "File with the practice secret from which PDF passwords are derived "
+        "for clients without a password column entry. Keep it outside the book.",
+        "referral_column": "Roster column with the e-mail address of a referring practitioner "
+        "(used when send_practitioner_copy is on).",
+        "send_practitioner_copy": "Also e-mail each practitioner summary to the address in the "
+        "referral column.",
+    },
+}
+
+
+def _toml_value(value: Any) -> str:
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, int | float):
+        return repr(value)
+    if isinstance(value, str):
+        return json.dumps(value, ensure_ascii=False)  # JSON strings are valid TOML strings
+    if isinstance(value, tuple | list):
+        return "[" + ", ".join(_toml_value(v) for v in value) + "]"
+    raise TypeError(f"no TOML form for {value!r}")  # pragma: no cover
+
+
+def _comment(text: str, width: int = 88) -> list[str]:
+    return ["# " + line for line in textwrap.wrap(text, width - 2)]
+
+
+def config_toml(cfg: Config | None = None) -> str:
+    """A commented TOML file with every setting, its value (the defaults) and what it does.
+
+    Generated from the settings dataclasses and :data:`SETTING_DOCS`, so it never drifts
+    from what :func:`load_config` accepts.
+    """
+    cfg = cfg or Config()
+    lines = [
+        "# reportgen practice configuration",
+        "#",
+        *_comment(
+            "Every setting is listed with its default value. Change what you need; delete a "
+            "line to go back to the default. Check the file with: reportgen settings check "
+            "FILE. Use it with: reportgen batch BOOK --config FILE."
+        ),
+    ]
+    for table, cls in _TABLES.items():
+        lines += ["", *_comment(SECTION_DOCS[table]), f"[{table}]"]
+        values = getattr(cfg, table)
+        for f in dataclasses.fields(cls):
+            doc = SETTING_DOCS[table][f.name]
+            choices = _CHOICES.get((table, f.name))
+            if choices:
+                doc += " One of: " + ", ".join(choices) + "."
+            elif table == "report" and f.name == "sections":
+                doc += " Any of: " + ", ".join(SECTIONS) + "."
+            default = getattr(cls(), f.name)
+            if getattr(values, f.name) != default:
+                doc += f" Default: {_toml_value(default)}."
+            lines += ["", *_comment(doc), f"{f.name} = {_toml_value(getattr(values, f.name))}"]
+    return "\n".join(lines) + "\n"
