@@ -1,0 +1,217 @@
+"""Expected TDEE without adaptation, and metabolic adaptation.
+
+Expected TDEE is what the client's expenditure would be now if it had only
+followed the change in body size: the client's own measured baseline adjusted
+with the Hall et al. 2011 model terms (resting cost of fat and lean tissue,
+body-weight-proportional activity cost, thermic effect of food, cost of tissue
+change).  Metabolic adaptation is observed minus expected, the same definition
+as the model's adaptive thermogenesis and Fothergill 2016's residual
+expenditure (science notes §5, §6).
+
+When there is no usable baseline the fallback is a resting equation times an
+activity factor, which is much less certain and is labelled so.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from reportgen.results import Estimate
+from reportgen.science.hall import HALL_2011, HallParams
+from reportgen.science.trend import Z80
+
+# Literature magnitudes to set an estimate beside (science notes §6, each with its source
+# kind).  kcal/day unless the unit says otherwise.
+LITERATURE_ADAPTATION: tuple[tuple[str, str, str], ...] = (
+    (
+        "leibel-1995",
+        "TEE -6 +/- 3 (never obese) and -8 +/- 5 (obese) kcal/kg FFM/day after >= 10 % loss",
+        "published: Leibel, Rosenbaum & Hirsch 1995, NEJM 332:621-8, abstract",
+    ),
+    (
+        "muller-2015",
+        "REE -266 kcal/day, adaptive thermogenesis -108 kcal/day after 3 weeks at -50 % intake",
+        "published: Muller et al. 2015, AJCN 102:807-19, abstract",
+    ),
+    (
+        "fothergill-2016",
+        "-499 +/- 207 kcal/day six years after extreme loss",
+        "published: Fothergill et al. 2016, Obesity 24:1612-9, abstract",
+    ),
+    (
+        "synthesis",
+        "typically 5-15 % of TDEE (about 50-300 kcal/day) in moderate diets",
+        "synthesis of the above, not a single published number",
+    ),
+)
+# Beyond this share of expected TDEE an "adaptation" is more likely a logging or data
+# problem (common practice / judgment, science notes §6).
+IMPLAUSIBLE_ADAPTATION_PCT = 20.0
+# Relative SD of a resting equation x activity factor for one person (judgment: resting
+# equations are within about 10 % for most adults and the activity factor is a guess).
+FALLBACK_REL_SD = 0.15
+
+
+@dataclass(frozen=True)
+class Baseline:
+    """The client's own reference period (first maintenance phase or first weeks)."""
+
+    tdee_kcal: float
+    tdee_se_kcal: float
+    weight_kg: float
+    fat_kg: float
+    intake_kcal: float
+    resting_kcal: float  # resting equation at the baseline weight
+    fat_rate_kg_per_day: float = 0.0
+    lean_rate_kg_per_day: float = 0.0
+    source: str = "maintenance-phase"  # or "first-weeks"
+
+    @property
+    def lean_kg(self) -> float:
+        return self.weight_kg - self.fat_kg
+
+
+def activity_coefficient_kcal_per_kg_day(
+    tdee_kcal: float, resting_kcal: float, weight_kg: float, params: HallParams = HALL_2011
+) -> float:
+    """Body-weight-proportional activity cost delta from a measured TDEE.
+
+    delta = ((1 - betaTEF) TDEE - RMR) / BW [kcal/kg/day], the Hall 2011 definition
+    delta = ((1 - betaTEF) PAL - 1) RMR / BW with PAL = TDEE/RMR (science notes §5);
+    not allowed below 0.
+    """
+    return max(((1.0 - params.beta_tef) * tdee_kcal - resting_kcal) / weight_kg, 0.0)
+
+
+def expected_tdee_from_baseline(
+    baseline: Baseline,
+    weight_kg: float,
+    fat_kg: float,
+    intake_kcal: float,
+    fat_rate_kg_per_day: float = 0.0,
+    lean_rate_kg_per_day: float = 0.0,
+    params: HallParams = HALL_2011,
+) -> Estimate:
+    """Expected TDEE without adaptation from the client's own baseline.
+
+    Parameters
+    ----------
+    baseline : Baseline
+        Measured baseline TDEE, composition and intake.
+    weight_kg, fat_kg : float
+        Current trend weight and fat mass. [kg]
+    intake_kcal : float
+        Current mean intake (sets the thermic effect of food). [kcal/day]
+    fat_rate_kg_per_day, lean_rate_kg_per_day : float
+        Current rates of fat and lean change (cost of tissue change). [kg/day]
+    params : HallParams
+
+    Returns
+    -------
+    Estimate
+        Expected TDEE with an 80 % interval from the baseline's SE. [kcal/day]
+
+    Notes
+    -----
+    E = E0 + gF dF + gL dL + delta dBW + betaTEF dEI + etaF d(dF/dt) + etaL d(dL/dt),
+    with gF 3.2, gL 22 kcal/kg/day, etaF 180, etaL 230 kcal/kg, betaTEF 0.10 and
+    delta from the baseline (:func:`activity_coefficient_kcal_per_kg_day`): the
+    terms of the Hall et al. 2011 expenditure equation other than adaptive
+    thermogenesis (science notes §5).  A constant fractional under-logging of
+    intake enters E0 and the observed TDEE alike, so it largely cancels in the
+    adaptation (it remains through betaTEF and the change in intake).
+    """
+    lean = weight_kg - fat_kg
+    delta = activity_coefficient_kcal_per_kg_day(
+        baseline.tdee_kcal, baseline.resting_kcal, baseline.weight_kg, params
+    )
+    value = (
+        baseline.tdee_kcal
+        + params.gamma_fat_kcal_per_kg_day * (fat_kg - baseline.fat_kg)
+        + params.gamma_lean_kcal_per_kg_day * (lean - baseline.lean_kg)
+        + delta * (weight_kg - baseline.weight_kg)
+        + params.beta_tef * (intake_kcal - baseline.intake_kcal)
+        + params.eta_fat_kcal_per_kg * (fat_rate_kg_per_day - baseline.fat_rate_kg_per_day)
+        + params.eta_lean_kcal_per_kg * (lean_rate_kg_per_day - baseline.lean_rate_kg_per_day)
+    )
+    half = Z80 * baseline.tdee_se_kcal
+    return Estimate(value, value - half, value + half)
+
+
+def expected_tdee_fallback(resting_kcal: float, activity_factor: float) -> Estimate:
+    """Lower-confidence expected TDEE: resting equation x activity factor.
+
+    Parameters
+    ----------
+    resting_kcal : float
+        Resting expenditure from an equation (Mifflin-St Jeor by default). [kcal/day]
+    activity_factor : float
+        Physical activity level (practice setting). [unitless]
+
+    Returns
+    -------
+    Estimate
+        With an 80 % interval of +/- 1.28 x 15 % (judgment: resting equations are
+        within about 10 % for most adults, and the activity factor is a guess). [kcal/day]
+    """
+    value = resting_kcal * activity_factor
+    half = Z80 * FALLBACK_REL_SD * value
+    return Estimate(value, value - half, value + half)
+
+
+@dataclass(frozen=True)
+class Adaptation:
+    kcal: Estimate
+    pct: Estimate
+    implausible: bool
+
+
+def adaptation(observed: Estimate, expected: Estimate) -> Adaptation:
+    """Metabolic adaptation = observed - expected TDEE, in kcal/day and % of expected.
+
+    Parameters
+    ----------
+    observed, expected : Estimate
+        80 % intervals; their half-widths are combined as independent errors.
+
+    Returns
+    -------
+    Adaptation
+        Negative means expenditure below what body size explains.  ``implausible``
+        when |adaptation| exceeds 20 % of expected (more likely a logging or data
+        problem; common practice / judgment, science notes §6).
+    """
+    if not observed.known:
+        return Adaptation(
+            Estimate.missing(observed.reason or "no-observed"),
+            Estimate.missing(observed.reason or "no-observed"),
+            False,
+        )
+    if not expected.known:
+        return Adaptation(
+            Estimate.missing(expected.reason or "no-expected"),
+            Estimate.missing(expected.reason or "no-expected"),
+            False,
+        )
+    assert observed.value is not None and expected.value is not None
+    diff = observed.value - expected.value
+
+    def half(e: Estimate) -> float:
+        if e.low is None or e.high is None:
+            return 0.0
+        return (e.high - e.low) / 2.0
+
+    h = math.hypot(half(observed), half(expected))
+    kcal = Estimate(diff, diff - h, diff + h)
+    pct_v = 100.0 * diff / expected.value
+    pct_h = 100.0 * h / expected.value
+    pct = Estimate(pct_v, pct_v - pct_h, pct_v + pct_h)
+    return Adaptation(kcal, pct, abs(pct_v) > IMPLAUSIBLE_ADAPTATION_PCT)
+
+
+def deficit_depth_pct(deficit_kcal: float | None, maintenance_kcal: float | None) -> float | None:
+    """Realised deficit as % of maintenance (expected TDEE); None when either is unknown."""
+    if deficit_kcal is None or maintenance_kcal is None or maintenance_kcal <= 0:
+        return None
+    return 100.0 * deficit_kcal / maintenance_kcal

@@ -1,0 +1,177 @@
+"""analyse_client: the glue from a ClientRecord to a ClientAnalysis.
+
+Records are simulated (reportgen.science.simulate, invented data).  The checks
+are identities of the published chain (science notes §4.4: observed TDEE =
+mean intake + realised deficit; §6: adaptation = observed - expected) and the
+special-handling rules of the issue, not regression pins.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import datetime as dt
+import math
+
+import numpy as np
+import pytest
+from _sci_helpers import short_record, simulated, with_client, with_error
+
+from reportgen.analysis import analyse_client
+from reportgen.config import AnalysisSettings
+from reportgen.results import ClientAnalysis, Estimate
+
+SETTINGS = AnalysisSettings()
+
+
+@pytest.fixture(scope="module")
+def sim_analysis() -> tuple[object, ClientAnalysis]:
+    sim = simulated(11, two_deficits=True)
+    return sim, analyse_client(sim.record, sim.month, SETTINGS)
+
+
+def test_every_field_is_filled(sim_analysis: tuple[object, ClientAnalysis]) -> None:
+    _, a = sim_analysis
+    for f in dataclasses.fields(ClientAnalysis):
+        if f.name in ("bodyfat_fallback", "notes"):
+            continue  # None when skinfolds exist; notes may be empty
+        assert getattr(a, f.name) is not None, f.name
+    assert a.trend is not None and a.trend.level_kg.shape == a.log.dates.shape
+    assert a.expenditure is not None and np.all(np.isfinite(a.expenditure.tdee_kcal))
+    assert a.projection is not None and len(a.projection.weight_kg) == 85
+    assert {s.name for s in a.signals} >= {"steps", "hunger", "energy"}
+    assert a.bodycomp and a.bodycomp[-1].equation == "jackson-pollock-3"
+    codes = {m.code for m in a.methods}
+    assert {"local-linear-trend", "hall-2008-energy-density", "mifflin-st-jeor"} <= codes
+
+
+def test_phases_cut_at_month_end(sim_analysis: tuple[object, ClientAnalysis]) -> None:
+    sim, a = sim_analysis
+    assert len(a.phases) == len(sim.record.phases)  # type: ignore[attr-defined]
+    for p in a.phases:
+        assert p.window_end <= a.as_of == dt.date(2026, 11, 30)
+        assert p.days == (p.window_end - p.start).days + 1
+    assert a.current_phase is not None and a.week_of_phase is not None
+    assert a.week_of_phase == (a.as_of - a.current_phase.start).days // 7 + 1
+
+
+def test_chain_identities(sim_analysis: tuple[object, ClientAnalysis]) -> None:
+    """TDEE = mean intake + deficit (notes §4.4); adaptation = observed - expected (§6)."""
+    _, a = sim_analysis
+    checked = 0
+    for p in a.phases:
+        if not p.observed_tdee_kcal.known:
+            continue
+        assert p.mean_intake_kcal is not None and p.realised_deficit_kcal.value is not None
+        assert p.observed_tdee_kcal.value == pytest.approx(
+            p.mean_intake_kcal + p.realised_deficit_kcal.value, abs=1e-9
+        )
+        assert p.adaptation_kcal.value == pytest.approx(
+            p.observed_tdee_kcal.value - p.expected_tdee_kcal.value, abs=1e-9
+        )
+        assert p.adaptation_pct.value == pytest.approx(
+            100 * p.adaptation_kcal.value / p.expected_tdee_kcal.value, abs=1e-9
+        )
+        for e in (p.observed_tdee_kcal, p.realised_deficit_kcal, p.adaptation_kcal):
+            assert e.low is not None and e.high is not None
+            assert e.low <= e.value <= e.high
+        checked += 1
+    assert checked >= 3
+
+
+def test_days_in_deficit_counts_consecutive_deficit_phases(
+    sim_analysis: tuple[object, ClientAnalysis],
+) -> None:
+    _, a = sim_analysis
+    for p in a.phases:
+        if p.kind == "deficit":
+            assert p.days_in_deficit == p.days  # separated by a maintenance break
+        else:
+            assert p.days_in_deficit == 0
+
+
+def test_minor_gets_special_handling() -> None:
+    sim = simulated(5)
+    young = dt.date(2026 - 16, 3, 1)
+    a = analyse_client(with_client(sim, birth_date=young), sim.month, SETTINGS)
+    assert a.minor and a.special_handling == ("minor",)
+    assert a.trend is not None  # trend only
+    assert a.expenditure is None and a.projection is None
+    assert all(p.status == "special-handling" for p in a.phases)
+    assert all(p.realised_deficit_kcal.reason == "special-handling" for p in a.phases)
+    assert "minor" in {f.code for f in a.flags}
+
+
+def test_pregnant_gets_special_handling() -> None:
+    sim = simulated(5)
+    a = analyse_client(with_client(sim, pregnant=True), sim.month, SETTINGS)
+    assert a.special_handling == ("pregnant",)
+    assert all(not p.observed_tdee_kcal.known for p in a.phases)
+    assert "pregnant" in {f.code for f in a.flags}
+
+
+def test_fewer_than_14_days_gives_no_expenditure() -> None:
+    a = analyse_client(short_record(10), "2026-11", SETTINGS)
+    (p,) = a.phases
+    assert p.status == "too-few-days"
+    assert p.observed_tdee_kcal == Estimate.missing("too-few-days")
+    assert p.realised_deficit_kcal == Estimate.missing("too-few-days")
+    assert a.expenditure is None
+    assert "expenditure-too-few-days" in a.notes
+
+
+def test_flat_noise_free_log_has_zero_deficit() -> None:
+    """A flat series has zero trend change, so TDEE equals intake (notes §4.4)."""
+    a = analyse_client(short_record(21), "2026-11", SETTINGS)
+    (p,) = a.phases
+    assert p.realised_deficit_kcal.value == pytest.approx(0.0, abs=1e-6)
+    assert p.observed_tdee_kcal.value == pytest.approx(2200.0, abs=1e-6)
+    # the smoother's large-but-finite diffuse prior leaves a few grams at most
+    assert p.trend_change_kg == pytest.approx(0.0, abs=1e-3)
+    assert a.current_weight_kg.value == pytest.approx(80.0, abs=1e-3)
+
+
+def test_data_after_month_end_is_ignored() -> None:
+    sim = simulated(3)
+    a_nov = analyse_client(sim.record, "2026-10", SETTINGS)
+    assert a_nov.as_of == dt.date(2026, 10, 31)
+    assert a_nov.log.dates[-1] <= np.datetime64("2026-10-31")
+    assert all(p.window_end <= dt.date(2026, 10, 31) for p in a_nov.phases)
+
+
+def test_record_with_errors_is_refused() -> None:
+    with pytest.raises(ValueError, match="has errors; analyse only ok records"):
+        analyse_client(with_error(simulated(2).record), "2026-11", SETTINGS)
+
+
+def test_bad_month_is_refused() -> None:
+    with pytest.raises(ValueError, match="month must be YYYY-MM"):
+        analyse_client(simulated(2).record, "November", SETTINGS)
+
+
+def test_no_skinfolds_uses_rough_bmi_estimate() -> None:
+    sim = simulated(4)
+    rec = dataclasses.replace(sim.record, skinfolds=())
+    a = analyse_client(rec, sim.month, SETTINGS)
+    assert a.bodycomp == ()
+    assert a.bodyfat_fallback is not None and a.bodyfat_fallback.rough
+    assert any(p.observed_tdee_kcal.known for p in a.phases)
+
+
+def test_unknown_sex_still_gives_trend_and_balance() -> None:
+    sim = simulated(4)
+    a = analyse_client(with_client(sim, sex=None), sim.month, SETTINGS)
+    assert a.trend is not None and a.resting_kcal == {}
+    assert "bodyfat-unknown" in a.notes
+    known = [p for p in a.phases if p.observed_tdee_kcal.known]
+    assert known  # 7700 kcal/kg simplification when fat mass is unknown
+    assert all(p.expected_tdee_kcal.reason == "no-resting-equation" for p in known)
+
+
+def test_deterministic() -> None:
+    sim = simulated(8)
+    a = analyse_client(sim.record, sim.month, SETTINGS)
+    b = analyse_client(sim.record, sim.month, SETTINGS)
+    assert a.phases == b.phases
+    assert a.projection is not None and b.projection is not None
+    assert np.array_equal(a.projection.low_kg, b.projection.low_kg)
+    assert math.isclose(a.trend.noise_sd_kg, b.trend.noise_sd_kg)  # type: ignore[union-attr]
