@@ -1,0 +1,105 @@
+"""Reading a month folder written by the batch: manifest, roster and the report files."""
+
+from __future__ import annotations
+
+import json
+import re
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from reportgen.manifest import MANIFEST_NAME
+
+_MONTH = re.compile(r"^\d{4}-(0[1-9]|1[0-2])$")
+
+
+class DeliveryError(ValueError):
+    """The month folder, configuration or options cannot be used (exit code 2)."""
+
+
+@dataclass(frozen=True)
+class ManifestFile:
+    path: Path  # absolute, inside the month folder
+    sha256: str
+
+
+@dataclass(frozen=True)
+class ManifestClient:
+    client_id: str
+    status: str
+    name: str
+    files: dict[str, ManifestFile]  # "report", "practitioner"
+
+
+@dataclass(frozen=True)
+class Manifest:
+    month: str
+    book: Path
+    config_file: Path | None
+    config: dict[str, Any]
+    clients: dict[str, ManifestClient]
+
+
+def read_manifest(month_dir: Path) -> Manifest:
+    """Parse ``manifest.json``; every problem is a :class:`DeliveryError` naming what to do."""
+    path = month_dir / MANIFEST_NAME
+    try:
+        data = json.loads(path.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise DeliveryError(
+            f"{month_dir} has no {MANIFEST_NAME}; give the month folder written by "
+            "'reportgen batch' (OUT/YYYY-MM)"
+        ) from None
+    except (OSError, UnicodeDecodeError, json.JSONDecodeError) as exc:
+        raise DeliveryError(f"{path}: cannot read the manifest ({exc})") from None
+    if not isinstance(data, dict) or data.get("tool") != "reportgen":
+        raise DeliveryError(f"{path} is not a reportgen manifest")
+    month = data.get("month")
+    if not isinstance(month, str) or not _MONTH.match(month):
+        raise DeliveryError(f"{path}: 'month' must be YYYY-MM, got {month!r}")
+    book = data.get("book")
+    if not isinstance(book, str) or not book:
+        raise DeliveryError(f"{path}: 'book' is missing")
+    clients_raw = data.get("clients")
+    if not isinstance(clients_raw, dict):
+        raise DeliveryError(f"{path}: 'clients' is missing")
+    root = month_dir.resolve()
+    clients: dict[str, ManifestClient] = {}
+    for cid, entry in clients_raw.items():
+        if not isinstance(entry, dict):
+            raise DeliveryError(f"{path}: client {cid!r} is not an entry")
+        files: dict[str, ManifestFile] = {}
+        for kind, f in (entry.get("files") or {}).items():
+            try:
+                rel, digest = f["path"], f["sha256"]
+            except (TypeError, KeyError):
+                raise DeliveryError(
+                    f"{path}: client {cid!r} file {kind!r} lacks path or sha256"
+                ) from None
+            target = (root / rel).resolve()
+            if root not in target.parents:
+                raise DeliveryError(f"{path}: client {cid!r} file {rel!r} is outside {month_dir}")
+            files[kind] = ManifestFile(target, str(digest))
+        clients[str(cid)] = ManifestClient(
+            client_id=str(cid),
+            status=str(entry.get("status", "")),
+            name=str(entry.get("name") or cid),
+            files=files,
+        )
+    cfg_file = data.get("config_file")
+    return Manifest(
+        month=month,
+        book=Path(book),
+        config_file=Path(cfg_file) if isinstance(cfg_file, str) and cfg_file else None,
+        config=data.get("config") if isinstance(data.get("config"), dict) else {},
+        clients=clients,
+    )
+
+
+def extra_value(extra: dict[str, str], column: str) -> str:
+    """A roster extra column's value, matching the column name as the readers do."""
+    want = column.strip().lower()
+    for key, value in extra.items():
+        if key.strip().lower() == want:
+            return (value or "").strip()
+    return ""
