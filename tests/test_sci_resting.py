@@ -169,3 +169,42 @@ def test_resting_increases_with_weight(w: float, h: float, a: float, sex: str) -
     for code in lo:
         assert hi[code] > lo[code]
         assert 500.0 < lo[code] < 5000.0
+
+
+@given(
+    w=st.floats(min_value=35.0, max_value=250.0),
+    h=st.floats(min_value=140.0, max_value=210.0),
+    a=st.floats(min_value=19.0, max_value=78.0),
+    sex=st.sampled_from(["male", "female"]),
+)
+def test_mifflin_matches_unified_form(w: float, h: float, a: float, sex: str) -> None:
+    # Mifflin 1990 abstract (published): 9.99 W + 6.25 H - 4.92 A + 166 sex - 161 (sex = 1
+    # men).  The rounded clinical form differs only by 0.01 W and 0.08 A.
+    unified = 9.99 * w + 6.25 * h - 4.92 * a + 166.0 * (sex == "male") - 161.0
+    ours = resting_kcal_mifflin_st_jeor(sex, w, h, a)  # type: ignore[arg-type]
+    assert abs(ours - unified) <= 0.01 * w + 0.08 * a + 1e-9
+
+
+@pytest.mark.parametrize(
+    ("sex", "age", "mj_slope", "mj_intercept"),
+    # Schofield in MJ/day.  Men 18-30 (0.063 W + 2.896): published, the second source the
+    # notes name (§3).  The other rows: from memory (unverified); they agree with the
+    # published kcal coefficients, which is itself a cross-check of both.
+    [
+        ("male", 25, 0.063, 2.896),
+        ("male", 45, 0.048, 3.653),
+        ("male", 65, 0.049, 2.459),
+        ("female", 25, 0.062, 2.036),
+        ("female", 45, 0.034, 3.538),
+        ("female", 65, 0.038, 2.755),
+    ],
+)
+def test_schofield_kcal_matches_mj_form(
+    sex: str, age: int, mj_slope: float, mj_intercept: float
+) -> None:
+    # MJ coefficients are printed to 3 decimals: ±0.0005 MJ/kg is ±0.12 kcal/kg.
+    one = resting_kcal_schofield(sex, 1.0, age)  # type: ignore[arg-type]
+    slope = resting_kcal_schofield(sex, 2.0, age) - one  # type: ignore[arg-type]
+    intercept = one - slope
+    assert slope == pytest.approx(mj_slope / 0.004184, abs=0.12)
+    assert intercept == pytest.approx(mj_intercept / 0.004184, abs=0.15)
