@@ -18,6 +18,8 @@ from __future__ import annotations
 
 import contextlib
 import datetime as dt
+import functools
+import inspect
 import multiprocessing
 import os
 import re
@@ -53,6 +55,7 @@ from reportgen.report import (
     render_practitioner_summary,
 )
 from reportgen.report.overview_model import OverviewLine
+from reportgen.results import ClientAnalysis
 from reportgen.summary import SummaryRow, month_bounds, summary_csv, summary_rows
 
 OVERVIEW_NAME = "overview.pdf"
@@ -220,12 +223,11 @@ def process_client(task: ClientTask) -> ClientOutcome:
         t2 = time.perf_counter()
         timings["analyse"] = t2 - t1
 
-        report_pdf = render_client_report(analysis, task.config)
-        t3 = time.perf_counter()
-        timings["report"] = t3 - t2
-        practitioner_pdf = render_practitioner_summary(analysis, task.config)
+        report_pdf = _render(render_client_report, analysis, task.config, timings, "report")
+        practitioner_pdf = _render(
+            render_practitioner_summary, analysis, task.config, timings, "practitioner"
+        )
         t4 = time.perf_counter()
-        timings["practitioner"] = t4 - t3
 
         rows = tuple(summary_rows(analysis))
         line = make_overview_line(analysis)
@@ -257,6 +259,36 @@ def process_client(task: ClientTask) -> ClientOutcome:
         peak_rss_mb=_peak_rss_mb(),
         pid=os.getpid(),
     )
+
+
+@functools.cache
+def _takes_timing(fn: Callable[..., bytes]) -> bool:
+    try:
+        return "timing" in inspect.signature(fn).parameters
+    except (TypeError, ValueError):  # pragma: no cover - builtins
+        return False
+
+
+def _render(
+    fn: Callable[..., bytes],
+    analysis: ClientAnalysis,
+    config: Config,
+    timings: dict[str, float],
+    key: str,
+) -> bytes:
+    """Call a renderer; where it reports its chart and layout time, keep the split too."""
+    t0 = time.perf_counter()
+    if _takes_timing(fn):
+        from reportgen.report.client import Timing
+
+        timing = Timing()
+        data = fn(analysis, config, timing=timing)
+        timings[f"{key}_charts"] = timing.charts_s
+        timings[f"{key}_layout"] = timing.layout_s
+    else:
+        data = fn(analysis, config)
+    timings[key] = time.perf_counter() - t0
+    return data
 
 
 def _lost_outcome(task: ClientTask, why: str, tb: str | None = None) -> ClientOutcome:
