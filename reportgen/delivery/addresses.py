@@ -16,7 +16,7 @@ from email.headerregistry import Address
 _ATEXT = r"[A-Za-z0-9!#$%&'*+/=?^_`{|}~-]+"
 _LABEL = r"[A-Za-z0-9](?:[A-Za-z0-9-]{0,61}[A-Za-z0-9])?"
 _ADDR_SPEC = re.compile(
-    rf"^(?P<local>{_ATEXT}(?:\.{_ATEXT})*)@(?P<domain>(?:{_LABEL}\.)+(?:[A-Za-z]{{2,63}}|xn--[A-Za-z0-9-]{{1,59}}))$"
+    rf"^(?P<local>{_ATEXT}(?:\.{_ATEXT})*)@(?P<domain>(?:{_LABEL}\.)+(?:[A-Za-z]{{2,63}}|(?i:xn--)[A-Za-z0-9-]{{1,59}}))$"
 )
 MAX_ADDRESS_LEN = 254  # RFC 5321 4.5.3.1.3 path limit minus the angle brackets
 MAX_LOCAL_LEN = 64  # RFC 5321 4.5.3.1.1
