@@ -171,3 +171,11 @@ def test_partition_properties(fat: float, frac: float) -> None:
 def test_energy_density_rises_with_fat(f1: float, f2: float) -> None:
     lo, hi = sorted([f1, f2])
     assert energy_density_kcal_per_kg(lo) <= energy_density_kcal_per_kg(hi)
+
+
+@pytest.mark.parametrize("bad", [None, "20", True])
+def test_non_numbers_refused_with_value_error(bad: object) -> None:
+    with pytest.raises(ValueError, match="fat_mass_kg must be a positive number"):
+        energy_density_kcal_per_kg(bad)  # type: ignore[arg-type]
+    with pytest.raises(ValueError, match="delta_weight_kg must be a finite number"):
+        partition_weight_change_hall(20.0, bad)  # type: ignore[arg-type]

@@ -208,3 +208,11 @@ def test_schofield_kcal_matches_mj_form(
     intercept = one - slope
     assert slope == pytest.approx(mj_slope / 0.004184, abs=0.12)
     assert intercept == pytest.approx(mj_intercept / 0.004184, abs=0.15)
+
+
+@pytest.mark.parametrize("bad", [None, "80", False])
+def test_non_numbers_refused_with_value_error(bad: object) -> None:
+    with pytest.raises(ValueError, match="weight_kg must be a positive number"):
+        resting_kcal_all("male", bad, 180.0, 30.0)  # type: ignore[arg-type]
+    with pytest.raises(ValueError, match="lean_mass_kg must be a positive number"):
+        resting_kcal_katch_mcardle(bad)  # type: ignore[arg-type]

@@ -474,3 +474,21 @@ def test_tem_errors() -> None:
         technical_error_of_measurement_mm([(1.0, 2.0, 3.0)])
     with pytest.raises(ValueError, match="readings must be positive numbers of mm"):
         technical_error_of_measurement_pct([(10.0, math.nan)])
+
+
+@pytest.mark.parametrize("bad", [None, "12", True, math.inf])
+def test_non_numbers_refused_with_value_error(bad: object) -> None:
+    # None or text from an upstream gap must fail as a clear ValueError, never a TypeError.
+    with pytest.raises(ValueError, match="age_years must be a non-negative number"):
+        estimate_body_fat("male", bad, spread(SITES_3_MEN, 30.0))  # type: ignore[arg-type]
+    with pytest.raises(ValueError, match="sum of skinfolds must be a positive number"):
+        body_density_jackson_pollock_3(bad, 30)  # type: ignore[arg-type]
+    with pytest.raises(ValueError, match="bmi_kg_m2 must be a positive number"):
+        body_fat_pct_deurenberg_1991(bad, 30, "female")  # type: ignore[arg-type]
+
+
+def test_non_numeric_site_refused() -> None:
+    with pytest.raises(ValueError, match="skinfold 'thigh' must be a positive number of mm"):
+        estimate_body_fat("male", 30, {"chest": 10.0, "abdominal": 10.0, "thigh": None})  # type: ignore[dict-item]
+    with pytest.raises(ValueError, match="skinfold 'thigh' must be a positive number of mm"):
+        estimate_body_fat("male", 30, {"chest": 10.0, "abdominal": 10.0, "thigh": "x"})  # type: ignore[dict-item]

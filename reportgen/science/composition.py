@@ -30,6 +30,7 @@ import math
 import numpy as np
 from scipy.special import lambertw
 
+from reportgen.science._checks import finite
 from reportgen.science.units import KG_PER_LB
 
 # Hall 2008 [1]: 39.5 MJ/kg fat (published); Hall 2011 rounds it to 9440 kcal/kg.
@@ -46,7 +47,7 @@ ENERGY_PARTITION_C_KG = FORBES_C_KG * RHO_LEAN_KCAL_PER_KG / RHO_FAT_KCAL_PER_KG
 
 
 def _check_fat_mass(fat_mass_kg: float) -> None:
-    if not math.isfinite(fat_mass_kg) or fat_mass_kg <= 0:
+    if not finite(fat_mass_kg) or fat_mass_kg <= 0:
         raise ValueError(f"fat_mass_kg must be a positive number, got {fat_mass_kg!r}")
 
 
@@ -124,7 +125,7 @@ def partition_weight_change_hall(fat_mass_kg: float, delta_weight_kg: float) -> 
        doi:10.1017/S0007114507691946
     """
     _check_fat_mass(fat_mass_kg)
-    if not math.isfinite(delta_weight_kg):
+    if not finite(delta_weight_kg):
         raise ValueError(f"delta_weight_kg must be a finite number, got {delta_weight_kg!r}")
     if delta_weight_kg == 0.0:
         return 0.0, 0.0
@@ -214,9 +215,9 @@ def fat_and_lean_mass_kg(weight_kg: float, bodyfat_pct: float) -> tuple[float, f
     The two-compartment split.  ``bodyfat_pct`` is not limited to 0-100 here:
     an out-of-range estimate is the caller's to flag, never clamped silently.
     """
-    if not math.isfinite(weight_kg) or weight_kg <= 0:
+    if not finite(weight_kg) or weight_kg <= 0:
         raise ValueError(f"weight_kg must be a positive number, got {weight_kg!r}")
-    if not math.isfinite(bodyfat_pct):
+    if not finite(bodyfat_pct):
         raise ValueError(f"bodyfat_pct must be a finite number, got {bodyfat_pct!r}")
     fat = weight_kg * bodyfat_pct / 100.0
     return fat, weight_kg - fat

@@ -25,7 +25,7 @@ References
 
 from __future__ import annotations
 
-import math
+from reportgen.science._checks import finite
 
 # Siri 1961: fat 0.900 g/ml, fat-free mass 1.100 g/ml -> %BF = 495/Db - 450 (published [3]).
 SIRI_A = 495.0
@@ -59,7 +59,7 @@ _COEFFS = {"siri": (SIRI_A, SIRI_B), "brozek": (BROZEK_A, BROZEK_B)}
 
 
 def _check_density(density_g_ml: float) -> None:
-    if not math.isfinite(density_g_ml) or density_g_ml <= 0:
+    if not finite(density_g_ml) or density_g_ml <= 0:
         raise ValueError(f"density_g_ml must be a positive number, got {density_g_ml!r}")
 
 
@@ -180,7 +180,7 @@ def body_fat_se_pct(density_g_ml: float, density_se_g_ml: float, conversion: str
     _check_density(density_g_ml)
     if conversion not in _COEFFS:
         raise ValueError(f"unknown density conversion {conversion!r}; use one of: siri, brozek")
-    if not math.isfinite(density_se_g_ml) or density_se_g_ml < 0:
+    if not finite(density_se_g_ml) or density_se_g_ml < 0:
         raise ValueError(f"density_se_g_ml must be a non-negative number, got {density_se_g_ml!r}")
     a, _ = _COEFFS[conversion]
     return a / density_g_ml**2 * density_se_g_ml

@@ -21,10 +21,9 @@ estimate behind it.
 
 from __future__ import annotations
 
-import math
-
 from reportgen.io.model import Sex
 from reportgen.results import MethodUsed
+from reportgen.science._checks import finite
 
 # Mifflin et al. 1990: 10 W + 6.25 H - 5 A + 5 (men) / - 161 (women) (published, abstract).
 MSJ = (10.0, 6.25, 5.0)
@@ -108,7 +107,7 @@ RESTING_METHODS: dict[str, MethodUsed] = {
 
 
 def _positive(name: str, value: float) -> None:
-    if not math.isfinite(value) or value <= 0:
+    if not finite(value) or value <= 0:
         raise ValueError(f"{name} must be a positive number, got {value!r}")
 
 
@@ -324,7 +323,7 @@ def resting_kcal_cunningham_1980(lean_mass_kg: float) -> float:
 
 def _schofield_row(sex: Sex, age_years: float) -> tuple[int, float, float, float]:
     s = _sex(sex)
-    if not math.isfinite(age_years) or age_years < 18:
+    if not finite(age_years) or age_years < 18:
         raise ValueError(f"Schofield adult equations need age_years >= 18, got {age_years!r}")
     rows = SCHOFIELD_MEN if s == "male" else SCHOFIELD_WOMEN
     chosen = rows[0]

@@ -37,6 +37,7 @@ from dataclasses import dataclass
 
 from reportgen.io.model import Sex
 from reportgen.results import MethodUsed
+from reportgen.science._checks import finite
 from reportgen.science.density import (
     CONVERSION_NAMES,
     CONVERSIONS,
@@ -174,12 +175,12 @@ class BodyFatEstimate:
 
 # ---------------------------------------------------------------------------
 def _check_sum(sum_mm: float) -> None:
-    if not math.isfinite(sum_mm) or sum_mm <= 0:
+    if not finite(sum_mm) or sum_mm <= 0:
         raise ValueError(f"sum of skinfolds must be a positive number of mm, got {sum_mm!r}")
 
 
 def _check_age(age_years: float) -> None:
-    if not math.isfinite(age_years) or age_years < 0:
+    if not finite(age_years) or age_years < 0:
         raise ValueError(f"age_years must be a non-negative number, got {age_years!r}")
 
 
@@ -428,10 +429,15 @@ def _sex_check(sex: object) -> Sex:
 def _present(sites_mm: Mapping[str, float]) -> dict[str, float]:
     out: dict[str, float] = {}
     for site, value in sites_mm.items():
-        v = float(value)
+        try:
+            v = float(value)
+        except (TypeError, ValueError):
+            raise ValueError(
+                f"skinfold {site!r} must be a positive number of mm, got {value!r}"
+            ) from None
         if math.isnan(v):
             continue  # a site not measured this session
-        if not math.isfinite(v) or v <= 0:
+        if not finite(v) or v <= 0:
             raise ValueError(f"skinfold {site!r} must be a positive number of mm, got {value!r}")
         out[site] = v
     return out
@@ -693,7 +699,7 @@ def body_fat_pct_deurenberg_1991(bmi_kg_m2: float, age_years: float, sex: Sex) -
     """
     sex = _sex_check(sex)
     _check_age(age_years)
-    if not math.isfinite(bmi_kg_m2) or bmi_kg_m2 <= 0:
+    if not finite(bmi_kg_m2) or bmi_kg_m2 <= 0:
         raise ValueError(f"bmi_kg_m2 must be a positive number, got {bmi_kg_m2!r}")
     a, b, c, d = DEURENBERG_1991
     return a * bmi_kg_m2 + b * age_years - c * (1.0 if sex == "male" else 0.0) - d
@@ -791,7 +797,7 @@ def _pair_list(pairs: Iterable[Sequence[float]]) -> list[tuple[float, float]]:
         if len(p) != 2:
             raise ValueError(f"each pair must hold two readings, got {p!r}")
         a, b = float(p[0]), float(p[1])
-        if not (math.isfinite(a) and math.isfinite(b)) or a <= 0 or b <= 0:
+        if not (finite(a) and finite(b)) or a <= 0 or b <= 0:
             raise ValueError(f"readings must be positive numbers of mm, got {p!r}")
         out.append((a, b))
     if not out:

@@ -22,10 +22,10 @@ References
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 import numpy.typing as npt
+
+from reportgen.science._checks import finite
 
 KG_PER_LB = 0.45359237  # exact, 1959 international pound
 KJ_PER_KCAL = 4.184  # exact, thermochemical calorie
@@ -183,11 +183,7 @@ def bmi_kg_m2(weight_kg: float, height_cm: float) -> float:
     ValueError
         If either input is not a positive number.
     """
-    if (
-        not (math.isfinite(weight_kg) and math.isfinite(height_cm))
-        or weight_kg <= 0
-        or height_cm <= 0
-    ):
+    if not (finite(weight_kg) and finite(height_cm)) or weight_kg <= 0 or height_cm <= 0:
         raise ValueError(
             f"weight_kg and height_cm must be positive, got {weight_kg!r} and {height_cm!r}"
         )
