@@ -485,7 +485,8 @@ def _send_all(
                 break
         failed = result.outcome == "failed-temporary"
         consecutive_failures = consecutive_failures + 1 if failed else 0
-        emit(Row(cid, item.kind, item.address, result.outcome, result.reply))
+        detail = result.reply if attempt == 0 else f"{result.reply} (after {attempt + 1} tries)"
+        emit(Row(cid, item.kind, item.address, result.outcome, detail))
     return stop_reason
 
 

@@ -41,7 +41,8 @@ def print_summary(report: SendReport) -> None:
     table = Table(title=title, show_lines=False)
     for col in ("client", "kind", "address", "result", "detail"):
         table.add_column(col, overflow="fold")
-    for row in report.rows:
+    order = {"report": 0, "practitioner": 1}
+    for row in sorted(report.rows, key=lambda r: (r.client, order.get(r.kind, 2))):
         style = _STYLE.get(row.result, "red" if row.counts else "dim")
         table.add_row(row.client, row.kind, row.address or "-", row.result, row.detail, style=style)
     console.print(table)
