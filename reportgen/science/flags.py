@@ -56,6 +56,7 @@ from dataclasses import dataclass
 
 from reportgen.io.model import Sex
 from reportgen.results import Flag, FlagSeverity
+from reportgen.science._checks import finite
 
 FLAG_CODES = (
     "pregnant",
@@ -121,7 +122,7 @@ class FlagInputs:
 
 def _value(x: float | None) -> float | None:
     """A known number, or None for missing/NaN."""
-    if x is None or not math.isfinite(x):
+    if not finite(x):
         return None
     return float(x)
 

@@ -193,8 +193,9 @@ def resting_kcal_harris_benedict_1919(
 
     Notes
     -----
-    Fitted on 136 men and 103 women early in the 20th century [1]_; Mifflin
-    et al. 1990 found it overestimates measured REE by about 5 %.
+    Fitted on 136 men and 103 women early in the 20th century [1]_ (sample
+    sizes from memory); Mifflin et al. 1990 found it overestimates measured
+    REE by about 5 % (published, abstract).
 
     References
     ----------
@@ -359,8 +360,9 @@ def resting_kcal_schofield(sex: Sex, weight_kg: float, age_years: float) -> floa
     -----
     Men: 15.057 W + 692.2 (SEE 153), 11.472 W + 873.1 (167), 11.711 W + 587.7
     (164).  Women: 14.818 W + 486.6 (119), 8.126 W + 845.6 (111), 9.082 W +
-    658.5 (108) [1]_.  Compiled from about 11,000 BMR measurements, many from
-    young Italian men, so it tends to overestimate in some populations.
+    658.5 (108) [1]_.  Compiled from several thousand BMR measurements, a large
+    share from young Italian men, so it tends to overestimate in some
+    populations (sample description from memory).
 
     References
     ----------

@@ -685,9 +685,9 @@ def body_fat_pct_deurenberg_1991(bmi_kg_m2: float, age_years: float, sex: Sex) -
 
     Notes
     -----
-    Adult equation from 1229 Dutch adults and children with density by
-    underwater weighing; SEE about 4 %BF [1]_.  Coefficients and SEE from
-    memory (unverified).  It cannot tell muscle from fat: it overestimates fat
+    Adult equation from Dutch adults and children with density by underwater
+    weighing; SEE about 4 %BF [1]_.  Coefficients, SEE and sample from memory
+    (unverified).  It cannot tell muscle from fat: it overestimates fat
     in muscular clients and is a rough estimate only, for clients without
     skinfolds.
 
