@@ -1,0 +1,623 @@
+"""The five client charts, drawn with matplotlib's object API into small vector PDFs.
+
+Speed and reproducibility choices (measured, see the engineering notes): a fresh ``Figure``
+per chart with an Agg canvas (never pyplot, so nothing lingers), fixed margins instead of a
+layout engine, every daily series as one artist, few hand-placed ticks, and PDF output with
+no creation date and TrueType (Type 42) fonts so text stays selectable and the bytes repeat.
+
+Each function returns the chart's PDF bytes, or ``None`` when there is nothing to draw (the
+layout then prints one line saying what to log).  Axis labels and legend entries come from
+the template label table; units are converted here for display only.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import hashlib
+import io
+import os
+import tempfile
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+from functools import cache
+from pathlib import Path
+
+import matplotlib
+import numpy as np
+from matplotlib.axes import Axes
+from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.figure import Figure
+
+from reportgen.resources import font_path
+from reportgen.results import ClientAnalysis, PhaseResult
+
+from . import theme as T
+from .units import Units
+
+MM = 1 / 25.4  # inches per mm
+PT = 72.0
+
+
+CHART_FONT_FAMILY = "Reportgen Chart Sans"
+
+
+def _chart_font_file() -> Path:
+    """A reduced copy of DejaVu Sans for charts, renamed, cached on disk.
+
+    matplotlib subsets the font for every chart PDF (Type 42 embedding), and fontTools spent
+    about two thirds of all chart time decompiling DejaVu's large GPOS/GSUB tables (which
+    matplotlib never uses: it kerns from the ``kern`` table) and its 6,000-glyph tables.  A
+    copy without layout tables and limited to the scripts above subsets several times faster,
+    with identical outlines and metrics.  Modified copies must carry another name (Bitstream
+    Vera licence), hence the family name.
+    """
+    src = font_path()
+    recipe = f"{src}:{src.stat().st_size}:{FONT_TABLES_DROPPED}:{CHART_FONT_RANGES}"
+    stamp = hashlib.sha256(recipe.encode())
+    folder = (
+        Path(tempfile.gettempdir()) / f"reportgen-{os.getuid() if hasattr(os, 'getuid') else 0}"
+    )
+    target = folder / f"chart-sans-{stamp.hexdigest()[:16]}.ttf"
+    if target.is_file():
+        return target
+    from fontTools import subset
+
+    options = subset.Options()
+    options.layout_features = []
+    options.drop_tables += list(FONT_TABLES_DROPPED)
+    options.name_IDs = ["*"]
+    options.notdef_outline = True
+    font = subset.load_font(str(src), options)
+    subsetter = subset.Subsetter(options=options)
+    subsetter.populate(unicodes=[c for lo, hi in CHART_FONT_RANGES for c in range(lo, hi + 1)])
+    subsetter.subset(font)
+    font["post"].formatType = 3.0  # no glyph names: matplotlib embeds by glyph index
+    for rec in font["name"].names:
+        if rec.nameID in (1, 4, 16):
+            rec.string = CHART_FONT_FAMILY
+        elif rec.nameID == 6:
+            rec.string = CHART_FONT_FAMILY.replace(" ", "")
+    folder.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
+    with os.fdopen(fd, "wb") as fh:
+        font.save(fh)
+    os.replace(tmp, target)  # atomic: concurrent workers never see half a file
+    return target
+
+
+FONT_TABLES_DROPPED = ("GPOS", "GSUB", "GDEF", "MATH", "FFTM")
+# Scripts kept for chart text (labels from templates, phase names from the book): Latin with
+# all extensions (incl. Vietnamese), Greek, Cyrillic, punctuation, currency, arrows, maths.
+CHART_FONT_RANGES = (
+    (0x0020, 0x024F),
+    (0x0250, 0x02FF),
+    (0x0300, 0x036F),
+    (0x0370, 0x03FF),
+    (0x0400, 0x052F),
+    (0x1E00, 0x1EFF),
+    (0x2000, 0x206F),
+    (0x2070, 0x209F),
+    (0x20A0, 0x20CF),
+    (0x2100, 0x214F),
+    (0x2150, 0x218F),
+    (0x2190, 0x21FF),
+    (0x2200, 0x22FF),
+    (0x25A0, 0x25FF),
+)
+
+
+@cache
+def _setup() -> None:
+    from matplotlib import font_manager
+
+    font_manager.fontManager.addfont(str(_chart_font_file()))
+    matplotlib.rcParams.update(
+        {
+            "pdf.fonttype": 42,
+            "pdf.compression": 6,
+            "font.family": CHART_FONT_FAMILY,
+            "font.size": 6.5,
+            "axes.linewidth": 0.5,
+            "axes.edgecolor": T.MUTED,
+            "axes.labelcolor": T.MUTED,
+            "axes.labelsize": 6.5,
+            "axes.spines.top": False,
+            "axes.spines.right": False,
+            "xtick.color": T.MUTED,
+            "ytick.color": T.MUTED,
+            "xtick.labelsize": 6.0,
+            "ytick.labelsize": 6.0,
+            "xtick.major.width": 0.5,
+            "ytick.major.width": 0.5,
+            "xtick.major.size": 2.5,
+            "ytick.major.size": 2.5,
+            "legend.fontsize": 6.0,
+            "legend.frameon": False,
+            "path.simplify": True,
+            "svg.hashsalt": "reportgen",
+        }
+    )
+
+
+@dataclass(frozen=True)
+class ChartContext:
+    """What every chart needs besides its data."""
+
+    units: Units
+    labels: Mapping[str, str]
+    accent: str
+    width_mm: float
+    start: dt.date  # first day on the time axis
+    end: dt.date  # last day (the report month's end)
+
+
+def day_numbers(dates: np.ndarray) -> np.ndarray:
+    return dates.astype("datetime64[D]").astype(np.int64).astype(np.float64)
+
+
+def _day(d: dt.date) -> float:
+    return float(np.datetime64(d, "D").astype(np.int64))
+
+
+def rolling_mean(values: np.ndarray, window: int = 7, min_count: int = 3) -> np.ndarray:
+    """Trailing mean over ``window`` days ignoring NaN; NaN with fewer than ``min_count`` values."""
+    ok = np.isfinite(values)
+    v = np.where(ok, values, 0.0)
+    cs = np.concatenate(([0.0], np.cumsum(v)))
+    cn = np.concatenate(([0], np.cumsum(ok)))
+    idx = np.arange(1, len(values) + 1)
+    lo = np.maximum(idx - window, 0)
+    s = cs[idx] - cs[lo]
+    n = cn[idx] - cn[lo]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        out = np.where(n >= min_count, s / np.maximum(n, 1), np.nan)
+    return out
+
+
+def _figure(ctx: ChartContext, height_mm: float, margins: tuple[float, float, float, float]):
+    """A figure of the box size with fixed margins (left, right, bottom, top) in mm."""
+    _setup()
+    w, h = ctx.width_mm * MM, height_mm * MM
+    fig = Figure(figsize=(w, h), dpi=100)
+    FigureCanvasAgg(fig)
+    left, right, bottom, top = margins
+    fig.subplots_adjust(
+        left=left / ctx.width_mm,
+        right=1 - right / ctx.width_mm,
+        bottom=bottom / height_mm,
+        top=1 - top / height_mm,
+        hspace=0.18,
+        wspace=0.35,
+    )
+    return fig
+
+
+def _save(fig: Figure) -> bytes:
+    buf = io.BytesIO()
+    fig.savefig(
+        buf, format="pdf", metadata={"CreationDate": None, "Creator": None, "Producer": None}
+    )
+    return buf.getvalue()
+
+
+def _time_ticks(ax: Axes, start: dt.date, end: dt.date, units: Units, *, label: bool = True):
+    span = (end - start).days
+    ticks: list[float] = []
+    names: list[str] = []
+    if span > 70:
+        d = dt.date(start.year, start.month, 1)
+        if d < start:
+            d = dt.date(d.year + (d.month == 12), d.month % 12 + 1, 1)
+        step = 1 if span <= 240 else 2
+        while d <= end:
+            ticks.append(_day(d))
+            names.append(
+                d.strftime("%b %Y") if d.month == 1 or not ticks[:-1] else d.strftime("%b")
+            )
+            m = d.month - 1 + step
+            d = dt.date(d.year + m // 12, m % 12 + 1, 1)
+    else:
+        d = start + dt.timedelta(days=(7 - start.weekday()) % 7)
+        step = 7 if span <= 42 else 14
+        while d <= end:
+            ticks.append(_day(d))
+            names.append(f"{d.day} {d.strftime('%b')}")
+            d += dt.timedelta(days=step)
+    ax.set_xticks(ticks)
+    ax.set_xticklabels(names if label else [])
+    ax.set_xlim(_day(start) - 0.5, _day(end) + 0.5)
+
+
+def _y_ticks(ax: Axes, lo: float, hi: float, n: int = 4, min_span: float = 0.0) -> None:
+    """Few round ticks over [lo, hi] (at least ``min_span`` wide) with a little headroom."""
+    if not np.isfinite(lo) or not np.isfinite(hi):
+        return
+    if hi - lo < max(min_span, 1e-9):
+        mid, half = (hi + lo) / 2, max(min_span, 2.0) / 2
+        lo, hi = mid - half, mid + half
+    raw = (hi - lo) / n
+    mag = 10 ** np.floor(np.log10(raw))
+    step = min((s * mag for s in (1, 2, 2.5, 5, 10) if s * mag >= raw), default=10 * mag)
+    first = np.floor(lo / step) * step
+    ticks = np.arange(first, hi + step * 0.999, step)
+    pad = (hi - lo) * 0.06
+    ax.set_ylim(min(lo - pad, ticks[0]), max(hi + pad, ticks[-1]))
+    ax.set_yticks(ticks)
+    dp = 0 if step >= 1 else (1 if step >= 0.1 else 2)
+    ax.set_yticklabels([f"{t:,.{dp}f}".replace("-", "\u2212") for t in ticks])
+
+
+def _shade_phases(ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *, names: bool):
+    x0, x1 = _day(ctx.start), _day(ctx.end)
+    for i, p in enumerate(phases):
+        a, b = max(_day(p.start), x0), min(_day(p.window_end), x1)
+        if b < a:
+            continue
+        ax.axvspan(a - 0.5, b + 0.5, color=T.PHASE_FILLS[i % 2], lw=0, zorder=0)
+        if names and (b - a) / max(x1 - x0, 1) > 0.08:
+            name = p.name if len(p.name) <= 22 else p.name[:21] + "…"
+            ax.text(
+                a + 1,
+                0.97,
+                name,
+                transform=ax.get_xaxis_transform(),
+                va="top",
+                ha="left",
+                fontsize=5.8,
+                color=T.MUTED,
+                zorder=5,
+                clip_on=True,
+            )
+
+
+def _grid(ax: Axes) -> None:
+    ax.grid(axis="y", color=T.RULE, lw=0.4)
+    ax.set_axisbelow(True)
+
+
+def _legend(ax: Axes, ncol: int) -> None:
+    ax.legend(
+        loc="lower left",
+        bbox_to_anchor=(0.0, 1.0),
+        ncol=ncol,
+        borderaxespad=0.2,
+        handlelength=1.8,
+        columnspacing=1.4,
+        handletextpad=0.5,
+    )
+
+
+def _window(a: ClientAnalysis, dates: np.ndarray, ctx: ChartContext) -> np.ndarray:
+    x = day_numbers(dates)
+    return (x >= _day(ctx.start)) & (x <= _day(ctx.end))
+
+
+# ---------------------------------------------------------------------------------------------
+def weight_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 78) -> bytes | None:
+    log, u, L = a.log, ctx.units, ctx.labels
+    sel = _window(a, log.dates, ctx)
+    w = log.weight_kg[sel]
+    if not np.isfinite(w).any():
+        return None
+    x = day_numbers(log.dates[sel])
+    out = log.weight_outlier[sel]
+    fig = _figure(ctx, height_mm, (14, 3, 8, 9))
+    ax = fig.add_subplot()
+    _shade_phases(ax, a.phases, ctx, names=True)
+    _grid(ax)
+    used = np.where(out, np.nan, w)
+    lo_all, hi_all = np.nanmin(w), np.nanmax(w)
+    ax.plot(
+        x,
+        u.weight(used),
+        ls="none",
+        marker="o",
+        ms=2.0,
+        mew=0,
+        color=T.POINTS,
+        label=L["weighins"],
+        zorder=3,
+    )
+    if a.trend is not None and len(a.trend.dates):
+        tsel = _window(a, a.trend.dates, ctx)
+        xt = day_numbers(a.trend.dates[tsel])
+        lo, hi = a.trend.level_low_kg[tsel], a.trend.level_high_kg[tsel]
+        ax.fill_between(
+            xt,
+            u.weight(lo),
+            u.weight(hi),
+            color=ctx.accent,
+            alpha=0.2,
+            lw=0,
+            label=L["band"],
+            zorder=2,
+        )
+        ax.plot(
+            xt,
+            u.weight(a.trend.level_kg[tsel]),
+            color=ctx.accent,
+            lw=1.5,
+            label=L["trend"],
+            zorder=4,
+        )
+        if np.isfinite(lo).any():
+            lo_all = min(lo_all, np.nanmin(lo))
+            hi_all = max(hi_all, np.nanmax(hi))
+    if out.any():
+        ax.plot(
+            x[out],
+            u.weight(w[out]),
+            ls="none",
+            marker="x",
+            ms=3.5,
+            mew=0.9,
+            color=T.OUTLIER,
+            label=L["outliers"],
+            zorder=5,
+        )
+    _y_ticks(ax, float(u.weight(lo_all)), float(u.weight(hi_all)), min_span=float(u.weight(2.0)))
+    ax.set_ylabel(u.weight_unit)
+    _time_ticks(ax, ctx.start, ctx.end, u)
+    _legend(ax, 4)
+    return _save(fig)
+
+
+def energy_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 66) -> bytes | None:
+    log, u, L = a.log, ctx.units, ctx.labels
+    sel = _window(a, log.dates, ctx)
+    intake = log.intake_kcal[sel]
+    have_tdee = a.expenditure is not None and len(a.expenditure.dates) > 0
+    if not np.isfinite(intake).any() and not have_tdee:
+        return None
+    x = day_numbers(log.dates[sel])
+    fig = _figure(ctx, height_mm, (14, 3, 8, 9))
+    ax = fig.add_subplot()
+    _shade_phases(ax, a.phases, ctx, names=True)
+    _grid(ax)
+    lo_all, hi_all = np.inf, -np.inf
+    mean = rolling_mean(intake)
+    if np.isfinite(intake).any():
+        ax.plot(
+            x,
+            u.energy(intake),
+            ls="none",
+            marker="o",
+            ms=1.8,
+            mew=0,
+            color=T.WARM,
+            alpha=0.45,
+            zorder=3,
+            label=L["intake_daily"],
+        )
+        ax.plot(x, u.energy(mean), color=T.WARM, lw=1.3, zorder=4, label=L["intake_mean"])
+        lo_all, hi_all = np.nanmin(intake), np.nanmax(intake)
+    if have_tdee and a.expenditure is not None:
+        e = a.expenditure
+        esel = _window(a, e.dates, ctx)
+        xe = day_numbers(e.dates[esel])
+        tdee = e.tdee_kcal[esel]
+        ax.fill_between(
+            xe,
+            u.energy(e.low_kcal[esel]),
+            u.energy(e.high_kcal[esel]),
+            color=ctx.accent,
+            alpha=0.16,
+            lw=0,
+            zorder=2,
+            label=L["tdee_band"],
+        )
+        ax.plot(xe, u.energy(tdee), color=ctx.accent, lw=1.5, zorder=5, label=L["tdee"])
+        # the deficit: the gap between expenditure and the weekly mean intake, where below
+        m = (
+            np.interp(xe, x, mean, left=np.nan, right=np.nan)
+            if len(x)
+            else np.full_like(xe, np.nan)
+        )
+        gap = np.isfinite(m) & np.isfinite(tdee) & (tdee > m)
+        if gap.any():
+            ax.fill_between(
+                xe,
+                u.energy(m),
+                u.energy(tdee),
+                where=gap,
+                color=T.SOFT_WARM,
+                lw=0,
+                zorder=1.5,
+                label=L["deficit_gap"],
+            )
+        if np.isfinite(e.low_kcal[esel]).any():
+            lo_all = min(lo_all, np.nanmin(e.low_kcal[esel]))
+            hi_all = max(hi_all, np.nanmax(e.high_kcal[esel]))
+    _y_ticks(ax, float(u.energy(lo_all)), float(u.energy(hi_all)), min_span=float(u.energy(600)))
+    ax.set_ylabel(u.energy_label)
+    _time_ticks(ax, ctx.start, ctx.end, u)
+    _legend(ax, 5)
+    return _save(fig)
+
+
+def signals_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -> bytes | None:
+    log, u, L = a.log, ctx.units, ctx.labels
+    sel = _window(a, log.dates, ctx)
+    series = [("steps", log.steps[sel]), ("hunger", log.hunger[sel]), ("energy", log.energy[sel])]
+    if not any(np.isfinite(v).any() for _, v in series):
+        return None
+    x = day_numbers(log.dates[sel])
+    baselines = {s.name: s.baseline for s in a.signals}
+    colours = {"steps": ctx.accent, "hunger": T.WARM, "energy": T.DEEP}
+    fig = _figure(ctx, height_mm, (14, 3, 7, 3))
+    axes = fig.subplots(3, 1, sharex=True)
+    for i, (ax, (name, v)) in enumerate(zip(axes, series, strict=True)):
+        _shade_phases(ax, a.phases, ctx, names=(i == 0))
+        _grid(ax)
+        ax.set_ylabel(L[f"signal_{name}"])
+        if not np.isfinite(v).any():
+            ax.set_yticks([])
+            ax.text(
+                0.5,
+                0.5,
+                L["signal_none"],
+                transform=ax.transAxes,
+                ha="center",
+                va="center",
+                fontsize=6.5,
+                color=T.MUTED,
+            )
+        else:
+            c = colours[name]
+            ax.plot(x, v, ls="none", marker="o", ms=1.6, mew=0, color=c, alpha=0.4, zorder=3)
+            ax.plot(x, rolling_mean(v), color=c, lw=1.3, zorder=4)
+            lo, hi = float(np.nanmin(v)), float(np.nanmax(v))
+            base = baselines.get(name)
+            if base is not None:
+                ax.axhline(base, color=T.INK, lw=0.8, ls=(0, (4, 2)), zorder=4)
+                ax.text(
+                    1.0,
+                    base,
+                    " " + L["baseline"],
+                    transform=ax.get_yaxis_transform(),
+                    fontsize=5.5,
+                    color=T.INK,
+                    va="bottom",
+                    ha="right",
+                    zorder=6,
+                )
+                lo, hi = min(lo, base), max(hi, base)
+            if name == "steps":
+                _y_ticks(ax, lo, hi, n=3)
+            else:
+                _y_ticks(ax, min(lo, 1.0), max(hi, 5.0), n=4)
+        _time_ticks(ax, ctx.start, ctx.end, u, label=(i == 2))
+    return _save(fig)
+
+
+def bodycomp_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) -> bytes | None:
+    sessions = [s for s in a.bodycomp if not s.rough]
+    if not sessions:
+        return None
+    u, L = ctx.units, ctx.labels
+    xs = np.array([_day(s.date) for s in sessions])
+    panels = [
+        (
+            L["fat_mass"],
+            np.array([u.weight(s.fat_mass_kg) for s in sessions]),
+            T.WARM,
+            u.weight_unit,
+            1,
+        ),
+        (
+            L["lean_mass"],
+            np.array([u.weight(s.lean_mass_kg) for s in sessions]),
+            ctx.accent,
+            u.weight_unit,
+            1,
+        ),
+        (
+            L["skinfold_sum"],
+            np.array([np.nan if s.sum_mm is None else s.sum_mm for s in sessions]),
+            T.DEEP,
+            "mm",
+            0,
+        ),
+    ]
+    fig = _figure(ctx, height_mm, (12, 3, 8, 6))
+    axes = fig.subplots(1, 3)
+    x0 = min(xs.min(), _day(ctx.start)) if len(xs) > 1 else xs.min() - 14
+    x1 = max(xs.max(), _day(ctx.end)) if len(xs) > 1 else xs.max() + 14
+    first = dt.date.fromordinal(int(x0) + dt.date(1970, 1, 1).toordinal())
+    last = dt.date.fromordinal(int(x1) + dt.date(1970, 1, 1).toordinal())
+    for ax, (title, y, c, unit, dp) in zip(axes, panels, strict=True):
+        _grid(ax)
+        ax.set_title(f"{title} ({unit})", fontsize=6.5, color=T.INK, loc="left", pad=3)
+        ok = np.isfinite(y)
+        if ok.any():
+            ax.plot(xs[ok], y[ok], color=c, lw=1.2, marker="o", ms=3.2, zorder=3)
+            for xi, yi in zip(xs[ok][[0, -1]], y[ok][[0, -1]], strict=True):
+                ax.annotate(
+                    f"{yi:.{dp}f}",
+                    (xi, yi),
+                    xytext=(0, 4),
+                    textcoords="offset points",
+                    ha="center",
+                    fontsize=5.8,
+                    color=T.INK,
+                )
+            _y_ticks(ax, float(np.nanmin(y)), float(np.nanmax(y)) * 1.0 + 0.001, n=3)
+            ymin, ymax = ax.get_ylim()
+            ax.set_ylim(ymin, ymax + (ymax - ymin) * 0.12)
+        else:
+            ax.set_yticks([])
+        _time_ticks(ax, first, last, u)
+        if len(ax.get_xticks()) > 3:
+            ax.set_xticks(ax.get_xticks()[::2])
+            ax.set_xticklabels([t.get_text() for t in ax.get_xticklabels()])
+    return _save(fig)
+
+
+def projection_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 58) -> bytes | None:
+    p = a.projection
+    if p is None or len(p.dates) == 0:
+        return None
+    u, L = ctx.units, ctx.labels
+    start = max(ctx.end - dt.timedelta(days=41), ctx.start)
+    end = dt.date.fromisoformat(str(p.dates[-1].astype("datetime64[D]")))
+    sub = ChartContext(u, L, ctx.accent, ctx.width_mm, start, end)
+    fig = _figure(sub, height_mm, (14, 3, 8, 9))
+    ax = fig.add_subplot()
+    _grid(ax)
+    xp = day_numbers(p.dates)
+    ax.axvspan(_day(ctx.end) + 0.5, _day(end) + 0.5, color=T.PHASE_FILLS[0], lw=0, zorder=0)
+    ax.fill_between(
+        xp,
+        u.weight(p.low_kg),
+        u.weight(p.high_kg),
+        color=ctx.accent,
+        alpha=0.16,
+        lw=0,
+        zorder=2,
+        label=L["projection_band"],
+    )
+    ax.plot(
+        xp,
+        u.weight(p.weight_kg),
+        color=ctx.accent,
+        lw=1.5,
+        ls=(0, (5, 2)),
+        zorder=4,
+        label=L["projection"],
+    )
+    lo_all, hi_all = float(np.nanmin(p.low_kg)), float(np.nanmax(p.high_kg))
+    if a.trend is not None and len(a.trend.dates):
+        tsel = _window(a, a.trend.dates, sub)
+        ax.plot(
+            day_numbers(a.trend.dates[tsel]),
+            u.weight(a.trend.level_kg[tsel]),
+            color=ctx.accent,
+            lw=1.5,
+            zorder=4,
+            label=L["trend"],
+        )
+        if tsel.any():
+            lo_all = min(lo_all, float(np.nanmin(a.trend.level_kg[tsel])))
+            hi_all = max(hi_all, float(np.nanmax(a.trend.level_kg[tsel])))
+    if p.goal_weight_kg is not None:
+        g = float(u.weight(p.goal_weight_kg))
+        ax.axhline(g, color=T.DEEP, lw=0.9, ls=(0, (1, 1.5)), zorder=3, label=L["goal"])
+        # keep the goal in view only if it is reasonably near the projected range
+        span = hi_all - lo_all
+        if p.goal_weight_kg >= lo_all - span:
+            lo_all = min(lo_all, p.goal_weight_kg)
+            hi_all = max(hi_all, p.goal_weight_kg)
+    _y_ticks(ax, float(u.weight(lo_all)), float(u.weight(hi_all)))
+    ax.set_ylabel(u.weight_unit)
+    _time_ticks(ax, start, end, u)
+    _legend(ax, 4)
+    return _save(fig)
+
+
+CHARTS = {
+    "weight": weight_chart,
+    "energy": energy_chart,
+    "signals": signals_chart,
+    "bodycomp": bodycomp_chart,
+    "projection": projection_chart,
+}

@@ -1,0 +1,331 @@
+"""The one-page practitioner summary: dense, technical and exact, for referral notes."""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass
+
+from reportlab.lib import colors
+from reportlab.lib.units import mm
+from reportlab.platypus import Flowable, KeepInFrame, Paragraph, Spacer, Table, TableStyle
+
+from reportgen.config import Config
+from reportgen.results import ClientAnalysis, Estimate
+
+from . import theme as T
+from .layout import data_table, practice_header
+from .pdfbuild import Document, build, mark_heading
+from .theme import Theme, page_size, theme_for
+from .units import DASH, Units
+from .viewmodel import ClientView, client_view
+from .wording import Wording, blocks, esc
+
+
+@dataclass
+class SummaryView:
+    """The client view plus the measurement rows of the summary table."""
+
+    base: ClientView
+    rows: list[tuple[str, str, str, str]]  # (row key, value, interval, method)
+    ident: list[tuple[str, str]]
+
+    def __getattr__(self, name: str) -> object:
+        return getattr(self.base, name)
+
+
+def _est(u: Units, e: Estimate, kind: str) -> tuple[str, str]:
+    if not e.known:
+        return DASH, f"({e.reason})" if e.reason else ""
+    return u.fmt(e.value, kind), u.interval(e, kind)
+
+
+def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryView:
+    u = Units.from_config(config)
+    vm = client_view(a, config)
+    M = words.labels["methods"]
+    c = a.client
+    ph = a.current_phase
+    ident = [
+        ("client", c.name),
+        ("id", c.client_id),
+        ("born", f"{u.d(c.birth_date)} ({a.age_years})" if c.birth_date else DASH),
+        ("sex", c.sex or DASH),
+        ("height", f"{u.number(c.height_cm, 1)} cm" if c.height_cm else DASH),
+        ("bmi", u.number(a.bmi, 1) if a.bmi is not None else DASH),
+        (
+            "period",
+            u.span(_first_day(a) or a.as_of, a.as_of) + f" ({a.quality.days_in_period} days)",
+        ),
+        ("month", vm.month),
+        (
+            "phase",
+            f"{ph.name} ({ph.kind}), week {a.week_of_phase}, from {u.d(ph.start)}"
+            if ph is not None and a.week_of_phase
+            else (f"{ph.name} ({ph.kind})" if ph is not None else DASH),
+        ),
+    ]
+    trend_method = DASH
+    if a.trend is not None:
+        trend_method = M.get(a.trend.method, a.trend.method).replace(
+            "{noise}", u.w(a.trend.noise_sd_kg, dp=2)
+        )
+    rows: list[tuple[str, str, str, str]] = []
+    rows.append(("weight", *_est(u, a.current_weight_kg, "w"), trend_method))
+    rows.append(("change", *_est(u, a.month_change_kg, "w_change"), trend_method))
+    v, i = _est(u, a.weekly_rate_kg, "w_rate")
+    rows.append(("rate", v + ("/week" if a.weekly_rate_kg.known else ""), i, "trend slope"))
+    rows.append(("rate_pct", *_est(u, a.weekly_rate_pct, "pct_change"), "trend slope ÷ trend"))
+    rows.append(
+        ("intake", u.e(a.month_mean_intake_kcal), "", f"{vm.figures['intake'].detail or 0} days")
+    )
+    if ph is not None:
+        rows.append(("deficit", *_est(u, ph.realised_deficit_kcal, "e"), M["balance"]))
+        rows.append(("tdee", *_est(u, ph.observed_tdee_kcal, "e"), M["balance"]))
+        rows.append(
+            (
+                "expected",
+                *_est(u, ph.expected_tdee_kcal, "e"),
+                M.get(ph.expected_method or "", ph.expected_method or DASH),
+            )
+        )
+        v, i = _est(u, ph.adaptation_kcal, "e_change")
+        pct = u.pct(ph.adaptation_pct.value, signed=True) if ph.adaptation_pct.known else ""
+        rows.append(("adaptation", v + (f" ({pct})" if pct else ""), i, "of expected"))
+        rows.append(("depth", u.pct(ph.deficit_depth_pct), "", "realised deficit ÷ maintenance"))
+        rows.append(("days_deficit", u.number(ph.days_in_deficit), "", "up to month end"))
+    for code, kcal in sorted(a.resting_kcal.items()):
+        rows.append(("resting", u.e(kcal), "", _method_name(a, code)))
+    if a.bodycomp:
+        last = a.bodycomp[-1]
+        rows.append(
+            (
+                "bodyfat",
+                u.pct(last.bodyfat_pct),
+                f"± {u.number(last.bodyfat_se_pct, 1)} points (SEE)",
+                f"{_method_name(a, last.equation)} + {last.conversion.title()}, "
+                f"{u.d(last.date)}" + (f", Σ {u.number(last.sum_mm, 1)} mm" if last.sum_mm else ""),
+            )
+        )
+        rows.append(
+            (
+                "fat_mass",
+                f"{u.w(last.fat_mass_kg)} / {u.w(last.lean_mass_kg)}",
+                "",
+                "at trend weight " + u.w(last.weight_kg),
+            )
+        )
+        if len(a.bodycomp) >= 2:
+            rows.append(
+                ("bodyfat_change", vm.figures["bodyfat"].value, "", vm.figures["bodyfat"].detail)
+            )
+    elif a.bodyfat_fallback is not None:
+        fb = a.bodyfat_fallback
+        rows.append(
+            (
+                "bodyfat",
+                u.pct(fb.bodyfat_pct),
+                f"± {u.number(fb.bodyfat_se_pct, 1)} points",
+                f"{_method_name(a, fb.equation)} (rough, no skinfolds)",
+            )
+        )
+    pr = a.projection
+    if pr is not None and len(pr.weight_kg):
+        goal = ""
+        if pr.goal_weight_kg is not None:
+            goal = f"; goal {u.w(pr.goal_weight_kg)} " + (
+                f"by {u.d(pr.goal_date)}" if pr.goal_date else "not reached"
+            )
+        end = u.d(dt.date.fromisoformat(str(pr.dates[-1].astype("datetime64[D]"))))
+        rows.append(
+            (
+                "projection",
+                u.w(float(pr.weight_kg[-1])),
+                f"{u.w(float(pr.low_kg[-1]), unit=False)}{chr(0x2013)}{u.w(float(pr.high_kg[-1]))}",
+                f"{M['hall']} ({u.e(pr.intake_kcal)}), to {end}{goal}",
+            )
+        )
+        for rate, est in sorted(pr.intake_for_rate_kcal.items()):
+            rows.append(
+                (
+                    "intake_for_rate",
+                    *_est(u, est, "e"),
+                    f"for {u.pct(-rate, dp=2)} body weight/week",
+                )
+            )
+    return SummaryView(base=vm, rows=rows, ident=ident)
+
+
+def _first_day(a: ClientAnalysis) -> dt.date | None:
+    if not a.log.n_days:
+        return None
+    return dt.date.fromisoformat(str(a.log.dates[0].astype("datetime64[D]")))
+
+
+def _method_name(a: ClientAnalysis, code: str) -> str:
+    for m in a.methods:
+        if m.code == code:
+            return m.name
+    return code
+
+
+def _ident_table(sv: SummaryView, words: Wording, theme: Theme, width: float) -> Table:
+    L = words.labels["ident"]
+    cells = [
+        [Paragraph(esc(L[k]), theme["cell_head"]), Paragraph(esc(v), theme["cell"])]
+        for k, v in sv.ident
+    ]
+    half = (len(cells) + 1) // 2
+    left, right = cells[:half], cells[half:]
+    right += [["", ""]] * (half - len(right))
+    data = [lft + rgt for lft, rgt in zip(left, right, strict=True)]
+    w = width / 2
+    return Table(
+        data,
+        colWidths=[0.3 * w, 0.7 * w, 0.3 * w, 0.7 * w],
+        style=TableStyle(
+            [
+                ("FONTNAME", (0, 0), (-1, -1), T.FONT),
+                ("VALIGN", (0, 0), (-1, -1), "TOP"),
+                ("LEFTPADDING", (0, 0), (-1, -1), 2),
+                ("RIGHTPADDING", (0, 0), (-1, -1), 2),
+                ("TOPPADDING", (0, 0), (-1, -1), 1.2),
+                ("BOTTOMPADDING", (0, 0), (-1, -1), 1.6),
+                ("LINEBELOW", (0, 0), (-1, -1), 0.3, colors.HexColor(T.RULE)),
+            ]
+        ),
+    )
+
+
+def _signature(words: Wording, theme: Theme, width: float) -> Table:
+    L = words.labels
+    sign = L["sign"]
+    data = [
+        [Paragraph(esc(L["note"]), theme["cell_head"]), "", "", ""],
+        ["", "", "", ""],
+        [Paragraph(esc(s), theme["cell_head"]) for s in sign],
+        ["", "", "", ""],
+    ]
+    return Table(
+        data,
+        colWidths=[width * 0.3, width * 0.22, width * 0.28, width * 0.2],
+        rowHeights=[5 * mm, 20 * mm, 4 * mm, 8 * mm],
+        style=TableStyle(
+            [
+                ("FONTNAME", (0, 0), (-1, -1), T.FONT),
+                ("SPAN", (0, 0), (-1, 0)),
+                ("SPAN", (0, 1), (-1, 1)),
+                ("BOX", (0, 0), (-1, 1), 0.6, colors.HexColor(T.MUTED)),
+                ("LINEBELOW", (0, 3), (-1, 3), 0.6, colors.HexColor(T.MUTED)),
+                ("VALIGN", (0, 0), (-1, -1), "TOP"),
+                ("LEFTPADDING", (0, 0), (-1, -1), 3),
+                ("TOPPADDING", (0, 0), (-1, -1), 2),
+            ]
+        ),
+    )
+
+
+def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> bytes:
+    """The one-page practitioner summary as PDF bytes."""
+    theme = theme_for(config.report.accent_colour)
+    words = Wording(config, "report/practitioner.j2")
+    sv = summary_view(analysis, config, words)
+    pagesize = page_size(config)
+    margin = 14 * mm
+    width = pagesize[0] - 2 * margin
+    L = words.labels
+    body: list[Flowable] = []
+    body += practice_header(config, theme, width)[:1]
+    head = blocks(words.text("header", sv), theme)
+    if head and isinstance(head[0], Paragraph):
+        mark_heading(head[0], 0, L["document"])
+    body += head
+    body.append(Spacer(1, 2 * mm))
+    body.append(_ident_table(sv, words, theme, width))
+    special = words.text("special_line", sv).strip()
+    if special:
+        body.append(Spacer(1, 1.5 * mm))
+        body.append(Paragraph(special, theme["cell_bold"]))
+    body.append(Spacer(1, 3 * mm))
+    rl = L["rows"]
+    rows = [[esc(rl[k]), esc(v), esc(i), esc(m)] for k, v, i, m in sv.rows]
+    body.append(
+        data_table(
+            [esc(c) for c in L["cols"]],
+            rows,
+            [0.27 * width, 0.17 * width, 0.19 * width, 0.37 * width],
+            theme,
+            right_from=1,
+            right_to=3,
+        )
+    )
+    body.append(Spacer(1, 3 * mm))
+    if sv.phases:
+        pcols = L["phase_cols"]
+        prow = [
+            [
+                esc(p["name"]),
+                esc(p["kind"]),
+                esc(p["dates"]),
+                p["days"],
+                esc(p["intake"]),
+                esc(p["deficit"]),
+                esc(p["rate"]),
+                esc(p["tdee"]),
+                esc(p["adaptation"]),
+                esc(p["bodyfat"]),
+                esc(p["status"]),
+            ]
+            for p in sv.phases
+        ]
+        fr = [0.14, 0.11, 0.18, 0.05, 0.07, 0.07, 0.07, 0.07, 0.07, 0.06, 0.11]
+        body.append(
+            data_table(
+                [esc(c) for c in pcols],
+                prow,
+                [f * width for f in fr],
+                theme,
+                right_from=3,
+                right_to=10,
+            )
+        )
+        body.append(Spacer(1, 3 * mm))
+    body.append(
+        Paragraph(
+            f"<b>{esc(L['flags'])}.</b> "
+            + (
+                " ".join(words.text("flag_line", f) for f in sv.flags)
+                if sv.flags
+                else esc(L["no_flags"])
+            ),
+            theme["cell"],
+        )
+    )
+    body.append(Spacer(1, 1.5 * mm))
+    body.append(
+        Paragraph(f"<b>{esc(L['quality'])}.</b> " + words.text("quality_line", sv), theme["cell"])
+    )
+    body.append(Spacer(1, 1.5 * mm))
+    if sv.methods:
+        refs = " ".join(
+            f"[{n}] " + words.text("reference_line", m) for n, m in enumerate(sv.methods, 1)
+        )
+        body.append(Paragraph(f"<b>{esc(L['references'])}.</b> {refs}", theme["small"]))
+    body.append(Paragraph(words.text("footnote", sv), theme["small"]))
+    body.append(Spacer(1, 2 * mm))
+    sig = _signature(words, theme, width)
+    frame_h = pagesize[1] - 2 * margin
+    story: list[Flowable] = [
+        KeepInFrame(width, frame_h - sig.wrap(width, frame_h)[1] - 4 * mm, body, mode="shrink"),
+        Spacer(1, 2 * mm),
+        sig,
+    ]
+    doc = Document(
+        title=f"{L['document']}: {analysis.client.name}, {sv.base.month}",
+        author=config.practice.name or "reportgen",
+        subject=f"{L['subject']}, {sv.base.month}",
+        pagesize=pagesize,
+        footer_right=f"{analysis.client.client_id} · {sv.base.month}",
+        page_label=lambda n: f"{L['page']} {n} {L['of']}",
+        margin=margin,
+    )
+    return build(story, doc, theme)

@@ -1,0 +1,345 @@
+"""The client view model: every number already rounded, converted and formatted as text.
+
+Templates receive this and do no arithmetic.  Categories the narrative branches on (is the
+rate in the usual range, is expenditure clearly below expected) are decided here, with the
+thresholds named below, so the wording stays free of numbers it would have to compare.
+"""
+
+from __future__ import annotations
+
+import calendar
+import datetime as dt
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from reportgen.config import Config
+from reportgen.results import ClientAnalysis, Estimate, PhaseResult
+
+from .units import Units
+
+# Rate of loss bands in % of body weight per week.  0.5-1.0 %/week is the range Helms,
+# Aragon & Fitschen 2014 (JISSN 11:20) recommend to keep lean mass; "fast" above 1.0 %.
+RATE_TARGET_LOW_PCT = 0.5
+RATE_FAST_PCT = 1.0
+RATE_FLAT_PCT = 0.1  # |rate| below this reads as "holding steady" (common practice)
+# Adaptation reads as "clear" only when the 80 % interval excludes zero and the estimate is at
+# least this share of expected expenditure (common practice, no single source).
+ADAPT_MIN_PCT = 3.0
+# Signals: only changes the analysis sized "moderate" or "large" are called out.
+SIGNAL_NOTABLE = ("moderate", "large")
+LONG_DEFICIT_DAYS = 84  # 12 weeks of continuous deficit: suggest a break (common practice)
+
+
+def month_label(month: str) -> str:
+    year, mon = (int(p) for p in month.split("-"))
+    return f"{calendar.month_name[mon]} {year}"
+
+
+@dataclass
+class Figure:
+    """One headline figure: a formatted value, its interval and a plain-language detail."""
+
+    key: str
+    value: str = ""
+    interval: str = ""
+    detail: str = ""
+    reason: str = ""  # code, when the value is not known
+
+    @property
+    def known(self) -> bool:
+        return not self.reason
+
+
+@dataclass
+class ClientView:
+    practice: dict[str, str]
+    client: dict[str, str]
+    month: str
+    month_code: str
+    as_of: str
+    weight_unit: str
+    energy_unit: str
+    phase: dict[str, Any] | None
+    special: list[str]
+    figures: dict[str, Figure]
+    story: dict[str, Any]
+    phases: list[dict[str, str]]
+    quality: dict[str, Any]
+    methods: list[dict[str, str]]
+    flags: list[dict[str, Any]]
+    sections: tuple[str, ...]
+    extra: dict[str, Any] = field(default_factory=dict)
+
+
+def practice_view(config: Config) -> dict[str, str]:
+    p = config.practice
+    contact = [x for x in (p.phone, p.email, p.website) if x]
+    return {
+        "name": p.name,
+        "address": p.address,
+        "phone": p.phone,
+        "email": p.email,
+        "website": p.website,
+        "contact": " · ".join(contact),
+    }
+
+
+def _estimate(u: Units, est: Estimate, kind: str, key: str) -> Figure:
+    if not est.known:
+        return Figure(key, reason=est.reason or "not-estimated")
+    return Figure(key, value=u.fmt(est.value, kind), interval=u.interval(est, kind))
+
+
+def _rate_band(pct: float | None) -> str:
+    if pct is None:
+        return "unknown"
+    loss = -pct
+    if abs(pct) < RATE_FLAT_PCT:
+        return "flat"
+    if loss < 0:
+        return "gain"
+    if loss < RATE_TARGET_LOW_PCT:
+        return "slow"
+    if loss <= RATE_FAST_PCT:
+        return "target"
+    return "fast"
+
+
+def _adapt_state(est: Estimate, pct: Estimate, implausible: bool) -> str:
+    if not est.known or est.value is None:
+        return "unknown"
+    if implausible:
+        return "implausible"
+    if est.low is not None and est.high is not None and est.low <= 0 <= est.high:
+        return "within"
+    if pct.value is not None and abs(pct.value) < ADAPT_MIN_PCT:
+        return "within"
+    return "below" if est.value < 0 else "above"
+
+
+def _phase_row(u: Units, p: PhaseResult) -> dict[str, str]:
+    def est(e: Estimate, kind: str) -> str:
+        return u.fmt(e.value, kind, unit=False) if e.known else "–"
+
+    bf = (
+        u.pp(p.bodyfat_end_pct - p.bodyfat_start_pct, dp=1)
+        if p.bodyfat_start_pct is not None and p.bodyfat_end_pct is not None
+        else "–"
+    )
+    return {
+        "name": p.name,
+        "kind": p.kind,
+        "dates": u.span(p.start, p.end, running="running"),
+        "days": str(p.days),
+        "intake": u.e(p.mean_intake_kcal, unit=False),
+        "deficit": est(p.realised_deficit_kcal, "e"),
+        "rate": est(p.rate_pct_per_week, "pct_change"),
+        "rate_kg": est(p.rate_kg_per_week, "w_rate"),
+        "tdee": est(p.observed_tdee_kcal, "e"),
+        "adaptation": est(p.adaptation_kcal, "e_change"),
+        "bodyfat": bf.replace(" points", ""),
+        "status": p.status,
+    }
+
+
+def _signal_view(u: Units, s: Any) -> dict[str, str]:
+    unit_dp = 0 if s.name == "steps" else 1
+    return {
+        "name": s.name,
+        "direction": s.direction,
+        "size": s.size,
+        "baseline": u.number(s.baseline, unit_dp),
+        "recent": u.number(s.recent, unit_dp),
+        "change": u.number(s.change, unit_dp, signed=True),
+        "change_pct": u.pct(s.change_pct, dp=0, signed=True),
+        "change_pct_abs": u.pct(abs(s.change_pct), dp=0) if s.change_pct is not None else "",
+        "notable": "yes" if s.size in SIGNAL_NOTABLE else "",
+    }
+
+
+def _flag_view(u: Units, f: Any) -> dict[str, Any]:
+    values: dict[str, str] = {}
+    for k, v in sorted(f.values.items()):
+        if isinstance(v, str):
+            values[k] = v
+        elif k.endswith("_kcal"):
+            values[k] = u.e(float(v))
+        elif k.endswith("_kg"):
+            values[k] = u.w(float(v))
+        elif k.endswith("_pct") or k.endswith("pct_per_week"):
+            values[k] = u.pct(float(v))
+        else:
+            values[k] = u.number(float(v), 1)
+    return {"code": f.code, "severity": f.severity, "values": values}
+
+
+def client_view(a: ClientAnalysis, config: Config) -> ClientView:
+    u = Units.from_config(config)
+    ph = a.current_phase
+    phase = None
+    if ph is not None:
+        phase = {
+            "name": ph.name,
+            "kind": ph.kind,
+            "week": str(a.week_of_phase) if a.week_of_phase else "",
+            "start": u.d(ph.start),
+            "end": u.d(ph.end) if ph.end else "",
+            "running": ph.end is None or ph.end > a.as_of,
+            "status": ph.status,
+        }
+
+    figs: dict[str, Figure] = {}
+    f = _estimate(u, a.current_weight_kg, "w", "weight")
+    figs["weight"] = f
+    f = _estimate(u, a.month_change_kg, "w_change", "change")
+    figs["change"] = f
+    f = _estimate(u, a.weekly_rate_kg, "w_rate", "rate")
+    if f.known:
+        f.value = f"{f.value}/week"
+        pct = a.weekly_rate_pct
+        if pct.known:
+            f.detail = f"{u.pct(pct.value, dp=2, signed=True)}"
+            if pct.low is not None and pct.high is not None:
+                f.detail += f" ({u.interval(pct, 'pct_change')})"
+    figs["rate"] = f
+    intake = Figure("intake")
+    if a.month_mean_intake_kcal is not None:
+        intake.value = u.e(a.month_mean_intake_kcal)
+        intake.detail = str(int(np.sum(_month_mask(a) & np.isfinite(a.log.intake_kcal))))
+    else:
+        intake.reason = "no-intake"
+    figs["intake"] = intake
+
+    def phase_est(attr: str, kind: str, key: str) -> Figure:
+        if ph is None:
+            return Figure(key, reason="no-phase")
+        return _estimate(u, getattr(ph, attr), kind, key)
+
+    figs["deficit"] = phase_est("realised_deficit_kcal", "e", "deficit")
+    figs["tdee"] = phase_est("observed_tdee_kcal", "e", "tdee")
+    adapt = phase_est("adaptation_kcal", "e_change", "adaptation")
+    if adapt.known and ph is not None and ph.adaptation_pct.known:
+        adapt.detail = u.pct(ph.adaptation_pct.value, dp=1, signed=True)
+    figs["adaptation"] = adapt
+    figs["bodyfat"] = _bodyfat_figure(a, u)
+
+    implausible = any(fl.code == "implausible-adaptation" for fl in a.flags)
+    story: dict[str, Any] = {
+        "change_dir": _direction(a.month_change_kg),
+        "change_abs": u.w(abs(a.month_change_kg.value)) if a.month_change_kg.known else "",
+        "rate_band": _rate_band(a.weekly_rate_pct.value),
+        "rate_pct_abs": u.pct(abs(a.weekly_rate_pct.value), dp=2)
+        if a.weekly_rate_pct.known
+        else "",
+        "adapt_state": "unknown",
+        "adapt_abs": "",
+        "signals": [_signal_view(u, s) for s in a.signals],
+        "notable_signals": [_signal_view(u, s) for s in a.signals if s.size in SIGNAL_NOTABLE],
+        "long_deficit": bool(
+            ph is not None and ph.days_in_deficit and ph.days_in_deficit >= LONG_DEFICIT_DAYS
+        ),
+        "weeks_in_deficit": str((ph.days_in_deficit or 0) // 7) if ph else "",
+        "sessions": str(len(a.bodycomp)),
+        "goal": "",
+        "goal_date": "",
+        "projection_weeks": str(config.report.projection_weeks),
+        "projection_end": "",
+        "projection_band": "",
+    }
+    if ph is not None:
+        story["adapt_state"] = _adapt_state(ph.adaptation_kcal, ph.adaptation_pct, implausible)
+        if ph.adaptation_kcal.known and ph.adaptation_kcal.value is not None:
+            story["adapt_abs"] = u.e(abs(ph.adaptation_kcal.value))
+    pr = a.projection
+    if pr is not None and len(pr.weight_kg):
+        story["projection_end"] = u.w(float(pr.weight_kg[-1]))
+        story["projection_band"] = (
+            f"{u.w(float(pr.low_kg[-1]), unit=False)}–{u.w(float(pr.high_kg[-1]))}"
+        )
+        if pr.goal_weight_kg is not None:
+            story["goal"] = u.w(pr.goal_weight_kg)
+            story["goal_date"] = u.d(pr.goal_date) if pr.goal_date else ""
+
+    q = a.quality
+    quality = {
+        "days": str(q.days_in_period),
+        "weight_days": str(q.weight_days),
+        "intake_days": str(q.intake_days),
+        "weight_share": u.pct(100 * q.weight_days / q.days_in_period, dp=0)
+        if q.days_in_period
+        else "",
+        "intake_share": u.pct(100 * q.intake_days / q.days_in_period, dp=0)
+        if q.days_in_period
+        else "",
+        "outliers": [{"date": u.d(d), "value": u.w(v)} for d, v in q.outliers],
+        "gaps": [
+            {"start": u.d(s), "end": u.d(e), "days": str((e - s).days + 1)} for s, e in q.gaps
+        ],
+        "warnings": [
+            {"where": p.location, "message": p.message, "code": p.code} for p in q.warnings
+        ],
+    }
+    methods = [
+        {"code": m.code, "name": m.name, "reference": m.reference, "see": m.see or ""}
+        for m in a.methods
+    ]
+    noise = a.trend.noise_sd_kg if a.trend is not None else None
+    extra = {
+        "noise_sd": u.w(noise) if noise is not None else "",
+        "trend_method": a.trend.method if a.trend is not None else "",
+        "bmi": u.number(a.bmi, 1) if a.bmi is not None else "",
+        "age": str(a.age_years) if a.age_years is not None else "",
+        "notes": list(a.notes),
+    }
+    return ClientView(
+        practice=practice_view(config),
+        client={"name": a.client.name, "id": a.client.client_id},
+        month=month_label(a.month),
+        month_code=a.month,
+        as_of=u.d(a.as_of),
+        weight_unit=u.weight_unit,
+        energy_unit=u.energy_unit,
+        phase=phase,
+        special=list(a.special_handling),
+        figures=figs,
+        story=story,
+        phases=[_phase_row(u, p) for p in a.phases],
+        quality=quality,
+        methods=methods,
+        flags=[_flag_view(u, fl) for fl in a.flags],
+        sections=config.report.sections,
+        extra=extra,
+    )
+
+
+def _direction(est: Estimate) -> str:
+    if not est.known or est.value is None:
+        return "unknown"
+    if abs(est.value) < 0.1:
+        return "flat"
+    return "down" if est.value < 0 else "up"
+
+
+def _month_mask(a: ClientAnalysis) -> np.ndarray:
+    year, mon = (int(p) for p in a.month.split("-"))
+    first = np.datetime64(dt.date(year, mon, 1), "D")
+    return a.log.dates >= first
+
+
+def _bodyfat_figure(a: ClientAnalysis, u: Units) -> Figure:
+    sessions = a.bodycomp
+    if len(sessions) >= 2:
+        first, last = sessions[0], sessions[-1]
+        f = Figure("bodyfat")
+        f.value = u.pp(last.bodyfat_pct - first.bodyfat_pct)
+        f.interval = ""
+        f.detail = (
+            f"{u.pct(first.bodyfat_pct)} → {u.pct(last.bodyfat_pct)}"
+            f" ({u.d(first.date)} → {u.d(last.date)})"
+        )
+        return f
+    if len(sessions) == 1:
+        return Figure("bodyfat", reason="one-session")
+    return Figure("bodyfat", reason="no-skinfolds")

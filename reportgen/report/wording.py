@@ -1,0 +1,129 @@
+"""All wording comes from jinja2 templates: this module loads them and turns text into flowables.
+
+Template lookup is a ``ChoiceLoader``: the configured ``[report] templates_dir`` first (laid
+out like the shipped folder, e.g. ``report/client.j2``), the shipped templates second, so a
+practice overrides one file and keeps the rest.  Autoescaping is on: every value from the
+view model (client names, notes) is XML-escaped before it reaches reportlab's paragraph
+markup, while the markup written in the templates themselves (``<b>``) passes through.
+
+Templates write a tiny line-based markup, one block per paragraph:
+
+``# Title``    section heading (bookmarked)      ``## Title``   sub-heading (bookmarked)
+``- text``     bullet                            ``> text``     lead paragraph
+``~ text``     small print (captions)            blank line     ends a paragraph
+``= text``     document title                    ``+ text``     subtitle line
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from functools import cache
+from pathlib import Path
+from typing import Any
+
+import jinja2
+from markupsafe import Markup, escape
+from reportlab.platypus import Flowable, Paragraph
+
+from reportgen.config import Config
+from reportgen.resources import templates_dir
+
+from .theme import Theme
+
+
+@cache
+def _environment(override: str) -> jinja2.Environment:
+    loaders: list[jinja2.BaseLoader] = []
+    if override:
+        loaders.append(jinja2.FileSystemLoader(override))
+    loaders.append(jinja2.FileSystemLoader(str(templates_dir())))
+    return jinja2.Environment(
+        loader=jinja2.ChoiceLoader(loaders),
+        autoescape=True,
+        undefined=jinja2.StrictUndefined,
+        trim_blocks=True,
+        lstrip_blocks=True,
+        keep_trailing_newline=False,
+    )
+
+
+def environment(config: Config) -> jinja2.Environment:
+    folder = config.resolve_path(config.report.templates_dir)
+    return _environment(str(folder) if folder else "")
+
+
+class Wording:
+    """The macros and label tables of one template file, e.g. ``report/client.j2``."""
+
+    def __init__(self, config: Config, name: str) -> None:
+        self._module = environment(config).get_template(name).module
+
+    def __getattr__(self, name: str) -> Any:
+        return getattr(self._module, name)
+
+    def text(self, macro: str, *args: Any) -> str:
+        fn: Callable[..., Any] = getattr(self._module, macro)
+        return str(fn(*args))
+
+
+def esc(value: object) -> str:
+    """Escape text for reportlab paragraph markup (for values laid out outside templates)."""
+    return str(escape(str(value)))
+
+
+def markup(value: str) -> Markup:
+    return Markup(value)
+
+
+def blocks(
+    text: str, theme: Theme, *, heading_hook: Callable[[Paragraph, int], None] | None = None
+) -> list[Flowable]:
+    """Turn template output in the line markup above into paragraphs."""
+    out: list[Flowable] = []
+    buf: list[str] = []
+    style = "body"
+
+    def flush() -> None:
+        nonlocal buf, style
+        if buf:
+            out.append(Paragraph(" ".join(buf), theme[style]))
+        buf = []
+        style = "body"
+
+    for raw in text.splitlines():
+        line = raw.strip()
+        if not line:
+            flush()
+            continue
+        for prefix, kind in (("## ", "h2"), ("# ", "h1")):
+            if line.startswith(prefix):
+                flush()
+                para = Paragraph(line[len(prefix) :], theme[kind])
+                if heading_hook:
+                    heading_hook(para, 0 if kind == "h1" else 1)
+                out.append(para)
+                break
+        else:
+            if line.startswith("- "):
+                flush()
+                out.append(Paragraph(line[2:], theme["bullet"], bulletText="\u2022"))
+            elif line.startswith("> ") and not buf:
+                style = "lead"
+                buf.append(line[2:])
+            elif line.startswith("~ ") and not buf:
+                style = "caption"
+                buf.append(line[2:])
+            elif line[:2] in ("= ", "+ "):
+                flush()
+                out.append(Paragraph(line[2:], theme["title" if line[0] == "=" else "subtitle"]))
+            else:
+                buf.append(line)
+    flush()
+    return out
+
+
+def template_path(config: Config, name: str) -> Path | None:
+    """Where a template was found (for diagnostics)."""
+    env = environment(config)
+    source = env.loader.get_source(env, name) if env.loader else None
+    return Path(source[1]) if source and source[1] else None
