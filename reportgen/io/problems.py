@@ -1,0 +1,44 @@
+"""Every kind of :class:`~reportgen.io.model.Problem` the readers report, with its severity.
+
+Codes are stable: scripts reading ``reportgen check --json`` and the tests rely on them.
+"""
+
+from __future__ import annotations
+
+from typing import Final
+
+from reportgen.io.model import Severity
+
+#: code -> (severity, what it means)
+PROBLEM_CODES: Final[dict[str, tuple[Severity, str]]] = {
+    # errors: the client is skipped (or, without a client, the book has a problem to fix)
+    "missing-file": ("error", "a required file is not there"),
+    "two-sources": ("error", "the same data is given in two files; keep one"),
+    "unreadable-file": ("error", "a file cannot be read (not CSV text, not a workbook)"),
+    "empty-file": ("error", "a file or sheet has no header row"),
+    "missing-sheet": ("error", "a workbook has no daily sheet"),
+    "missing-column": ("error", "a required column is missing"),
+    "duplicate-column": ("error", "a column name appears twice"),
+    "extra-cells": ("error", "values beyond the last named column"),
+    "missing-value": ("error", "a required cell is blank"),
+    "bad-number": ("error", "a cell that should hold a number does not"),
+    "bad-date": ("error", "a cell that should hold a date does not"),
+    "bad-value": ("error", "a value that is not one of the allowed ones"),
+    "bad-client-id": ("error", "a client_id with characters or length not allowed"),
+    "duplicate-client": ("error", "two roster rows with one client_id"),
+    "out-of-range": ("error", "a value outside the physical limits"),
+    "unit-conflict": ("error", "a value given in two units that disagree"),
+    "duplicate-date": ("error", "the same date twice with different values"),
+    "no-data": ("error", "a daily log without a dated row up to the month end"),
+    "unknown-client": ("error", "a phase for a client not in the roster"),
+    "overlapping-phases": ("error", "two phases of one client overlap"),
+    # warnings: the report is still made and lists them
+    "outlier": ("warning", "an isolated weigh-in excluded from the analysis"),
+    "future-date": ("warning", "a row dated after today, ignored"),
+    "gap": ("warning", "more than 7 days without an entry"),
+    "unknown-column": ("warning", "a column reportgen does not use, ignored"),
+    "skinfold-disagreement": ("warning", "repeated skinfold readings differ by more than 5 %"),
+    "encoding-fallback": ("warning", "a file that is not UTF-8, read as cp1252/latin-1"),
+    "duplicate-row": ("warning", "a row repeating another row exactly, ignored"),
+    "special-handling": ("warning", "a minor or pregnant client: no deficit analysis"),
+}
