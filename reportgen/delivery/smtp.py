@@ -81,16 +81,23 @@ class SMTPConnection:
     def _open(self) -> smtplib.SMTP:
         s = self.server
         conn: smtplib.SMTP
+        # Host given to the constructor: smtplib verifies the certificate against it.
         # A placeholder EHLO name stops smtplib from calling socket.getfqdn(), which can
         # query DNS; the real name is set from the connected socket below.
-        if s.security == "tls":
-            conn = smtplib.SMTP_SSL(
-                local_hostname="localhost", timeout=s.timeout_s, context=self._ssl()
-            )
-        else:
-            conn = smtplib.SMTP(local_hostname="localhost", timeout=s.timeout_s)
         try:
-            conn.connect(s.host, s.port)
+            if s.security == "tls":
+                conn = smtplib.SMTP_SSL(
+                    s.host,
+                    s.port,
+                    local_hostname="localhost",
+                    timeout=s.timeout_s,
+                    context=self._ssl(),
+                )
+            else:
+                conn = smtplib.SMTP(s.host, s.port, local_hostname="localhost", timeout=s.timeout_s)
+        except ssl.SSLCertVerificationError as exc:
+            raise self._untrusted(exc) from None
+        try:
             conn.local_hostname = _address_literal(conn.sock)
             conn.ehlo()
             if s.security == "starttls":
@@ -107,13 +114,18 @@ class SMTPConnection:
                 self._login(conn)
         except ssl.SSLCertVerificationError as exc:
             conn.close()
-            raise FatalSMTPError(
-                f"the certificate of {s.host} could not be verified ({exc.verify_message})"
-            ) from None
+            raise self._untrusted(exc) from None
         except BaseException:
             conn.close()
             raise
         return conn
+
+    def _untrusted(self, exc: ssl.SSLCertVerificationError) -> FatalSMTPError:
+        return FatalSMTPError(
+            f"the certificate of {self.server.host} could not be verified "
+            f"({exc.verify_message}); if the practice uses its own certificate authority, "
+            "point SSL_CERT_FILE at its certificate"
+        )
 
     def _login(self, conn: smtplib.SMTP) -> None:
         """AUTH with one mechanism (PLAIN, else LOGIN), inside TLS except on loopback.
