@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import datetime as dt
 import io
+import math
 import re
 import zipfile
 from collections.abc import Sequence
@@ -73,8 +74,10 @@ def _serial(d: dt.date) -> int:
     return (d - dt.date(1899, 12, 30)).days
 
 
-def _lb(kg: float) -> float:
-    return round(kg / KG_PER_LB, 1)
+def _inside(low: float, high: float, factor: float) -> tuple[float, float]:
+    """Limits converted to another unit, rounded inwards to 0.1 so Excel never accepts a
+    value the readers refuse."""
+    return math.ceil(low / factor * 10) / 10, math.floor(high / factor * 10) / 10
 
 
 def daily_columns(units: Units = "metric", energy: Energy = "kcal") -> tuple[Column, ...]:
@@ -82,13 +85,14 @@ def daily_columns(units: Units = "metric", energy: Energy = "kcal") -> tuple[Col
     w_lo, w_hi = limits.WEIGHT_KG
     e_lo, e_hi = limits.INTAKE_KCAL
     if units == "imperial":
+        lb_lo, lb_hi = _inside(w_lo, w_hi, KG_PER_LB)
         weight = Column(
             "weight_lb",
             f"Morning body weight in pounds (lb), after the toilet and before eating or drinking; "
-            f"accepted {_lb(w_lo):g}-{_lb(w_hi):g} lb. Leave blank on days without a weigh-in.",
+            f"accepted {lb_lo:g}-{lb_hi:g} lb. Leave blank on days without a weigh-in.",
             "decimal",
-            _lb(w_lo),
-            _lb(w_hi),
+            lb_lo,
+            lb_hi,
         )
     else:
         weight = Column(
@@ -100,14 +104,14 @@ def daily_columns(units: Units = "metric", energy: Energy = "kcal") -> tuple[Col
             w_hi,
         )
     if energy == "kJ":
+        kj_lo, kj_hi = _inside(e_lo, e_hi, KCAL_PER_KJ)
         intake = Column(
             "intake_kj",
             f"Everything eaten and drunk that day in kilojoules (kJ); accepted "
-            f"{e_lo:g}-{round(e_hi * KJ_PER_KCAL):g} kJ. Leave blank if the day was not logged "
-            "(a blank is not zero).",
+            f"{kj_lo:g}-{kj_hi:g} kJ. Leave blank if the day was not logged (a blank is not zero).",
             "decimal",
-            e_lo,
-            round(e_hi * KJ_PER_KCAL),
+            kj_lo,
+            kj_hi,
         )
     else:
         intake = Column(
@@ -241,13 +245,13 @@ def roster_columns(units: Units = "metric") -> tuple[Column, ...]:
     """Columns of the ``clients.xlsx`` roster."""
     h_lo, h_hi = limits.HEIGHT_CM
     if units == "imperial":
+        in_lo, in_hi = _inside(h_lo, h_hi, CM_PER_IN)
         height = Column(
             "height_in",
-            f"Height in inches (in), e.g. 70.5; accepted {h_lo / CM_PER_IN:.1f}-"
-            f"{h_hi / CM_PER_IN:.1f} in.",
+            f"Height in inches (in), e.g. 70.5; accepted {in_lo:g}-{in_hi:g} in.",
             "decimal",
-            round(h_lo / CM_PER_IN, 1),
-            round(h_hi / CM_PER_IN, 1),
+            in_lo,
+            in_hi,
         )
     else:
         height = Column(
@@ -259,12 +263,13 @@ def roster_columns(units: Units = "metric") -> tuple[Column, ...]:
         )
     w_lo, w_hi = limits.WEIGHT_KG
     if units == "imperial":
+        lb_lo, lb_hi = _inside(w_lo, w_hi, KG_PER_LB)
         goal = Column(
             "goal_weight_lb",
-            f"Goal weight in pounds (lb), optional; {_lb(w_lo):g}-{_lb(w_hi):g} lb.",
+            f"Goal weight in pounds (lb), optional; {lb_lo:g}-{lb_hi:g} lb.",
             "decimal",
-            _lb(w_lo),
-            _lb(w_hi),
+            lb_lo,
+            lb_hi,
             width=14.0,
         )
     else:

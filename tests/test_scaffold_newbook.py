@@ -142,11 +142,16 @@ def test_imperial_limits_are_the_reader_limits_converted(tmp_path: Path) -> None
     new_book(tmp_path / "b", ["c1"], units="imperial", energy="kJ")
     daily = _validations(openpyxl.load_workbook(tmp_path / "b" / "logs" / "c1.xlsx")["daily"])
     lo, hi = (float(daily["weight_lb"].formula1), float(daily["weight_lb"].formula2))  # type: ignore[attr-defined]
-    # 1 lb = 0.45359237 kg exactly (1959 agreement); the bounds are rounded to 0.1 lb.
-    assert lo * KG_PER_LB == pytest.approx(limits.WEIGHT_KG[0], abs=0.05)
-    assert hi * KG_PER_LB == pytest.approx(limits.WEIGHT_KG[1], abs=0.05)
-    # 1 kcal = 4.184 kJ (thermochemical calorie), rounded to 1 kJ.
-    assert float(daily["intake_kj"].formula2) == pytest.approx(limits.INTAKE_KCAL[1] * 4.184, abs=1)  # type: ignore[attr-defined]
+    # 1 lb = 0.45359237 kg exactly (1959 agreement); bounds rounded inwards to 0.1 lb, so
+    # Excel never accepts a weight the reader refuses.
+    assert limits.WEIGHT_KG[0] <= lo * KG_PER_LB < limits.WEIGHT_KG[0] + 0.1 * KG_PER_LB
+    assert limits.WEIGHT_KG[1] - 0.1 * KG_PER_LB < hi * KG_PER_LB <= limits.WEIGHT_KG[1]
+    assert (lo, hi) == (55.2, 771.6)
+    # 1 kcal = 4.184 kJ (thermochemical calorie): 15000 kcal = 62760 kJ.
+    assert float(daily["intake_kj"].formula2) == 62760  # type: ignore[attr-defined]
+    roster = _validations(openpyxl.load_workbook(tmp_path / "b" / "clients.xlsx")["clients"])
+    # 1 in = 2.54 cm exactly: 100-250 cm = 39.37-98.43 in, rounded inwards.
+    assert (roster["height_in"].formula1, roster["height_in"].formula2) == ("39.4", "98.4")  # type: ignore[attr-defined]
 
 
 def test_scaffold_is_reproducible(tmp_path: Path) -> None:

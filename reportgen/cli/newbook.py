@@ -3,8 +3,12 @@
 from __future__ import annotations
 
 from pathlib import Path
+from typing import TYPE_CHECKING, cast
 
 import click
+
+if TYPE_CHECKING:
+    from reportgen.scaffold import Energy, Units
 
 
 @click.command("new-book")
@@ -66,19 +70,28 @@ def new_book_command(
                     "use either --client (new book) or --add-client (existing book), not both"
                 )
             for cid in add_clients:
-                path = add_client(book_dir, cid, units, energy)  # type: ignore[arg-type]
+                path = add_client(
+                    book_dir, cid, cast("Units | None", units), cast("Energy", energy)
+                )
                 click.echo(f"wrote {path}")
             click.echo(
                 "Next: add a row for each new client to the roster "
                 f"({book_dir / 'clients.xlsx'}), then log days in the new workbook."
             )
             return
-        written = new_book(book_dir, clients, units or "metric", energy)  # type: ignore[arg-type]
+        written = new_book(
+            book_dir, clients, cast("Units", units or "metric"), cast("Energy", energy)
+        )
     except ScaffoldError as exc:
         raise click.ClickException(str(exc)) from None
     for path in written:
         click.echo(f"wrote {path}")
+    if not clients:
+        click.echo(
+            f"Next: add clients with `reportgen new-book {book_dir} --add-client ID` and a "
+            f"row each in {book_dir / 'clients.xlsx'}."
+        )
     click.echo(
         f"Next: fill in {book_dir / 'clients.xlsx'}, log days in logs/<id>.xlsx, then run "
-        f"`reportgen check {book_dir}`."
+        f"`reportgen check {book_dir}` and `reportgen batch {book_dir} --month YYYY-MM --out OUT`."
     )
