@@ -19,7 +19,7 @@ warning is a stable code in ``BodyFatEstimate.warnings``:
     18-55, D&W men 17-72 and women 16-68; published populations).
 ``sum-over-120``
     JP/JPW sum of skinfolds above 120 mm, where the quadratic equations
-    underestimate fat (Nevill et al. 2008).
+    underestimate fat (Nevill et al. 2008 [1]_).
 ``sum-beyond-vertex``
     JP/JPW sum past the quadratic's vertex (b/2c), where predicted fat falls as
     skinfolds rise (computed from the coefficients).
@@ -27,6 +27,18 @@ warning is a stable code in ``BodyFatEstimate.warnings``:
     Body density outside 0.99-1.10 g/ml (two-compartment assumptions fail).
 ``bodyfat-out-of-range``
     The %BF came out below 0 or at/above 100.
+
+The 120 mm limit applies to the sum the equation uses (3 or 7 sites): Nevill
+et al. [1]_ re-analysed the original JP data and advise caution with the
+quadratic equations "for subjects with sums of skinfolds > 120 mm" without
+restricting it to one site set (published, abstract).
+
+References
+----------
+.. [1] Nevill AM, Metsios GS, Jackson AS, Wang J, Thornton J, Gallagher D. Can
+   we use the Jackson and Pollock equations to predict body density/fat of
+   obese individuals in the 21st century? Int J Body Compos Res 2008;6:114-121
+   (journal volume and pages from memory).
 """
 
 from __future__ import annotations
