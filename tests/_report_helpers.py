@@ -10,6 +10,8 @@ from __future__ import annotations
 import datetime as dt
 import io
 from dataclasses import replace
+from functools import cache
+from pathlib import Path
 
 import numpy as np
 
@@ -248,3 +250,32 @@ def sparse_analysis(name: str = "Ann & <Bo>") -> ClientAnalysis:
         flags=(),
         methods=(),
     )
+
+
+REPO = Path(__file__).resolve().parent.parent
+SAMPLE_BOOK = REPO / "sample_inputs"
+SAMPLE_MONTH = "2026-11"
+SAMPLE_TODAY = dt.date(2026, 12, 1)
+
+
+@cache
+def sample_analysis(client_id: str, month: str = SAMPLE_MONTH) -> ClientAnalysis:
+    """The real pipeline on the shipped sample book: read the roster and the client, analyse."""
+    from reportgen.analysis import analyse_client
+    from reportgen.config import AnalysisSettings
+    from reportgen.io.book import read_client, read_roster
+
+    roster = read_roster(SAMPLE_BOOK)
+    client = next(c for c in roster.clients if c.client_id == client_id)
+    year, mon = (int(p) for p in month.split("-"))
+    month_end = dt.date(year + (mon == 12), mon % 12 + 1, 1) - dt.timedelta(days=1)
+    record = read_client(
+        SAMPLE_BOOK,
+        client,
+        roster.phases.get(client_id, ()),
+        month_end,
+        today=SAMPLE_TODAY,
+        roster_problems=tuple(p for p in roster.problems if p.client_id == client_id),
+    )
+    assert record.ok, record.errors
+    return analyse_client(record, month, AnalysisSettings())

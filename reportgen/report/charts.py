@@ -28,6 +28,7 @@ from matplotlib.axes import Axes
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
+from reportgen.io.limits import RATING
 from reportgen.resources import font_path
 from reportgen.results import ClientAnalysis, PhaseResult
 
@@ -67,11 +68,11 @@ def _chart_font_file() -> Path:
     options.drop_tables += list(FONT_TABLES_DROPPED)
     options.name_IDs = ["*"]
     options.notdef_outline = True
+    options.glyph_names = True  # keep post format 2: matplotlib's own subsetting is faster
     font = subset.load_font(str(src), options)
     subsetter = subset.Subsetter(options=options)
     subsetter.populate(unicodes=[c for lo, hi in CHART_FONT_RANGES for c in range(lo, hi + 1)])
     subsetter.subset(font)
-    font["post"].formatType = 3.0  # no glyph names: matplotlib embeds by glyph index
     for rec in font["name"].names:
         if rec.nameID in (1, 4, 16):
             rec.string = CHART_FONT_FAMILY
@@ -87,22 +88,16 @@ def _chart_font_file() -> Path:
 
 FONT_TABLES_DROPPED = ("GPOS", "GSUB", "GDEF", "MATH", "FFTM")
 # Scripts kept for chart text (labels from templates, phase names from the book): Latin with
-# all extensions (incl. Vietnamese), Greek, Cyrillic, punctuation, currency, arrows, maths.
+# all extensions (incl. Vietnamese), Greek, Cyrillic, punctuation, the euro and minus signs.
 CHART_FONT_RANGES = (
-    (0x0020, 0x024F),
-    (0x0250, 0x02FF),
-    (0x0300, 0x036F),
-    (0x0370, 0x03FF),
-    (0x0400, 0x052F),
-    (0x1E00, 0x1EFF),
-    (0x2000, 0x206F),
-    (0x2070, 0x209F),
-    (0x20A0, 0x20CF),
-    (0x2100, 0x214F),
-    (0x2150, 0x218F),
-    (0x2190, 0x21FF),
-    (0x2200, 0x22FF),
-    (0x25A0, 0x25FF),
+    (0x0020, 0x024F),  # Basic Latin, Latin-1, Latin Extended-A and -B
+    (0x02B0, 0x036F),  # spacing modifiers and combining marks (decomposed accents)
+    (0x0370, 0x03FF),  # Greek
+    (0x0400, 0x04FF),  # Cyrillic
+    (0x1E00, 0x1EFF),  # Latin Extended Additional (Vietnamese and others)
+    (0x2000, 0x206F),  # general punctuation
+    (0x20AC, 0x20AC),  # euro sign
+    (0x2212, 0x2212),  # minus sign
 )
 
 
@@ -485,7 +480,10 @@ def signals_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -
             if name == "steps":
                 _y_ticks(ax, lo, hi, n=3)
             else:
-                _y_ticks(ax, min(lo, 1.0), max(hi, 5.0), n=4)
+                r0, r1 = RATING
+                ax.set_ylim(r0 - 0.6, r1 + 0.6)
+                ax.set_yticks([r0, (r0 + r1) // 2, r1])
+                ax.set_yticklabels([f"{r0:.0f}", f"{(r0 + r1) // 2:.0f}", f"{r1:.0f}"])
         _time_ticks(ax, ctx.start, ctx.end, u, label=(i == 2))
     return _save(fig)
 
@@ -531,13 +529,14 @@ def bodycomp_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) 
         ok = np.isfinite(y)
         if ok.any():
             ax.plot(xs[ok], y[ok], color=c, lw=1.2, marker="o", ms=3.2, zorder=3)
-            for xi, yi in zip(xs[ok][[0, -1]], y[ok][[0, -1]], strict=True):
+            ends = [0, -1] if ok.sum() > 1 else [0]
+            for xi, yi, ha in zip(xs[ok][ends], y[ok][ends], ("left", "right"), strict=False):
                 ax.annotate(
                     f"{yi:.{dp}f}",
                     (xi, yi),
-                    xytext=(0, 4),
+                    xytext=(3 if ha == "left" else -3, 3),
                     textcoords="offset points",
-                    ha="center",
+                    ha=ha,
                     fontsize=5.8,
                     color=T.INK,
                 )

@@ -93,8 +93,12 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
         rows.append(("adaptation", v + (f" ({pct})" if pct else ""), i, "of expected"))
         rows.append(("depth", u.pct(ph.deficit_depth_pct), "", "realised deficit ÷ maintenance"))
         rows.append(("days_deficit", u.number(ph.days_in_deficit), "", "up to month end"))
-    for code, kcal in sorted(a.resting_kcal.items()):
-        rows.append(("resting", u.e(kcal), "", _method_name(a, code)))
+    if a.resting_kcal:
+        values = sorted(a.resting_kcal.items(), key=lambda kv: kv[1])
+        lo, hi = values[0][1], values[-1][1]
+        span = u.e(lo) if len(values) == 1 else f"{u.e(lo, unit=False)}{chr(0x2013)}{u.e(hi)}"
+        detail = "; ".join(f"{_method_name(a, c)} {u.e(k, unit=False)}" for c, k in values)
+        rows.append(("resting", span, "", detail))
     if a.bodycomp:
         last = a.bodycomp[-1]
         rows.append(

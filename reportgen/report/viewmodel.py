@@ -29,6 +29,9 @@ RATE_FLAT_PCT = 0.1  # |rate| below this reads as "holding steady" (common pract
 ADAPT_MIN_PCT = 3.0
 # Signals: only changes the analysis sized "moderate" or "large" are called out.
 SIGNAL_NOTABLE = ("moderate", "large")
+# Below-expected expenditure of this share or more is worded as "check logging first": larger
+# than the 5-15 % usually attributed to adaptation (common practice, no single source).
+ADAPT_LARGE_PCT = 15.0
 LONG_DEFICIT_DAYS = 84  # 12 weeks of continuous deficit: suggest a break (common practice)
 
 
@@ -170,6 +173,8 @@ def _flag_view(u: Units, f: Any) -> dict[str, Any]:
             values[k] = u.w(float(v))
         elif k.endswith("_pct") or k.endswith("pct_per_week"):
             values[k] = u.pct(float(v))
+        elif k.endswith("_years") or k == "weeks":
+            values[k] = u.number(float(v), 0)
         else:
             values[k] = u.number(float(v), 1)
     return {"code": f.code, "severity": f.severity, "values": values}
@@ -235,6 +240,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         else "",
         "adapt_state": "unknown",
         "adapt_abs": "",
+        "adapt_large": False,
         "signals": [_signal_view(u, s) for s in a.signals],
         "notable_signals": [_signal_view(u, s) for s in a.signals if s.size in SIGNAL_NOTABLE],
         "long_deficit": bool(
@@ -252,6 +258,8 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         story["adapt_state"] = _adapt_state(ph.adaptation_kcal, ph.adaptation_pct, implausible)
         if ph.adaptation_kcal.known and ph.adaptation_kcal.value is not None:
             story["adapt_abs"] = u.e(abs(ph.adaptation_kcal.value))
+        pct = ph.adaptation_pct.value
+        story["adapt_large"] = bool(pct is not None and abs(pct) >= ADAPT_LARGE_PCT)
     pr = a.projection
     if pr is not None and len(pr.weight_kg):
         story["projection_end"] = u.w(float(pr.weight_kg[-1]))
