@@ -51,3 +51,12 @@ def test_too_few_neighbours_means_no_judgement() -> None:
 def test_empty_and_all_missing() -> None:
     assert weight_outliers(np.empty(0))[0].shape == (0,)
     assert not weight_outliers(np.full(5, np.nan))[0].any()
+
+
+def test_no_false_positives_over_many_noisy_clients() -> None:
+    """Normal noise (SD 0.5 kg) never reaches 5 robust SDs; window ends included."""
+    rng = np.random.default_rng(7)
+    for _ in range(200):
+        level = rng.uniform(40.0, 160.0)
+        w = level - 0.03 * np.arange(365) + rng.normal(0.0, 0.5, size=365)
+        assert not weight_outliers(w)[0].any()

@@ -4,17 +4,20 @@ from __future__ import annotations
 
 import datetime as dt
 import itertools
+import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Final
 
 import numpy as np
+import numpy.typing as npt
 
 from reportgen.io import limits
 from reportgen.io.cells import CellError, check_range, parse_date, parse_number, shown
 from reportgen.io.columns import check_columns
-from reportgen.io.model import DailyLog, Problem
+from reportgen.io.model import BoolArray, DailyLog, FloatArray, Problem
 from reportgen.io.outliers import weight_outliers
-from reportgen.io.tables import Cell, Table
+from reportgen.io.tables import Cell, Table, cell_text
 from reportgen.io.units import UNIT_AGREEMENT, UNIT_MAP, alternatives
 
 #: Canonical value column -> (limits, unit, why the limits).  Weight is range-checked after
@@ -28,15 +31,8 @@ DAILY_VALUES: Final[dict[str, tuple[tuple[float, float], str, str]]] = {
     "sleep_h": (limits.SLEEP_H, "h", "a day has 24 hours"),
 }
 DAILY_REQUIRED: Final = (("date",), alternatives("weight_kg"), alternatives("intake_kcal"))
+IntArray = npt.NDArray[np.int64]
 DAILY_KNOWN: Final = ("date", *[a for c in DAILY_VALUES for a in alternatives(c)])
-
-
-@dataclass(frozen=True)
-class _Entry:
-    row: int
-    date: dt.date
-    values: tuple[float | None, ...]  # aligned with DAILY_VALUES
-    weight_cell: tuple[str, Cell]  # (column as written, cell) of the weight used
 
 
 @dataclass(frozen=True)
@@ -74,6 +70,45 @@ def _warn(
     )
 
 
+def number_column(
+    cells: Sequence[Cell], column: str
+) -> tuple[FloatArray, list[tuple[int, CellError]]]:
+    """Parse a whole column of number cells: NaN for blank or bad cells, plus the errors.
+
+    Fast paths for all-text (CSV) and numeric (XLSX) columns; every cell they cannot settle
+    goes through :func:`~reportgen.io.cells.parse_number`, which alone decides what a
+    number is.
+    """
+    n = len(cells)
+    out: FloatArray | None = None
+    if all(type(c) is str for c in cells):
+        joined = "".join(cells)  # type: ignore[arg-type]
+        if joined.isascii() and "_" not in joined:  # what float() takes beyond our rules
+            try:
+                out = np.array(cells, dtype=str).astype(np.float64)
+            except ValueError:
+                import pandas as pd
+
+                # pandas returns a read-only view (copy-on-write): take a writable copy
+                num = pd.to_numeric(pd.Series(cells, dtype=object), errors="coerce")
+                out = np.array(num, dtype=np.float64)
+        if out is not None:
+            todo = np.flatnonzero(~np.isfinite(out)).tolist()
+    if out is None:
+        out = np.array([c if type(c) is float else np.nan for c in cells], dtype=np.float64)
+        todo = [i for i, c in enumerate(cells) if type(c) is not float or not math.isfinite(c)]
+    errors: list[tuple[int, CellError]] = []
+    for i in todo:
+        try:
+            x = parse_number(cells[i], column)
+        except CellError as e:
+            errors.append((i, e))
+            x = None
+        out[i] = np.nan if x is None else x
+    assert out.shape == (n,)
+    return out, errors
+
+
 def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date) -> DailyResult:
     """Parse a daily log table into a :class:`DailyLog` on a complete calendar grid."""
     problems, ok = check_columns(table, DAILY_REQUIRED, DAILY_KNOWN, client_id)
@@ -81,102 +116,105 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
         return DailyResult(DailyLog.empty(), (), tuple(problems))
     date_pos = table.index("date")
     assert date_pos is not None
-    sources: list[list[tuple[int, str, float]]] = []  # per value: (position, raw name, factor)
-    for canonical in DAILY_VALUES:
+    date_raw = table.raw_columns[date_pos]
+    rows = [r for r, _ in table.rows]
+    n = len(rows)
+    columns: list[tuple[Cell, ...]] = (
+        list(zip(*(c for _, c in table.rows), strict=True)) if n else [()] * len(table.columns)
+    )
+
+    def err(code: str, msg: str, i: int, col: str | None, val: Cell) -> None:
+        problems.append(_err(code, msg, table, client_id, rows[i], col, val))
+
+    # Dates: ISO text or real date cells only (never guessed).
+    ords = np.full(n, -1, dtype=np.int64)
+    for i, cell in enumerate(columns[date_pos]):
+        try:
+            day = parse_date(cell, date_raw)
+        except CellError as e:
+            err(e.code, e.message, i, date_raw, cell)
+            ords[i] = -2
+            continue
+        if day is not None:
+            ords[i] = day.toordinal()
+
+    # Values, converted to canonical units; conflicts and limits (weight: after outliers).
+    values = np.full((len(DAILY_VALUES), n), np.nan)
+    weight_from = np.full(n, -1, dtype=np.int64)  # table position the weight came from
+    for k, (canonical, (lims, unit, why)) in enumerate(DAILY_VALUES.items()):
         srcs = []
         for name in alternatives(canonical):
             pos = table.index(name)
-            if pos is not None:
-                factor = UNIT_MAP[name][1] if name in UNIT_MAP else 1.0
-                srcs.append((pos, table.raw_columns[pos], factor))
-        sources.append(srcs)
-    date_raw = table.raw_columns[date_pos]
-
-    entries: list[_Entry] = []
-    for row, cells in table.rows:
-        try:
-            day = parse_date(cells[date_pos], date_raw)
-        except CellError as e:
-            problems.append(
-                _err(e.code, e.message, table, client_id, row, date_raw, cells[date_pos])
-            )
-            continue
-        values: list[float | None] = []
-        weight_cell: tuple[str, Cell] = ("", None)
-        for k, (canonical, (lims, unit, why)) in enumerate(DAILY_VALUES.items()):
-            got: list[tuple[str, Cell, float]] = []
-            for pos, raw, factor in sources[k]:
-                try:
-                    x = parse_number(cells[pos], raw)
-                except CellError as e:
-                    problems.append(_err(e.code, e.message, table, client_id, row, raw, cells[pos]))
-                    continue
-                if x is not None:
-                    got.append((raw, cells[pos], x * factor))
-            if not got:
-                values.append(None)
+            if pos is None:
                 continue
-            raw, cell, x = got[0]
-            if len(got) > 1 and abs(got[1][2] - x) > UNIT_AGREEMENT[canonical]:
-                raw2, cell2, x2 = got[1]
-                when = f"on {day}" if day else f"in row {row}"
-                problems.append(
-                    _err(
-                        "unit-conflict",
-                        f"has both {raw} {shown(cell)} and {raw2} {shown(cell2)} {when} with "
-                        f"different values ({x:.1f} vs {x2:.1f} {unit}); keep one",
-                        table,
-                        client_id,
-                        row,
-                        raw2,
-                        cell2,
-                    )
+            raw = table.raw_columns[pos]
+            x, bad = number_column(columns[pos], raw)
+            for i, e in bad:
+                err(e.code, e.message, i, raw, columns[pos][i])
+            srcs.append((pos, raw, x * (UNIT_MAP[name][1] if name in UNIT_MAP else 1.0)))
+        if not srcs:
+            continue
+        pos_a, raw_a, a = srcs[0]
+        used = np.where(np.isfinite(a), pos_a, -1)
+        v = a.copy()
+        if len(srcs) > 1:
+            pos_b, raw_b, b = srcs[1]
+            both = np.isfinite(a) & np.isfinite(b)
+            for i in np.flatnonzero(both & (np.abs(a - b) > UNIT_AGREEMENT[canonical])):
+                when = f"on {dt.date.fromordinal(ords[i])}" if ords[i] > 0 else f"in row {rows[i]}"
+                ca, cb = columns[pos_a][i], columns[pos_b][i]
+                err(
+                    "unit-conflict",
+                    f"has both {raw_a} {shown(ca)} and {raw_b} {shown(cb)} {when} with "
+                    f"different values ({a[i]:.1f} vs {b[i]:.1f} {unit}); keep one",
+                    i,
+                    raw_b,
+                    cb,
                 )
-                values.append(None)
-                continue
-            if canonical == "weight_kg":
-                weight_cell = (raw, cell)
-            else:
+                v[i] = np.nan
+                used[i] = -1
+            only_b = ~np.isfinite(a) & np.isfinite(b)
+            v[only_b] = b[only_b]
+            used[only_b] = pos_b
+        if canonical == "weight_kg":
+            weight_from = used
+        else:
+            for i in np.flatnonzero(np.isfinite(v) & ((v < lims[0]) | (v > lims[1]))):
+                cell = columns[int(used[i])][i]
                 try:
-                    check_range(x, lims, raw, cell, unit, why)
+                    check_range(float(v[i]), lims, table.raw_columns[int(used[i])], cell, unit, why)
                 except CellError as e:
-                    problems.append(_err(e.code, e.message, table, client_id, row, raw, cell))
-                    values.append(None)
-                    continue
-            values.append(x)
-        if day is None:
-            if any(v is not None for v in values):
-                problems.append(
-                    _err(
-                        "missing-value",
-                        f"row {row} has values but no {date_raw}; add the date",
-                        table,
-                        client_id,
-                        row,
-                        date_raw,
-                        None,
-                    )
-                )
-            continue
-        if day > today:
-            problems.append(
-                _warn(
-                    "future-date",
-                    f"{date_raw} {day} is after today ({today}); the row is ignored",
-                    table,
-                    client_id,
-                    row,
-                    date_raw,
-                    cells[date_pos],
-                )
-            )
-            continue
-        if day > month_end:
-            continue  # belongs to a later report
-        entries.append(_Entry(row, day, tuple(values), weight_cell))
+                    err(e.code, e.message, int(i), table.raw_columns[int(used[i])], cell)
+                v[i] = np.nan
+        values[k] = v
 
-    entries = _drop_duplicates(entries, table, client_id, date_raw, problems)
-    if not entries:
+    has_value = np.isfinite(values).any(axis=0)
+    for i in np.flatnonzero((ords == -1) & has_value):
+        err(
+            "missing-value",
+            f"row {rows[i]} has values but no {date_raw}; add the date",
+            i,
+            date_raw,
+            None,
+        )
+    today_o, end_o = today.toordinal(), month_end.toordinal()
+    for i in np.flatnonzero(ords > today_o):
+        problems.append(
+            _warn(
+                "future-date",
+                f"{date_raw} {dt.date.fromordinal(ords[i])} is after today ({today}); the row is "
+                "ignored",
+                table,
+                client_id,
+                rows[i],
+                date_raw,
+                columns[date_pos][i],
+            )
+        )
+    keep = np.flatnonzero((ords > 0) & (ords <= min(today_o, end_o)))  # later: a later report
+    keep = keep[np.argsort(ords[keep], kind="stable")]
+    keep = _drop_duplicates(keep, ords, values, rows, table, client_id, date_raw, problems)
+    if keep.size == 0:
         problems.append(
             Problem(
                 "error",
@@ -186,51 +224,49 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
                 client_id=client_id,
             )
         )
-        return DailyResult(DailyLog.empty(), (), tuple(problems))
+        return DailyResult(DailyLog.empty(), (), tuple(_by_row(problems)))
 
-    first = min(e.date for e in entries)
-    last = max(e.date for e in entries)
-    n = (last - first).days + 1
-    grid = np.full((len(DAILY_VALUES), n), np.nan)
-    by_day: dict[int, _Entry] = {}
-    for e in entries:
-        i = (e.date - first).days
-        by_day[i] = e
-        for k, v in enumerate(e.values):
-            if v is not None:
-                grid[k, i] = v
+    first = int(ords[keep[0]])
+    n_days = int(ords[keep[-1]]) - first + 1
+    day_index = ords[keep] - first
+    grid = np.full((len(DAILY_VALUES), n_days), np.nan)
+    grid[:, day_index] = values[:, keep]
+    source_row = np.full(n_days, -1, dtype=np.int64)
+    source_row[day_index] = keep
     weight = grid[0]
     flags, level = weight_outliers(weight)
     lims, unit, why = DAILY_VALUES["weight_kg"]
     outliers: list[tuple[dt.date, float]] = []
-    for i in np.flatnonzero(~np.isnan(weight)):
-        e = by_day[int(i)]
-        raw, cell = e.weight_cell
-        if flags[i]:
-            outliers.append((e.date, float(weight[i])))
+    bad_weight = np.isfinite(weight) & ((weight < lims[0]) | (weight > lims[1]))
+    for d in np.flatnonzero(flags | bad_weight):
+        i = int(source_row[d])
+        raw = table.raw_columns[int(weight_from[i])]
+        cell = columns[int(weight_from[i])][i]
+        day = dt.date.fromordinal(first + int(d))
+        if flags[d]:
+            outliers.append((day, float(weight[d])))
             problems.append(
                 Problem(
                     "warning",
                     "outlier",
-                    f"{raw} {shown(cell)} on {e.date} is far from the level of the weigh-ins "
-                    f"around it ({level[i]:.1f} kg); it is left out of the analysis (the file "
+                    f"{raw} {shown(cell)} on {day} is far from the level of the weigh-ins "
+                    f"around it ({level[d]:.1f} kg); it is left out of the analysis (the file "
                     "is not changed). Check the entry",
                     file=table.file,
-                    row=e.row,
+                    row=rows[i],
                     column=raw,
-                    value=str(cell),
+                    value=cell_text(cell),
                     client_id=client_id,
                 )
             )
             continue
         try:
-            check_range(float(weight[i]), lims, raw, cell, unit, why)
-        except CellError as err:
-            problems.append(_err(err.code, err.message, table, client_id, e.row, raw, cell))
-    problems.extend(_gaps(entries, table, client_id, date_raw))
-    dates = np.datetime64(first, "D") + np.arange(n)
+            check_range(float(weight[d]), lims, raw, cell, unit, why)
+        except CellError as e:
+            err(e.code, e.message, i, raw, cell)
+    problems.extend(_gaps(keep, ords, has_value, rows, table, client_id, date_raw))
     log = DailyLog(
-        dates=dates,
+        dates=np.datetime64(dt.date.fromordinal(first), "D") + np.arange(n_days),
         weight_kg=weight,
         weight_outlier=flags,
         intake_kcal=grid[1],
@@ -239,68 +275,93 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
         energy=grid[4],
         sleep_h=grid[5],
     )
-    return DailyResult(log, tuple(outliers), tuple(problems))
+    return DailyResult(log, tuple(outliers), tuple(_by_row(problems)))
+
+
+def _by_row(problems: list[Problem]) -> list[Problem]:
+    return sorted(problems, key=lambda p: p.row or 0)
 
 
 def _drop_duplicates(
-    entries: list[_Entry], table: Table, cid: str, date_raw: str, problems: list[Problem]
-) -> list[_Entry]:
-    """Keep one entry per date; identical repeats warn, conflicting ones are errors."""
-    first_for: dict[dt.date, _Entry] = {}
-    kept: list[_Entry] = []
-    for e in entries:
-        prev = first_for.get(e.date)
-        if prev is None:
-            first_for[e.date] = e
-            kept.append(e)
-        elif prev.values == e.values:
+    keep: IntArray,
+    ords: IntArray,
+    values: FloatArray,
+    rows: list[int],
+    table: Table,
+    cid: str,
+    date_raw: str,
+    problems: list[Problem],
+) -> IntArray:
+    """Keep one row per date; identical repeats warn, conflicting ones are errors."""
+    if keep.size < 2:
+        return keep
+    same = np.flatnonzero(ords[keep][1:] == ords[keep][:-1]) + 1
+    if same.size == 0:
+        return keep
+    drop = set()
+    first_of = {}
+    for j in range(keep.size):
+        o = int(ords[keep[j]])
+        first_of.setdefault(o, j)
+    for j in same.tolist():
+        i, f = int(keep[j]), int(keep[first_of[int(ords[keep[j]])]])
+        day = dt.date.fromordinal(int(ords[i]))
+        drop.add(j)
+        if np.array_equal(values[:, i], values[:, f], equal_nan=True):
             problems.append(
                 _warn(
                     "duplicate-row",
-                    f"row {e.row} repeats row {prev.row} ({date_raw} {e.date}, same values); "
+                    f"row {rows[i]} repeats row {rows[f]} ({date_raw} {day}, same values); "
                     "the repeat is ignored",
                     table,
                     cid,
-                    e.row,
+                    rows[i],
                     date_raw,
-                    e.date,
+                    day,
                 )
             )
         else:
             problems.append(
                 _err(
                     "duplicate-date",
-                    f"{date_raw} {e.date} appears in rows {prev.row} and {e.row} with different "
+                    f"{date_raw} {day} appears in rows {rows[f]} and {rows[i]} with different "
                     "values; keep one row per day",
                     table,
                     cid,
-                    e.row,
+                    rows[i],
                     date_raw,
-                    str(e.date),
+                    str(day),
                 )
             )
-    return kept
+    return np.array([k for j, k in enumerate(keep.tolist()) if j not in drop], dtype=np.int64)
 
 
-def _gaps(entries: list[_Entry], table: Table, cid: str, date_raw: str) -> list[Problem]:
+def _gaps(
+    keep: IntArray,
+    ords: IntArray,
+    has_value: BoolArray,
+    rows: list[int],
+    table: Table,
+    cid: str,
+    date_raw: str,
+) -> list[Problem]:
     """Warnings for runs of more than MAX_GAP_DAYS days without any entry."""
-    active = sorted(
-        (e for e in entries if any(v is not None for v in e.values)), key=lambda e: e.date
-    )
+    active = keep[has_value[keep]]
     out = []
-    for a, b in itertools.pairwise(active):
-        missing = (b.date - a.date).days - 1
+    for a, b in itertools.pairwise(active.tolist()):
+        missing = int(ords[b] - ords[a]) - 1
         if missing > limits.MAX_GAP_DAYS:
+            da, db = dt.date.fromordinal(int(ords[a])), dt.date.fromordinal(int(ords[b]))
             out.append(
                 _warn(
                     "gap",
-                    f"no entries for {missing} days ({a.date + dt.timedelta(days=1)} to "
-                    f"{b.date - dt.timedelta(days=1)}); results around the gap are less certain",
+                    f"no entries for {missing} days ({da + dt.timedelta(days=1)} to "
+                    f"{db - dt.timedelta(days=1)}); results around the gap are less certain",
                     table,
                     cid,
-                    b.row,
+                    rows[b],
                     date_raw,
-                    b.date,
+                    db,
                 )
             )
     return out

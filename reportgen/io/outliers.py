@@ -1,12 +1,13 @@
 """Robust detection of isolated weigh-in outliers against the client's local level.
 
 Each weigh-in is compared with the median of the weigh-ins within a week either side
-(the local level).  The spread is the median absolute deviation (MAD) in the same window,
-scaled by 1.4826 so that it estimates a standard deviation for normally distributed
-day-to-day noise (Hampel filter; Hampel 1974, from memory).  A weigh-in further than
-:data:`OUTLIER_K` spreads from the level is an outlier.  The spread has a floor relative to
-the level so that a very steady client (the same reading every day, MAD = 0) does not turn
-ordinary 0.5 kg water swings into outliers.
+(the local level).  The spread is the median absolute deviation (MAD), scaled by 1.4826 so
+that it estimates a standard deviation for normally distributed day-to-day noise (Hampel
+filter; Hampel 1974, from memory).  A weigh-in further than :data:`OUTLIER_K` spreads from the
+level is an outlier.  The spread used is the largest of the MAD in the window, the MAD of all
+the client's deviations from their local level (stable where a window holds few weigh-ins, as
+at the ends of the series) and a floor, so that a very steady client (the same reading every
+day, MAD = 0) does not turn ordinary water swings into outliers.
 """
 
 from __future__ import annotations
@@ -28,9 +29,12 @@ OUTLIER_MIN_NEIGHBOURS: Final = 4
 OUTLIER_K: Final = 5.0
 #: Scale from MAD to a standard deviation under normality, 1 / Phi^-1(3/4) = 1.4826.
 MAD_TO_SD: Final = 1.4826
-#: Floor of the robust spread as a fraction of the local level: 0.6 % (about 0.5 kg at 82 kg,
-#: the typical day-to-day SD of body weight from water and gut content, from memory), so the
-#: smallest deviation ever flagged is 5 x 0.6 % = 3 % of body weight (about 2.5 kg at 82 kg).
+#: [kg] Floor of the robust spread: 0.5 kg, about the typical day-to-day SD of body weight from
+#: water and gut content (from memory), so nothing within 5 x 0.5 = 2.5 kg of the level is
+#: ever flagged.
+SCALE_FLOOR_KG: Final = 0.5
+#: Floor of the robust spread as a fraction of the local level (0.6 %: 0.5 kg at 82 kg), so that
+#: heavier clients, whose day-to-day swings are larger in kg, get a proportionally wider band.
 SCALE_FLOOR_FRACTION: Final = 0.006
 
 
@@ -53,7 +57,8 @@ def weight_outliers(weight_kg: FloatArray) -> tuple[BoolArray, FloatArray]:
     -----
     Rolling median/MAD (Hampel) filter over +-:data:`OUTLIER_HALF_WINDOW_DAYS` calendar days;
     days whose window holds fewer than :data:`OUTLIER_MIN_NEIGHBOURS` other weigh-ins are
-    never flagged.
+    never flagged.  Spread = max(local MAD, whole-series MAD of the deviations, floor), each
+    scaled to a standard deviation by :data:`MAD_TO_SD`.
     """
     w = np.asarray(weight_kg, dtype=np.float64)
     n = w.shape[0]
@@ -72,6 +77,9 @@ def weight_outliers(weight_kg: FloatArray) -> tuple[BoolArray, FloatArray]:
         warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN windows give NaN: wanted
         level = np.nanmedian(win, axis=1)
         mad = np.nanmedian(np.abs(win - level[:, None]), axis=1)
-    scale = np.maximum(MAD_TO_SD * mad, SCALE_FLOOR_FRACTION * np.abs(level))
+        resid = w - level
+        overall = MAD_TO_SD * np.nanmedian(np.abs(resid - np.nanmedian(resid)))
+    floor = np.maximum(SCALE_FLOOR_KG, SCALE_FLOOR_FRACTION * np.abs(level))
+    scale = np.maximum(np.maximum(MAD_TO_SD * mad, floor), np.nan_to_num(overall))
     flags = judged & (np.abs(w - level) > OUTLIER_K * scale)
     return flags, level
