@@ -38,7 +38,16 @@ from reportgen.science.hall import project_weight
 from reportgen.science.resting import RESTING_METHODS, resting_kcal_all
 from reportgen.science.signals import summarise_signal
 from reportgen.science.skinfolds import estimate_body_fat, estimate_body_fat_from_bmi
-from reportgen.science.trend import Z80, TrendFit, ema_series, local_linear_trend, window_rate
+from reportgen.science.trend import (
+    Z80,
+    NoiseModel,
+    TrendFit,
+    ema_series,
+    fit_noise_model,
+    local_linear_trend,
+    segment_rate,
+    window_rate,
+)
 
 MIN_ANALYSIS_DAYS = bal.MIN_DAYS
 BASELINE_FIRST_WEEKS_DAYS = 28  # "first weeks of data" when no maintenance phase (judgment)
@@ -296,6 +305,8 @@ def _baseline(
     fit: TrendFit,
     comp: _Comp,
     resting_at: object,
+    noise: NoiseModel | None,
+    knots: tuple[int, ...],
 ) -> exp_.Baseline | None:
     """First maintenance phase with a TDEE, else the first weeks of data."""
     resting = resting_at  # callable weight -> kcal or None
@@ -326,7 +337,10 @@ def _baseline(
     wts = log.weight_used_kg[:n]
     mean_w = float(np.mean(fit.level_kg[:n]))
     fat = _fat_at(comp, mean_w)
-    b = bal.window_balance(wts, log.intake_kcal[:n], fat, comp.fat_se_kg, fit.weights[:n])
+    rate = segment_rate(log.weight_used_kg, 0, n - 1, knots, fit.weights, noise)
+    b = bal.window_balance(
+        wts, log.intake_kcal[:n], fat, comp.fat_se_kg, fit.weights[:n], noise, rate
+    )
     return make(b, mean_w, "first-weeks")
 
 
@@ -408,6 +422,13 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
     else:
         notes.append("too-few-weigh-ins")
 
+    # One weigh-in noise model per client, pooled over its phase windows (the whole
+    # log when there are none); used by every rate's standard error.
+    raw_windows = _phase_windows(record.phases, log, as_of)
+    noise: NoiseModel | None = None
+    if fit is not None:
+        spans = [(i0, i1) for _, i0, i1, _ in raw_windows if i1 - i0 + 1 >= MIN_ANALYSIS_DAYS]
+        noise = fit_noise_model(weights_used, spans or [(0, log.n_days - 1)], fit.weights)
     last = log.n_days - 1
     if fit is not None:
         cur_w = float(fit.level_kg[last])
@@ -420,7 +441,7 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
         if i_m >= last:
             month_change = Estimate.missing("no-data-in-month")
         lo = max(log.n_days - RECENT_DAYS, 0)
-        wr = window_rate(weights_used[lo:], fit.weights[lo:])
+        wr = window_rate(weights_used[lo:], fit.weights[lo:], noise=noise)
         if wr is None or log.n_days - lo < MIN_ANALYSIS_DAYS:
             weekly_rate = Estimate.missing("too-few-days")
         else:
@@ -464,8 +485,11 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
                 methods[code] = RESTING_METHODS[code]
 
     # 3. Phases: energy balance per window.
-    raw_windows = _phase_windows(record.phases, log, as_of)
     windows: list[_Window] = []
+    # Slope may change where a phase starts or ends (the intake changed there).
+    knots = tuple(
+        sorted({i0 for _, i0, _, _ in raw_windows} | {i1 + 1 for _, _, i1, _ in raw_windows})
+    )
     for ph, i0, i1, end in raw_windows:
         b = None
         mean_w = None
@@ -473,17 +497,20 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
             mean_w = float(np.mean(fit.level_kg[i0 : i1 + 1]))
             if not special:
                 fat0 = _fat_at(comp, float(fit.level_kg[i0]))
+                rate = segment_rate(weights_used, i0, i1, knots, fit.weights, noise)
                 b = bal.window_balance(
                     weights_used[i0 : i1 + 1],
                     log.intake_kcal[i0 : i1 + 1],
                     fat0,
                     comp.fat_se_kg,
                     fit.weights[i0 : i1 + 1],
+                    noise,
+                    rate,
                 )
         windows.append(_Window(ph, i0, i1, end, b, mean_w))
     baseline = None
     if fit is not None and not special:
-        baseline = _baseline(windows, log, fit, comp, resting_at)
+        baseline = _baseline(windows, log, fit, comp, resting_at, noise, knots)
         methods["hall-2008-energy-density"] = METHODS["hall-2008-energy-density"]
     phase_results = []
     for k, w in enumerate(windows):

@@ -34,7 +34,7 @@ from reportgen.science.composition import (
     energy_density_kcal_per_kg,
     partition_weight_change_hall,
 )
-from reportgen.science.trend import Z80, WindowRate, window_rate
+from reportgen.science.trend import Z80, NoiseModel, WindowRate, window_rate
 
 MIN_DAYS = 14  # no expenditure from fewer days (science notes §4.4, §8: common practice)
 MIN_WEIGH_INS = 8  # judgment: fewer weigh-ins than this cannot pin a rate
@@ -158,6 +158,8 @@ def window_balance(
     fat_start_kg: float | None,
     fat_se_kg: float,
     robust_weights: FloatArray | None = None,
+    noise: NoiseModel | None = None,
+    rate: WindowRate | None = None,
 ) -> WindowBalance:
     """Realised deficit and observed TDEE over one window, with 80 % intervals.
 
@@ -174,6 +176,13 @@ def window_balance(
         Its standard error (equation SEE in kg). [kg]
     robust_weights : numpy.ndarray, optional
         Per-day weigh-in weights from the robust trend fit. [unitless]
+    noise : NoiseModel, optional
+        The client's weigh-in noise model (pooled over its phases); fitted to this
+        window alone when not given.
+    rate : WindowRate, optional
+        A rate already estimated for this window (e.g. by
+        :func:`reportgen.science.trend.segment_rate`, which also uses the
+        neighbouring weeks); by default the window's own least-squares rate.
 
     Returns
     -------
@@ -223,7 +232,8 @@ def window_balance(
         return empty("too-few-days")
     if weight_days < MIN_WEIGH_INS:
         return empty("too-few-weigh-ins")
-    rate = window_rate(w, robust_weights)
+    if rate is None:
+        rate = window_rate(w, robust_weights, noise=noise)
     if rate is None:
         return empty("too-few-weigh-ins")
     change = rate.rate_kg_per_day * days

@@ -193,8 +193,9 @@ def simulate_hall(
     base: HallBaseline,
     at_kcal: FloatArray | float = 0.0,
     offset_kcal: FloatArray | None = None,
+    dt_days: float = 1.0,
 ) -> HallPath:
-    """Forward simulation of the Hall 2011 model, one-day Euler steps.
+    """Forward simulation of the Hall 2011 model, forward Euler steps of ``dt_days``.
 
     Parameters
     ----------
@@ -208,6 +209,10 @@ def simulate_hall(
         Starting adaptive-thermogenesis state. [kcal/day]
     offset_kcal : numpy.ndarray, optional
         Extra expenditure per day, shape like ``intake_kcal``. [kcal/day]
+    dt_days : float, default 1
+        Length of each step (one row of ``intake_kcal``).  Steps longer than a day
+        are for smooth paths at constant intake (projections); keep dt < 2 tauAT
+        for a stable AT update. [day]
 
     Returns
     -------
@@ -237,9 +242,9 @@ def simulate_hall(
         ee = expenditure_kcal(f, lean, ei[t], at, base, off)
         p = cp / (cp + f)
         imbalance = ei[t] - ee
-        f = f + (1.0 - p) * imbalance / pr.rho_fat_kcal_per_kg
-        lean = lean + p * imbalance / pr.rho_lean_kcal_per_kg
-        at = at + (pr.beta_at * (ei[t] - base.intake0_kcal) - at) / pr.tau_at_days
+        f = f + dt_days * (1.0 - p) * imbalance / pr.rho_fat_kcal_per_kg
+        lean = lean + dt_days * p * imbalance / pr.rho_lean_kcal_per_kg
+        at = at + dt_days * (pr.beta_at * (ei[t] - base.intake0_kcal) - at) / pr.tau_at_days
         out_f[t + 1], out_l[t + 1], out_at[t + 1], out_ee[t] = f, lean, at, ee
     return HallPath(out_f, out_l, out_at, out_ee)
 
@@ -300,6 +305,9 @@ def time_constant_days(
         + delta_kcal_per_kg_day
     )
     return num / den
+
+
+ENSEMBLE_STEP_DAYS = 7  # step of the uncertainty ensemble and of the long goal search [day]
 
 
 @dataclass(frozen=True)
@@ -395,30 +403,60 @@ def project_weight(
     ) * p
     k = (tdee - ee_k0) * (1.0 + a)  # EE is linear in K with slope 1/(1 + a)
     base = HallBaseline(maintenance_kcal, k, delta, params)
-    path = simulate_hall(fat, lean, np.full((horizon_days, m), intake_kcal), base, at0)
-    wts = path.weight_kg
-    central = wts[:, 0]
-    low = np.quantile(wts[:, 1:], 0.10, axis=1) if m > 1 else central
-    high = np.quantile(wts[:, 1:], 0.90, axis=1) if m > 1 else central
+    # Weekly Euler steps, interpolated to days: at a constant intake, with AT already at
+    # its steady value, the path is smooth (time constant about a year), and weekly steps
+    # stay within a few grams of daily ones over 12 weeks.
+    weeks = -(-horizon_days // ENSEMBLE_STEP_DAYS)
+    ens = simulate_hall(
+        fat, lean, np.full((weeks, m), intake_kcal), base, at0, dt_days=ENSEMBLE_STEP_DAYS
+    )
+    grid = np.arange(weeks + 1) * ENSEMBLE_STEP_DAYS
+    days = np.arange(horizon_days + 1)
+    wk = ens.weight_kg
+    central = np.interp(days, grid, wk[:, 0])
+    low = high = central
+    if m > 1:
+        q_lo, q_hi = np.quantile(wk[:, 1:], [0.10, 0.90], axis=1)
+        low = np.interp(days, grid, q_lo)
+        high = np.interp(days, grid, q_hi)
     goal_day: int | None = None
     if goal_weight_kg is not None:
-        # The goal is searched on the central path only (one member, long horizon).
-        c = central
-        if goal_horizon_days > horizon_days:
+        loss = goal_weight_kg <= weight_kg
+        c = wk[:, 0]
+        steps = -(-max(goal_horizon_days - weeks * ENSEMBLE_STEP_DAYS, 0) // ENSEMBLE_STEP_DAYS)
+        if steps > 0:
             base_c = HallBaseline(maintenance_kcal, float(k[0]), float(delta[0]), params)
-            c = simulate_hall(
-                fat[0], lean[0], np.full(goal_horizon_days, intake_kcal), base_c, at0
+            far = simulate_hall(
+                ens.fat_kg[-1, 0],
+                ens.lean_kg[-1, 0],
+                np.full(steps, intake_kcal),
+                base_c,
+                ens.at_kcal[-1, 0],
+                dt_days=ENSEMBLE_STEP_DAYS,
             ).weight_kg
-        hit = c <= goal_weight_kg if goal_weight_kg <= weight_kg else c >= goal_weight_kg
+            c = np.concatenate([c, far[1:]])
+        hit = c <= goal_weight_kg if loss else c >= goal_weight_kg
         idx = np.nonzero(hit)[0]
-        goal_day = int(idx[0]) if idx.size else None
+        if idx.size:
+            j = int(idx[0])
+            if j == 0:
+                goal_day = 0
+            else:  # crossing between steps j - 1 and j: interpolate the day
+                w0, w1 = c[j - 1], c[j]
+                frac = (goal_weight_kg - w0) / (w1 - w0) if w1 != w0 else 1.0
+                goal_day = math.ceil((j - 1 + frac) * ENSEMBLE_STEP_DAYS)
+        if goal_day is not None and goal_day > goal_horizon_days:
+            goal_day = None
     rates: dict[float, tuple[float, float, float]] = {}
     if rates_pct_per_week:
         horizon = 28
+        step = 2.0  # two-day steps: AT (tau 14 days) still follows a change of intake
         test_intake = intake_kcal - 500.0
         slopes = []
         for ei in (intake_kcal, test_intake):
-            pth = simulate_hall(fat, lean, np.full((horizon, m), ei), base, at0)
+            pth = simulate_hall(
+                fat, lean, np.full((int(horizon / step), m), ei), base, at0, dt_days=step
+            )
             slopes.append((pth.weight_kg[-1] - pth.weight_kg[0]) / horizon)
         s0, s1 = slopes
         per_kcal = (s0 - s1) / 500.0  # kg/day per kcal/day of intake

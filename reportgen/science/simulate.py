@@ -46,8 +46,10 @@ class PhaseTruth:
     end_index: int  # inclusive, on the log's grid
     deficit_kcal: float  # true mean energy drawn from stores per day
     tdee_kcal: float  # true mean expenditure
-    adaptation_kcal: float  # true mean adaptive thermogenesis (AT, negative in deficit)
-    expected_kcal: float  # true expenditure minus AT
+    # true adaptation: mean AT plus the change in activity expenditure from the first
+    # phase (what body size does not explain, relative to the client's own baseline)
+    adaptation_kcal: float
+    expected_kcal: float  # true expenditure minus the adaptation
 
 
 @dataclass(frozen=True)
@@ -59,6 +61,7 @@ class SimulatedClient:
     expenditure_true_kcal: FloatArray
     intake_true_kcal: FloatArray
     at_true_kcal: FloatArray
+    activity_offset_kcal: FloatArray  # day-to-day change in activity expenditure
     noise_kg: FloatArray  # weigh-in minus body mass, excluding spikes (AR(1) + rhythm + white)
     noise_ar_phi: float
     noise_ar_sd_kg: float
@@ -268,6 +271,8 @@ def simulate_client(
         source_files=(),
     )
     truths = []
+    first_end = int((np.datetime64(phases[0].end or month_end, "D") - dates[0]).astype(int))
+    off_base = float(off[: min(first_end, n_days - 1) + 1].mean())
     for ph in phases:
         si = int((np.datetime64(ph.start, "D") - dates[0]).astype(int))
         end = ph.end if ph.end is not None and ph.end <= month_end else month_end
@@ -279,8 +284,10 @@ def simulate_client(
         days = ei - si + 1
         deficit = -(params.rho_fat_kcal_per_kg * d_f + params.rho_lean_kcal_per_kg * d_l) / days
         tdee = float(ee[si : ei + 1].mean())
-        at_m = float(at[si : ei + 1].mean())
-        truths.append(PhaseTruth(ph.name, ph.kind, si, ei, float(deficit), tdee, at_m, tdee - at_m))
+        adapt = float(at[si : ei + 1].mean() + off[si : ei + 1].mean()) - off_base
+        truths.append(
+            PhaseTruth(ph.name, ph.kind, si, ei, float(deficit), tdee, adapt, tdee - adapt)
+        )
     return SimulatedClient(
         record=record,
         month=f"{month_end.year:04d}-{month_end.month:02d}",
@@ -289,6 +296,7 @@ def simulate_client(
         expenditure_true_kcal=ee,
         intake_true_kcal=intake_true,
         at_true_kcal=at,
+        activity_offset_kcal=off,
         noise_kg=noise,
         noise_ar_phi=phi,
         noise_ar_sd_kg=ar_sd,
