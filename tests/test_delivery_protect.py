@@ -135,6 +135,7 @@ def test_encrypted_send_roster_and_derived_passwords(tmp_path: Path) -> None:
         )
         report = send_month(month.month_dir, SendOptions(retry_delay_s=0.01))
     assert report.exit_code == 0
+    assert report.notes == []  # the secret file is private (0600)
     derived = derive_pdf_password(b"harbour-clinic-practice-secret-2026", "c002", MONTH)
     by_to = {m["To"].addresses[0].addr_spec: m for m in handler.messages()}
     for addr, cid, pw in (
@@ -162,6 +163,19 @@ def test_encrypted_send_roster_and_derived_passwords(tmp_path: Path) -> None:
     assert all(e["encrypted"] for e in sent)
     # the clinic can look the derived password up to tell the client
     assert pdf_password_for(month.month_dir, SendOptions(), "c002") == derived
+
+
+def test_a_secret_others_can_read_gets_a_note(tmp_path: Path) -> None:
+    secret_file = tmp_path / "practice-secret.txt"
+    secret_file.write_text("harbour-clinic-practice-secret-2026\n")
+    secret_file.chmod(0o644)
+    month = make_month(tmp_path, 2525, mail={"encrypt": True, "secret_file": str(secret_file)})
+    report = send_month(month.month_dir, SendOptions(dry_run=True))
+    assert report.notes == [
+        f"{secret_file} can be read by other users of this computer; "
+        f"restrict it with: chmod 600 {secret_file}"
+    ]
+    assert report.exit_code == 0
 
 
 def test_encryption_without_any_password_source_skips_the_client(tmp_path: Path) -> None:

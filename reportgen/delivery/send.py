@@ -49,6 +49,7 @@ from reportgen.delivery.protect import (
     derive_pdf_password,
     encrypt_pdf,
     read_practice_secret,
+    secret_file_is_private,
 )
 from reportgen.delivery.smtp import (
     FatalSMTPError,
@@ -328,6 +329,16 @@ def send_month(
         raise DeliveryError(f"mail templates not found: {', '.join(missing)}")
     server = server_settings(config, options)
     report = SendReport(month=manifest.month, dry_run=options.dry_run)
+    secret_path = config.resolve_path(config.mail.secret_file)
+    if (
+        secret_path is not None
+        and secret_path.is_file()
+        and not secret_file_is_private(secret_path)
+    ):
+        report.notes.append(
+            f"{secret_path} can be read by other users of this computer; "
+            f"restrict it with: chmod 600 {secret_path}"
+        )
 
     def emit(row: Row) -> None:
         report.rows.append(row)
@@ -465,9 +476,12 @@ def _send_all(
             if attempt:
                 delay = min(options.retry_delay_s * 2 ** (attempt - 1), options.retry_max_delay_s)
                 time.sleep(delay)
-            ledger.append({**base, "time": utc_now(), "try": attempt + 1, "result": "attempt"})
             try:
-                result = conn.send(msg, sender.address, item.address)
+                # Connect (TLS, login) before the attempt line: a crash while connecting
+                # must not leave the message looking as if the server might have it.
+                not_ready = conn.connect()
+                ledger.append({**base, "time": utc_now(), "try": attempt + 1, "result": "attempt"})
+                result = not_ready or conn.send(msg, sender.address, item.address)
             except FatalSMTPError as exc:
                 # Nothing reached the server (login and TLS come before MAIL FROM).
                 result = SendResult("failed-temporary", str(exc))

@@ -166,12 +166,28 @@ class SMTPConnection:
             self._conn.close()
             self._conn = None
 
+    def connect(self) -> SendResult | None:
+        """Open the connection if it is not open; a failure result, or None when ready.
+
+        Called before a message's ``attempt`` line is written, so that only the
+        MAIL/RCPT/DATA exchange lies between that line and its outcome.
+        """
+        if self._conn is not None:
+            return None
+        try:
+            self._conn = self._open()
+        except OSError as exc:  # smtplib's own errors are OSErrors too
+            return self._error(exc)
+        return None
+
     def send(self, msg: EmailMessage, from_addr: str, to_addr: str) -> SendResult:
         """One try at one message; never raises for a per-message problem."""
+        failed = self.connect()
+        if failed is not None:
+            return failed
+        conn = self._conn
+        assert conn is not None
         try:
-            if self._conn is None:
-                self._conn = self._open()
-            conn = self._conn
             code, resp = conn.mail(from_addr)
             if code != 250:
                 return self._fail(code, resp)
@@ -185,23 +201,24 @@ class SMTPConnection:
             return SendResult("sent", _reply(code, resp))
         except smtplib.SMTPDataError as exc:  # DATA itself answered with non-354
             return self._fail(exc.smtp_code, exc.smtp_error)
-        except smtplib.SMTPServerDisconnected as exc:
-            self._drop()
+        except OSError as exc:
+            return self._error(exc)
+
+    def _error(self, exc: OSError) -> SendResult:
+        """A dropped connection, time-out or unreachable server: temporary; reconnect next."""
+        self._drop()
+        if isinstance(exc, smtplib.SMTPServerDisconnected):
             if "timed out" in str(exc):  # smtplib reports a read time-out as a disconnect
                 return SendResult("failed-temporary", "no answer from the server (time-out)")
             return SendResult("failed-temporary", f"connection closed by the server ({exc})")
-        except TimeoutError:
-            self._drop()
+        if isinstance(exc, smtplib.SMTPResponseException):  # e.g. a 421/554 greeting
+            outcome = "refused" if exc.smtp_code >= 500 else "failed-temporary"
+            return SendResult(outcome, _reply(exc.smtp_code, exc.smtp_error))
+        if isinstance(exc, TimeoutError):
             return SendResult("failed-temporary", "no answer from the server (time-out)")
-        except ConnectionError as exc:
-            self._drop()
+        if isinstance(exc, ConnectionError):
             return SendResult("failed-temporary", f"connection problem ({exc.strerror or exc})")
-        except smtplib.SMTPConnectError as exc:
-            self._drop()
-            return SendResult("failed-temporary", _reply(exc.smtp_code, exc.smtp_error))
-        except OSError as exc:  # refused connection, unreachable host, DNS failure
-            self._drop()
-            return SendResult("failed-temporary", f"cannot reach {self.server.host}: {exc}")
+        return SendResult("failed-temporary", f"cannot reach {self.server.host}: {exc}")
 
     def _fail(self, code: int, resp: bytes | str) -> SendResult:
         outcome = _classify(code)
