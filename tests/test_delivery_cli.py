@@ -126,3 +126,16 @@ def test_show_pdf_password_for_one_client(tmp_path: Path) -> None:
     assert result.exit_code == 0 and result.output == "Own-Pass-1\n"
     missing = _run([str(month.month_dir), "--show-pdf-password", "c009"])
     assert missing.exit_code == 2 and "c009 is not in the roster" in missing.output
+
+
+def test_login_without_any_password_is_a_usage_error(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.delenv("REPORTGEN_SMTP_PASSWORD", raising=False)
+    handler = FaultyHandler()
+    with smtp_server(handler) as srv:
+        month = make_month(tmp_path, srv.port)
+        result = _run([str(month.month_dir), "--user", "clinic"], input="")
+    assert result.exit_code == 2
+    assert "no SMTP password: set REPORTGEN_SMTP_PASSWORD" in result.output
+    assert handler.data_commands == 0

@@ -7,6 +7,14 @@ from pathlib import Path
 import click
 
 
+def _ask_password() -> str:
+    """Ask for the SMTP password without echo; empty when there is no one to ask."""
+    try:
+        return str(click.prompt("SMTP password", hide_input=True, err=True, default=""))
+    except click.Abort:
+        return ""
+
+
 @click.command("send")
 @click.argument(
     "month_dir",
@@ -113,7 +121,7 @@ def send_command(
         report = send_month(
             month_dir,
             options,
-            password=lambda: click.prompt("SMTP password", hide_input=True, err=True),
+            password=_ask_password,
             progress=print_row,
         )
     except DeliveryError as exc:
