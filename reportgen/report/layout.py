@@ -43,7 +43,19 @@ def _svg_drawing(path: str, mtime: float) -> Flowable:
     drawing = svg2rlg(path)
     if drawing is None:
         raise LogoError(f"{path}: not a readable SVG file")
+    _embed_text_font(drawing)
     return drawing
+
+
+def _embed_text_font(node: object) -> None:
+    """Text in an SVG logo is set in DejaVu: svglib maps SVG fonts to non-embedded Helvetica."""
+    from reportlab.graphics.shapes import String
+
+    if isinstance(node, String):
+        bold = "bold" in str(getattr(node, "fontName", "")).lower()
+        node.fontName = T.FONT_BOLD if bold else T.FONT
+    for child in getattr(node, "contents", ()):
+        _embed_text_font(child)
 
 
 def logo_flowable(config: Config) -> Flowable | None:
@@ -61,12 +73,38 @@ def logo_flowable(config: Config) -> Flowable | None:
         scale = min(LOGO_MAX_W / w, LOGO_MAX_H / h)
         d.width, d.height = w * scale, h * scale
         d.scale(scale, scale)
-        d.hAlign = "RIGHT"
-        return d
+        return _SvgLogo(d)
     img = _png(str(path))
     iw, ih = img.imageWidth, img.imageHeight
     scale = min(LOGO_MAX_W / iw, LOGO_MAX_H / ih)
     return Image(str(path), width=iw * scale, height=ih * scale, hAlign="RIGHT")
+
+
+class _SvgLogo(Flowable):
+    """An SVG drawing drawn with DejaVu as the initial font.
+
+    reportlab's drawing renderer starts every drawing by selecting its default font
+    (Helvetica, never embedded) even when the drawing has no text; the default is swapped
+    for the duration of the draw so no standard font is referenced.
+    """
+
+    def __init__(self, drawing: Flowable) -> None:
+        super().__init__()
+        self.drawing = drawing
+        self.hAlign = "RIGHT"
+
+    def wrap(self, availWidth: float, availHeight: float) -> tuple[float, float]:
+        return self.drawing.wrap(availWidth, availHeight)
+
+    def draw(self) -> None:
+        from reportlab.graphics import shapes
+
+        saved = shapes.STATE_DEFAULTS["fontName"]
+        shapes.STATE_DEFAULTS["fontName"] = T.FONT
+        try:
+            self.drawing.drawOn(self.canv, 0, 0)
+        finally:
+            shapes.STATE_DEFAULTS["fontName"] = saved
 
 
 @cache

@@ -120,7 +120,12 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
         )
         if len(a.bodycomp) >= 2:
             rows.append(
-                ("bodyfat_change", vm.figures["bodyfat"].value, "", vm.figures["bodyfat"].detail)
+                (
+                    "bodyfat_change",
+                    vm.figures["bodyfat"].value,
+                    "",
+                    vm.figures["bodyfat"].detail + ", " + vm.figures["bodyfat"].interval,
+                )
             )
     elif a.bodyfat_fallback is not None:
         fb = a.bodyfat_fallback

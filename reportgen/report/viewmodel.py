@@ -238,6 +238,13 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "rate_pct_abs": u.pct(abs(a.weekly_rate_pct.value), dp=2)
         if a.weekly_rate_pct.known
         else "",
+        "rate_pct": u.pct(a.weekly_rate_pct.value, dp=2, signed=True)
+        if a.weekly_rate_pct.known
+        else "",
+        "bf_first": u.pct(a.bodycomp[0].bodyfat_pct) if a.bodycomp else "",
+        "bf_last": u.pct(a.bodycomp[-1].bodyfat_pct) if a.bodycomp else "",
+        "bf_first_date": u.d(a.bodycomp[0].date) if a.bodycomp else "",
+        "bf_last_date": u.d(a.bodycomp[-1].date) if a.bodycomp else "",
         "adapt_state": "unknown",
         "adapt_abs": "",
         "adapt_large": False,
@@ -343,10 +350,8 @@ def _bodyfat_figure(a: ClientAnalysis, u: Units) -> Figure:
         f = Figure("bodyfat")
         f.value = u.pp(last.bodyfat_pct - first.bodyfat_pct)
         f.interval = ""
-        f.detail = (
-            f"{u.pct(first.bodyfat_pct)} → {u.pct(last.bodyfat_pct)}"
-            f" ({u.d(first.date)} → {u.d(last.date)})"
-        )
+        f.detail = f"{u.pct(first.bodyfat_pct)} → {u.pct(last.bodyfat_pct)}"
+        f.interval = f"{u.d(first.date)} → {u.d(last.date)}"
         return f
     if len(sessions) == 1:
         return Figure("bodyfat", reason="one-session")
