@@ -146,8 +146,9 @@ def build_message(
     msg["Reply-To"] = Address(display_name=sender.name, addr_spec=sender.reply_to)
     msg["Date"] = format_datetime(now or dt.datetime.now(dt.UTC))
     msg["Message-ID"] = message_id or make_msgid(idstring="reportgen", domain=sender.domain)
-    msg.set_content(content.text)
-    msg.add_alternative(content.html, subtype="html")
+    # Quoted-printable keeps the message 7-bit clean, so no server needs 8BITMIME.
+    msg.set_content(content.text, cte="quoted-printable")
+    msg.add_alternative(content.html, subtype="html", cte="quoted-printable")
     msg.add_attachment(pdf, maintype="application", subtype="pdf", filename=filename)
     return msg
 

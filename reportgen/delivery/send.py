@@ -118,6 +118,10 @@ class SendReport:
         return 0 if all(r.done for r in self.rows) else 1
 
 
+class _FileChanged(Exception):
+    """A report file no longer matches the manifest when it is read for attaching."""
+
+
 @dataclass(frozen=True)
 class _Planned:
     client: ManifestClient
@@ -351,12 +355,20 @@ def send_month(
         planned, skipped = plan_month(month_dir, manifest, config, options, summarise(entries))
         for row in skipped:
             emit(row)
+        outbox = month_dir / OUTBOX
+        outbox.mkdir(exist_ok=True)
+        for old in outbox.glob("*.eml"):  # the outbox shows what the next run would send
+            old.unlink()
         for item in planned:
-            msg, _ = _message(item, config, env, sender, manifest.month)
-            name = f"{item.client.client_id}-{item.kind}.eml"
-            (month_dir / OUTBOX).mkdir(exist_ok=True)
-            write_bytes_atomic(month_dir / OUTBOX / name, msg.as_bytes(policy=FILE_POLICY))
-            emit(Row(item.client.client_id, item.kind, item.address, "written", f"{OUTBOX}/{name}"))
+            cid = item.client.client_id
+            try:
+                msg, _ = _message(item, config, env, sender, manifest.month)
+            except _FileChanged as exc:
+                emit(Row(cid, item.kind, item.address, "skipped-modified-file", str(exc)))
+                continue
+            name = f"{cid}-{item.kind}.eml"
+            write_bytes_atomic(outbox / name, msg.as_bytes(policy=FILE_POLICY))
+            emit(Row(cid, item.kind, item.address, "written", f"{OUTBOX}/{name}"))
         return report
 
     try:
@@ -368,19 +380,7 @@ def send_month(
         planned, skipped = plan_month(month_dir, manifest, config, options, ledger.history())
         for row in skipped:
             if row.result.startswith("skipped-") and row.counts:
-                ledger.append(
-                    {
-                        "time": utc_now(),
-                        "month": manifest.month,
-                        "client": row.client,
-                        "kind": row.kind,
-                        "address": row.address,
-                        "sha256": None,
-                        "message_id": None,
-                        "result": row.result,
-                        "reply": row.detail,
-                    }
-                )
+                _log_skip(ledger, manifest.month, row)
             emit(row)
         if not planned:
             return report
@@ -401,15 +401,31 @@ def send_month(
     return report
 
 
+def _log_skip(ledger: Ledger, month: str, row: Row, sha256: str | None = None) -> None:
+    ledger.append(
+        {
+            "time": utc_now(),
+            "month": month,
+            "client": row.client,
+            "kind": row.kind,
+            "address": row.address,
+            "sha256": sha256,
+            "message_id": None,
+            "result": row.result,
+            "reply": row.detail,
+        }
+    )
+
+
 def _message(
     item: _Planned, config: Config, env: jinja2.Environment, sender: Sender, month: str
 ) -> tuple[EmailMessage, bytes]:
     """The message for one planned delivery, and the attached bytes."""
     cid = item.client.client_id
     pdf = item.source.read_bytes()
-    # Checked once in the plan; checked again here because the file is read now.
+    # Checked once in the plan; checked again on the bytes that are actually attached.
     if hashlib.sha256(pdf).hexdigest() != item.sha256:
-        raise DeliveryError(f"{item.source} changed while sending; rerun the batch")
+        raise _FileChanged(f"{item.source.name} changed while sending; rerun the batch")
     if item.pdf_password is not None:
         pdf = encrypt_pdf(pdf, item.pdf_password)
     filename = attachment_name(item.kind, month, cid)
@@ -449,17 +465,21 @@ def _send_all(
     """Send each planned message with retries; returns the reason if the run had to stop."""
     retries = config.mail.retries
     consecutive_failures = 0
-    stop_reason: str | None = None
+    stop_reason: str | None = None  # set when the run cannot go on (bad login, no TLS)
     for n, item in enumerate(planned):
         cid = item.client.client_id
-        if stop_reason is None and consecutive_failures >= MAX_CONSECUTIVE_FAILURES:
-            stop_reason = ""  # not fatal for the configuration: just try again later
-        if stop_reason is not None:
+        if stop_reason is not None or consecutive_failures >= MAX_CONSECUTIVE_FAILURES:
+            why = stop_reason or "server unavailable; rerun later"
             for rest in planned[n:]:
-                why = stop_reason or "server unavailable; rerun later"
                 emit(Row(rest.client.client_id, rest.kind, rest.address, "not-attempted", why))
-            return stop_reason or None
-        msg, pdf = _message(item, config, env, sender, month)
+            return stop_reason
+        try:
+            msg, pdf = _message(item, config, env, sender, month)
+        except _FileChanged as exc:
+            row = Row(cid, item.kind, item.address, "skipped-modified-file", str(exc))
+            _log_skip(ledger, month, row, item.sha256)
+            emit(row)
+            continue
         base = {
             "month": month,
             "client": cid,

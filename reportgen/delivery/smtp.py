@@ -176,6 +176,13 @@ class SMTPConnection:
             return None
         try:
             self._conn = self._open()
+        except smtplib.SMTPConnectError as exc:
+            if exc.smtp_code >= 500:  # the server will not talk to us at all
+                raise FatalSMTPError(
+                    f"{self.server.host} refused the connection: "
+                    f"{_reply(exc.smtp_code, exc.smtp_error)}"
+                ) from None
+            return self._error(exc)
         except OSError as exc:  # smtplib's own errors are OSErrors too
             return self._error(exc)
         return None
