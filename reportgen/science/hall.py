@@ -307,7 +307,8 @@ def time_constant_days(
     return num / den
 
 
-ENSEMBLE_STEP_DAYS = 7  # step of the uncertainty ensemble and of the long goal search [day]
+ENSEMBLE_STEP_DAYS = 7  # step of the uncertainty ensemble [day]
+GOAL_STEP_DAYS = 14  # step of the long goal search (AT is constant at constant intake) [day]
 
 
 @dataclass(frozen=True)
@@ -423,7 +424,8 @@ def project_weight(
     if goal_weight_kg is not None:
         loss = goal_weight_kg <= weight_kg
         c = wk[:, 0]
-        steps = -(-max(goal_horizon_days - weeks * ENSEMBLE_STEP_DAYS, 0) // ENSEMBLE_STEP_DAYS)
+        day_of = list(grid.astype(float))
+        steps = -(-max(goal_horizon_days - weeks * ENSEMBLE_STEP_DAYS, 0) // GOAL_STEP_DAYS)
         if steps > 0:
             base_c = HallBaseline(maintenance_kcal, float(k[0]), float(delta[0]), params)
             far = simulate_hall(
@@ -432,9 +434,10 @@ def project_weight(
                 np.full(steps, intake_kcal),
                 base_c,
                 ens.at_kcal[-1, 0],
-                dt_days=ENSEMBLE_STEP_DAYS,
+                dt_days=GOAL_STEP_DAYS,
             ).weight_kg
             c = np.concatenate([c, far[1:]])
+            day_of += [grid[-1] + GOAL_STEP_DAYS * (i + 1) for i in range(steps)]
         hit = c <= goal_weight_kg if loss else c >= goal_weight_kg
         idx = np.nonzero(hit)[0]
         if idx.size:
@@ -444,7 +447,7 @@ def project_weight(
             else:  # crossing between steps j - 1 and j: interpolate the day
                 w0, w1 = c[j - 1], c[j]
                 frac = (goal_weight_kg - w0) / (w1 - w0) if w1 != w0 else 1.0
-                goal_day = math.ceil((j - 1 + frac) * ENSEMBLE_STEP_DAYS)
+                goal_day = math.ceil(day_of[j - 1] + frac * (day_of[j] - day_of[j - 1]))
         if goal_day is not None and goal_day > goal_horizon_days:
             goal_day = None
     rates: dict[float, tuple[float, float, float]] = {}
