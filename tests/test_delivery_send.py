@@ -379,3 +379,48 @@ def test_unknown_resend_client_is_a_usage_error(tmp_path: Path) -> None:
     month = make_month(tmp_path, 2525)
     with pytest.raises(DeliveryError, match="--resend: c999 not in the manifest"):
         send_month(month.month_dir, SendOptions(resend=frozenset({"c999"})))
+
+
+def test_report_changed_during_the_run_is_skipped_and_the_run_goes_on(
+    tmp_path: Path, handler: FaultyHandler
+) -> None:
+    with smtp_server(handler) as srv:
+        month = make_month(tmp_path, srv.port)
+
+        def tamper(row: object) -> None:  # after the first message, someone edits c003's PDF
+            if getattr(row, "client", None) == "c001":
+                path = month.month_dir / "c003.pdf"
+                path.write_bytes(path.read_bytes() + b"%")
+
+        report = send_month(month.month_dir, SendOptions(retry_delay_s=FAST), progress=tamper)
+    got = {r.client: r.result for r in report.rows}
+    assert got == {"c001": "sent", "c002": "sent", "c003": "skipped-modified-file"}
+    assert report.exit_code == 1
+    assert "ivo@example.net" not in handler.recipients()
+    assert month.ledger()[-1]["result"] == "skipped-modified-file"
+
+
+def test_messages_are_7bit_clean(tmp_path: Path, handler: FaultyHandler) -> None:
+    # Non-ASCII names travel as RFC 2047 words and quoted-printable, so the server
+    # needs no 8BITMIME or SMTPUTF8.
+    with smtp_server(handler) as srv:
+        month = make_month(tmp_path, srv.port)
+        assert _send(month).exit_code == 0
+    for env in handler.accepted:
+        raw = env.original_content or env.content
+        assert isinstance(raw, bytes) and raw.isascii()
+        assert max(len(line) for line in raw.splitlines()) <= 998
+    assert env.mail_options == []
+
+
+def test_dry_run_outbox_shows_only_what_the_next_run_would_send(
+    tmp_path: Path, handler: FaultyHandler
+) -> None:
+    with smtp_server(handler) as srv:
+        month = make_month(tmp_path, srv.port)
+        _send(month, dry_run=True)
+        assert len(list((month.month_dir / "outbox").glob("*.eml"))) == 3
+        assert _send(month, resend=frozenset()).exit_code == 0  # real run: all three go
+        again = _send(month, dry_run=True)
+    assert [r.result for r in again.rows] == ["already-sent"] * 3
+    assert list((month.month_dir / "outbox").glob("*.eml")) == []
