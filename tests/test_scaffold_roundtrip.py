@@ -135,3 +135,37 @@ def test_filled_scaffold_produces_reports(filled_book: Path, tmp_path: Path) -> 
         assert name in text
         assert (month_dir / f"{cid}-practitioner.pdf").is_file()
     assert (month_dir / "overview.pdf").is_file() and (month_dir / "summary.csv").is_file()
+
+
+def test_imperial_kj_book_round_trip(tmp_path: Path) -> None:
+    from reportgen.io.book import read_client, read_roster
+
+    book = tmp_path / "book"
+    r = CliRunner().invoke(
+        main,
+        ["new-book", str(book), "--units", "imperial", "--energy", "kJ", "--client", "k1"],
+        catch_exceptions=False,
+    )
+    assert r.exit_code == 0, r.output
+    wb = openpyxl.load_workbook(book / "clients.xlsx")
+    ws = wb["clients"]
+    header = [c.value for c in ws[1]]
+    for key, value in {
+        "name": "Kai Ōta", "sex": "male", "birth_date": "1979-07-30", "height_in": 70,
+        "pregnant": "no", "goal_weight_lb": 170,
+    }.items():  # fmt: skip
+        ws.cell(row=2, column=header.index(key) + 1, value=value)
+    wb.save(book / "clients.xlsx")
+    fill_client_log(
+        book / "logs" / "k1.xlsx", first=FIRST, days=DAYS, seed=3, imperial=True, kj=True,
+        phases=[["Cut", "2026-09-28", None, "deficit", None]],
+    )  # fmt: skip
+    r = CliRunner().invoke(main, ["check", str(book), "--month", MONTH, "--json"])
+    assert json.loads(r.output)["problems"] == [] and r.exit_code == 0, r.output
+    roster = read_roster(book, today=dt.date(2026, 12, 1))
+    (client,) = roster.clients
+    # 1 in = 2.54 cm and 1 lb = 0.45359237 kg exactly (1959 international agreement).
+    assert client.height_cm == pytest.approx(177.8, abs=1e-9)
+    assert client.goal_weight_kg == pytest.approx(77.1107029, abs=1e-6)
+    rec = read_client(book, client, (), dt.date(2026, 11, 30), today=dt.date(2026, 12, 1))
+    assert rec.ok and [p.kind for p in rec.phases] == ["deficit"]
