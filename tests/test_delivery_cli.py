@@ -17,6 +17,9 @@ from click.testing import CliRunner
 
 from reportgen.cli.send import send_command
 
+# Every test here fails if anything but 127.0.0.1 is contacted or looked up.
+pytestmark = pytest.mark.usefixtures("loopback_only")
+
 
 def _run(args: list[str], **kw: object):
     return CliRunner().invoke(send_command, args, catch_exceptions=False, **kw)

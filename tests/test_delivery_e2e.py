@@ -5,6 +5,7 @@ from __future__ import annotations
 import io
 from pathlib import Path
 
+import pytest
 from _delivery_helpers import (
     FaultyHandler,
     loopback_only,  # noqa: F401  (fixture)
@@ -16,6 +17,9 @@ from pypdf import PasswordType, PdfReader
 
 from reportgen.cli import main
 from reportgen.delivery.protect import derive_pdf_password
+
+# Every test here fails if anything but 127.0.0.1 is contacted or looked up.
+pytestmark = pytest.mark.usefixtures("loopback_only")
 
 MONTH = "2026-11"
 CLIENTS = "c001,c003,c007"  # c003 has a referral address; c007 has deliberate data errors

@@ -14,6 +14,7 @@ from _delivery_helpers import (
     MONTH,
     FaultyHandler,
     RosterRow,
+    loopback_only,  # noqa: F401  (fixture)
     make_month,
     make_pdf,
     smtp_server,
@@ -30,6 +31,9 @@ from reportgen.delivery.protect import (
     read_practice_secret,
 )
 from reportgen.delivery.send import SendOptions, pdf_password_for, send_month
+
+# Every test here fails if anything but 127.0.0.1 is contacted or looked up.
+pytestmark = pytest.mark.usefixtures("loopback_only")
 
 PASSWORD = "Zoë-2026"  # non-ASCII on purpose: R6 passwords are UTF-8 after SASLprep
 

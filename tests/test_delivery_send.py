@@ -20,6 +20,9 @@ from _delivery_helpers import (
 from reportgen.delivery.month import DeliveryError
 from reportgen.delivery.send import SendOptions, send_month
 
+# Every test here fails if anything but 127.0.0.1 is contacted or looked up.
+pytestmark = pytest.mark.usefixtures("loopback_only")
+
 FAST = 0.01  # back-off base for tests [s]
 
 

@@ -19,6 +19,9 @@ from cryptography.x509.oid import NameOID
 from reportgen.cli.send import send_command
 from reportgen.delivery.send import SendOptions, send_month
 
+# Every test here fails if anything but 127.0.0.1 is contacted or looked up.
+pytestmark = pytest.mark.usefixtures("loopback_only")
+
 SMTP_PASSWORD = "tls-only-pw-5521"
 
 
