@@ -126,7 +126,7 @@ def test_show_pdf_password_for_one_client(tmp_path: Path) -> None:
     clients = (RosterRow("c001", "Ana", "ana@example.org", pdf_password="Own-Pass-1"),)
     month = make_month(tmp_path, 2525, clients=clients)
     result = _run([str(month.month_dir), "--show-pdf-password", "c001"])
-    assert result.exit_code == 0 and result.output == "Own-Pass-1\n"
+    assert result.exit_code == 0 and result.output == "report: Own-Pass-1\n"
     missing = _run([str(month.month_dir), "--show-pdf-password", "c009"])
     assert missing.exit_code == 2 and "c009 is not in the roster" in missing.output
 

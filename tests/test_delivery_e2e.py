@@ -74,8 +74,11 @@ def test_sample_month_batch_then_send(
     msg = by_to["referrals.harbour-gp@example.org"]
     (att,) = list(msg.iter_attachments())
     assert att.get_filename() == "practitioner-summary-2026-11-c003.pdf"
+    password = derive_pdf_password(SECRET.encode(), "c003", MONTH, "practitioner")
+    client_password = derive_pdf_password(SECRET.encode(), "c003", MONTH)
     reader = PdfReader(io.BytesIO(att.get_content()))
-    password = derive_pdf_password(SECRET.encode(), "c003", MONTH)
+    assert reader.decrypt(client_password) == PasswordType.NOT_DECRYPTED  # not the client's
+    reader = PdfReader(io.BytesIO(att.get_content()))
     assert reader.decrypt(password) == PasswordType.USER_PASSWORD
     plain = PdfReader(month_dir / "c003-practitioner.pdf")
     assert reader.pages[0].extract_text() == plain.pages[0].extract_text()

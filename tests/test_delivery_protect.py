@@ -60,6 +60,10 @@ def test_derived_password_follows_the_documented_rule() -> None:
     assert set(got) <= set("ABCDEFGHIJKLMNOPQRSTUVWXYZ234567-")
     assert derive_pdf_password(secret, "c001", "2026-12") != got  # new month, new password
     assert derive_pdf_password(secret, "c002", "2026-11") != got
+    summary = base64.b32encode(_hmac_sha256(secret, b"c001:2026-11:practitioner")).decode()[:12]
+    assert derive_pdf_password(secret, "c001", "2026-11", "practitioner") == (
+        f"{summary[:4]}-{summary[4:8]}-{summary[8:12]}"
+    )
 
 
 def test_encrypted_pdf_opens_with_the_password_only(tmp_path: Path) -> None:
@@ -165,8 +169,14 @@ def test_encrypted_send_roster_and_derived_passwords(tmp_path: Path) -> None:
         hashlib.sha256(month.pdf(c)).hexdigest() for c in ("c001", "c002")
     }
     assert all(e["encrypted"] for e in sent)
-    # the clinic can look the derived password up to tell the client
-    assert pdf_password_for(month.month_dir, SendOptions(), "c002") == derived
+    # the clinic can look the passwords up to tell the client (and the practitioner)
+    summary_pw = derive_pdf_password(
+        b"harbour-clinic-practice-secret-2026", "c002", MONTH, "practitioner"
+    )
+    assert pdf_password_for(month.month_dir, SendOptions(), "c002") == [
+        f"report: {derived}",
+        f"practitioner: {summary_pw}",
+    ]
 
 
 def test_a_secret_others_can_read_gets_a_note(tmp_path: Path) -> None:
@@ -198,3 +208,25 @@ def test_secret_file_in_the_book_stops_the_run(tmp_path: Path) -> None:
     (month.book / "s.txt").write_text("a-long-enough-practice-secret\n")
     with pytest.raises(DeliveryError, match="inside the book folder"):
         send_month(month.month_dir, SendOptions())
+
+
+def test_practitioner_copy_never_uses_the_clients_own_password(tmp_path: Path) -> None:
+    handler = FaultyHandler()
+    clients = (
+        RosterRow(
+            "c001", "Ana", "ana@example.org", referral_email="gp@example.org", pdf_password=PASSWORD
+        ),
+    )
+    with smtp_server(handler) as srv:
+        month = make_month(tmp_path, srv.port, clients=clients, mail={"encrypt": True})
+        report = send_month(
+            month.month_dir, SendOptions(retry_delay_s=0.01, practitioner_copies=True)
+        )
+    got = {(r.kind, r.result, r.detail) for r in report.rows}
+    assert (
+        "practitioner",
+        "skipped-no-password",
+        "practitioner copies need [mail] secret_file",
+    ) in got
+    assert handler.recipients() == ["ana@example.org"]
+    assert report.exit_code == 1

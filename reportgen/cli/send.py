@@ -72,7 +72,7 @@ def _ask_password() -> str:
 @click.option(
     "--show-pdf-password",
     metavar="CLIENT_ID",
-    help="Print this client's PDF password for the month (to tell them by phone) and exit.",
+    help="Print this client's PDF passwords for the month (to tell them by phone) and exit.",
 )
 def send_command(
     month_dir: Path,
@@ -116,7 +116,8 @@ def send_command(
     )
     try:
         if show_pdf_password is not None:
-            click.echo(pdf_password_for(month_dir, options, show_pdf_password))
+            for line in pdf_password_for(month_dir, options, show_pdf_password):
+                click.echo(line)
             return
         report = send_month(
             month_dir,

@@ -1,11 +1,14 @@
 """Password protection of report PDFs (AES-256, PDF revision 6) and the password rule.
 
-A client's PDF password is either written in the roster (column
+A client's report password is either written in the roster (column
 ``[mail] password_column``, default ``pdf_password``) or derived from a practice
 secret kept in a file outside the book:
 
     password = first 12 characters of base32(HMAC-SHA256(secret, "<client_id>:<YYYY-MM>")),
                in groups of four joined by "-", e.g. "K7QM-2XJD-PA4R"
+
+A practitioner summary is always derived, over "<client_id>:<YYYY-MM>:practitioner"
+(never the client's own password, which the practitioner must not learn).
 
 The secret is the file's bytes with surrounding white space removed. Base32 uses
 only A-Z and 2-7, so there is no 0/O or 1/I/l to confuse when the password is read
@@ -66,9 +69,14 @@ def secret_file_is_private(path: Path) -> bool:
     return not mode & (stat.S_IRWXG | stat.S_IRWXO)
 
 
-def derive_pdf_password(secret: bytes, client_id: str, month: str) -> str:
-    """The PDF password for one client and month under the documented rule (module docstring)."""
-    digest = hmac.new(secret, f"{client_id}:{month}".encode(), hashlib.sha256).digest()
+def derive_pdf_password(secret: bytes, client_id: str, month: str, kind: str = "report") -> str:
+    """The PDF password for one client and month under the documented rule (module docstring).
+
+    The practitioner summary gets its own password (text ``<client_id>:<YYYY-MM>:practitioner``)
+    so the referring practitioner never learns the client's.
+    """
+    text = f"{client_id}:{month}" if kind == "report" else f"{client_id}:{month}:{kind}"
+    digest = hmac.new(secret, text.encode(), hashlib.sha256).digest()
     text = base64.b32encode(digest).decode("ascii")[:PASSWORD_CHARS]
     return "-".join(text[i : i + PASSWORD_GROUP] for i in range(0, PASSWORD_CHARS, PASSWORD_GROUP))
 

@@ -170,13 +170,19 @@ def server_settings(config: Config, options: SendOptions) -> ServerSettings:
 
 
 def _pdf_password(
-    config: Config, client_extra: dict[str, str], client_id: str, month: str, secret: bytes | None
+    config: Config,
+    client_extra: dict[str, str],
+    client_id: str,
+    month: str,
+    secret: bytes | None,
+    kind: str = "report",
 ) -> str | None:
-    own = extra_value(client_extra, config.mail.password_column)
+    """The client's own password for their report, else the one derived from the secret."""
+    own = extra_value(client_extra, config.mail.password_column) if kind == "report" else ""
     if own:
         return own
     if secret is not None:
-        return derive_pdf_password(secret, client_id, month)
+        return derive_pdf_password(secret, client_id, month, kind)
     return None
 
 
@@ -261,7 +267,7 @@ def plan_month(
                 continue
             password = None
             if encrypt:
-                password = _pdf_password(config, client.extra, cid, manifest.month, secret)
+                password = _pdf_password(config, client.extra, cid, manifest.month, secret, kind)
                 if password is None:
                     rows.append(
                         Row(
@@ -269,7 +275,9 @@ def plan_month(
                             kind,
                             address,
                             "skipped-no-password",
-                            f"no {mail.password_column} and no [mail] secret_file",
+                            f"no {mail.password_column} and no [mail] secret_file"
+                            if kind == "report"
+                            else "practitioner copies need [mail] secret_file",
                         )
                     )
                     continue
@@ -524,8 +532,11 @@ def _send_all(
     return stop_reason
 
 
-def pdf_password_for(month_dir: Path, options: SendOptions, client_id: str) -> str:
-    """The PDF password one client's files get this month (for telling them by phone)."""
+def pdf_password_for(month_dir: Path, options: SendOptions, client_id: str) -> list[str]:
+    """The PDF passwords of one client's files this month, one ``kind: password`` line each.
+
+    For the clinic to tell the client (report) or the practitioner (summary) by phone.
+    """
     from reportgen.io.book import read_roster
 
     manifest = read_manifest(Path(month_dir))
@@ -542,9 +553,13 @@ def pdf_password_for(month_dir: Path, options: SendOptions, client_id: str) -> s
             secret = read_practice_secret(path, book_dir=manifest.book)
         except SecretError as exc:
             raise DeliveryError(str(exc)) from None
-    password = _pdf_password(config, client.extra, client_id, manifest.month, secret)
-    if password is None:
+    lines = []
+    for kind in KINDS:
+        password = _pdf_password(config, client.extra, client_id, manifest.month, secret, kind)
+        if password is not None:
+            lines.append(f"{kind}: {password}")
+    if not lines:
         raise DeliveryError(
             f"{client_id} has no {config.mail.password_column} and [mail] secret_file is not set"
         )
-    return password
+    return lines
