@@ -441,7 +441,7 @@ def _dask(tasks: list[ClientTask], dask: Any) -> Iterator[ClientOutcome]:
         fut = dask.submit(process_client, task, pure=False)
         by_key[fut.key] = task
         futures.append(fut)
-    for fut in as_completed(futures):
+    for fut in as_completed(futures, loop=dask.loop):
         task = by_key[fut.key]
         try:
             outcome = fut.result()

@@ -30,7 +30,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     out = Console(highlight=False)
     err = Console(stderr=True, highlight=False)
     failed = result.failed
-    with_warnings = [o for o in result.succeeded if o.warnings]
+    with_warnings = [o for o in result.outcomes if o.warnings]
     n_warnings = sum(len(o.warnings) for o in result.outcomes)
 
     if verbose:
@@ -54,7 +54,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     table.add_row(
         "warnings",
         str(len(with_warnings)),
-        f"{n_warnings} warning(s) in total, listed in manifest.json" if n_warnings else "",
+        f"{n_warnings} in all, listed in manifest.json" if n_warnings else "",
     )
     table.add_row("failed", str(len(failed)), "")
     for o in failed:
@@ -139,6 +139,9 @@ def batch_command(
             MofNCompleteColumn(),
             TimeRemainingColumn(),
             transient=True,
+            # No refresh thread: the pool forks its workers while the bar is up, and a
+            # thread holding the stdout lock at fork time could hang a worker.
+            auto_refresh=False,
         )
 
     def on_start(total: int) -> None:
@@ -146,10 +149,11 @@ def batch_command(
         if progress is not None:
             progress.start()
             bar = progress.add_task(f"Reports for {month}", total=total)
+            progress.refresh()
 
     def on_outcome(_outcome: object) -> None:
         if progress is not None and bar is not None:
-            progress.advance(bar)
+            progress.update(bar, advance=1, refresh=True)
 
     try:
         result = run_batch(
