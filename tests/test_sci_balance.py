@@ -1,0 +1,158 @@
+"""Energy balance: stored energy, realised deficit, observed TDEE, expenditure path.
+
+Check values from the science notes (§4.4, §4.5, §10 items 33, 50, 51), all
+computed there from the published formulas; tags beside each assert.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from reportgen.science.balance import (
+    KCAL_PER_KG_SPREADSHEET,
+    expenditure_path,
+    fat_mass_at,
+    observed_tdee_kcal,
+    spreadsheet_tdee_kcal,
+    stored_energy_kcal,
+    window_balance,
+)
+from reportgen.science.composition import energy_density_kcal_per_kg
+from reportgen.science.trend import Z80
+
+
+def test_observed_tdee_check_value() -> None:
+    # notes §10 item 33: intake 2000, -1.0 kg in 14 d, rho 7700 -> 2550 kcal/day (exact)
+    assert observed_tdee_kcal(2000.0, -1.0, 14.0, 7700.0) == pytest.approx(2550.0, rel=1e-9)
+
+
+def test_observed_tdee_with_hall_energy_density() -> None:
+    # notes §4.4: with F0 = 20 kg (rho about 6832 by the infinitesimal rule) TDEE = 2488
+    rho = energy_density_kcal_per_kg(20.0)
+    assert rho == pytest.approx(6832, abs=1)  # notes §4.3 table, computed there
+    assert observed_tdee_kcal(2000.0, -1.0, 14.0, rho) == pytest.approx(2488, abs=1)
+
+
+def test_stored_energy_of_fat_and_lean_change() -> None:
+    # notes §10 item 51: 80 kg 25 % -> 76 kg 22 % is dFM -3.28, dFFM -0.72 kg; energy by
+    # Hall 2008 densities 9440 and 1816 kcal/kg: 9440 x -3.28 + 1816 x -0.72 (hand-calculated)
+    assert stored_energy_kcal(-3.28, -0.72) == pytest.approx(-32270.72, abs=1e-6)
+
+
+def test_fat_mass_moves_along_forbes_curve() -> None:
+    # notes §10 item 30: F0 20 kg, dBW -10 kg -> dF -6.166 kg (computed there)
+    assert fat_mass_at(20.0, 80.0, 70.0) == pytest.approx(20.0 - 6.166, abs=1e-3)
+    assert fat_mass_at(20.0, 80.0, 80.0) == pytest.approx(20.0, abs=1e-12)
+
+
+def _line(days: int, slope: float, start: float = 80.0) -> np.ndarray:
+    return start + slope * np.arange(days)
+
+
+def test_window_balance_noise_free_line() -> None:
+    """-0.1 kg/day for 28 days at 2000 kcal/day, F 20 kg: deficit = rho x 0.1 exactly."""
+    w = _line(28, -0.1)
+    b = window_balance(w, np.full(28, 2000.0), 20.0, 2.7)
+    rho = energy_density_kcal_per_kg(20.0, -0.1 * 28)
+    assert b.energy_density_kcal_per_kg == pytest.approx(rho, rel=1e-12)
+    assert b.deficit_kcal.value == pytest.approx(0.1 * rho, rel=1e-9)
+    assert b.tdee_kcal.value == pytest.approx(2000.0 + 0.1 * rho, rel=1e-9)
+    assert b.energy_density_low <= rho <= b.energy_density_high  # type: ignore[operator]
+    assert b.fat_change_kg is not None and b.lean_change_kg is not None
+    assert b.fat_change_kg + b.lean_change_kg == pytest.approx(-2.8, abs=1e-9)
+    # no weight noise and a constant intake: only the energy-density bracket is left
+    half = b.deficit_kcal.high - b.deficit_kcal.value  # type: ignore[operator]
+    assert half > 0
+    s_rho = (b.energy_density_high - b.energy_density_low) / 2  # type: ignore[operator]
+    assert half == pytest.approx(Z80 * 0.1 * s_rho, rel=1e-3)
+
+
+def test_interval_contains_estimate_and_widens_with_fewer_days() -> None:
+    rng = np.random.default_rng(3)
+    w = _line(56, -0.08) + rng.normal(0, 0.5, 56)
+    intake = 1900 + rng.normal(0, 300, 56)
+    long = window_balance(w, intake, 25.0, 2.7)
+    short = window_balance(w[:21], intake[:21], 25.0, 2.7)
+    for b in (long, short):
+        for e in (b.deficit_kcal, b.tdee_kcal):
+            assert e.low is not None and e.high is not None and e.value is not None
+            assert e.low < e.value < e.high
+    width = lambda e: e.high - e.low  # noqa: E731
+    assert width(short.tdee_kcal) > width(long.tdee_kcal)
+    assert width(short.deficit_kcal) > width(long.deficit_kcal)
+
+
+def test_missing_intake_days_widen_the_tdee_interval() -> None:
+    rng = np.random.default_rng(4)
+    w = _line(42, -0.07) + rng.normal(0, 0.4, 42)
+    intake = 2000 + rng.normal(0, 350, 42)
+    full = window_balance(w, intake, 25.0, 2.7)
+    gappy_intake = intake.copy()
+    gappy_intake[rng.random(42) < 0.6] = np.nan
+    gappy = window_balance(w, gappy_intake, 25.0, 2.7)
+    assert gappy.intake_days < full.intake_days
+    assert gappy.tdee_se_kcal > full.tdee_se_kcal  # type: ignore[operator]
+    assert gappy.deficit_kcal == full.deficit_kcal  # intake never enters the deficit
+
+
+def test_fewer_than_14_days_is_refused_with_a_reason() -> None:
+    b = window_balance(_line(13, -0.1), np.full(13, 2000.0), 20.0, 2.7)
+    assert b.deficit_kcal.value is None and b.deficit_kcal.reason == "too-few-days"
+    assert b.tdee_kcal.reason == "too-few-days"
+
+
+def test_too_few_weigh_ins_and_intake_days() -> None:
+    w = _line(20, -0.1)
+    sparse = np.full(20, np.nan)
+    sparse[[0, 5, 10, 19]] = w[[0, 5, 10, 19]]
+    assert window_balance(sparse, np.full(20, 2000.0), 20.0, 2.7).deficit_kcal.reason == (
+        "too-few-weigh-ins"
+    )
+    intake = np.full(20, np.nan)
+    intake[:5] = 2000.0
+    b = window_balance(w, intake, 20.0, 2.7)
+    assert b.deficit_kcal.known and b.tdee_kcal.reason == "too-few-intake-days"
+
+
+def test_unknown_fat_mass_uses_the_7700_simplification() -> None:
+    b = window_balance(_line(28, -0.1), np.full(28, 2000.0), None, 0.0)
+    assert b.energy_density_kcal_per_kg == KCAL_PER_KG_SPREADSHEET
+    assert b.deficit_kcal.value == pytest.approx(770.0, rel=1e-9)
+    assert b.fat_change_kg is None
+
+
+def test_spreadsheet_method() -> None:
+    # (first - last raw weight) x 7700 / days, as a coach's spreadsheet does it
+    w = np.array([80.0, np.nan, 79.9, 79.4, np.nan, 79.0, np.nan])
+    deficit, tdee = spreadsheet_tdee_kcal(w, np.array([2000.0] * 6 + [np.nan]))
+    assert deficit == pytest.approx(1.0 * 7700 / 5, rel=1e-12)
+    assert tdee == pytest.approx(2000 + 1540, rel=1e-12)
+    assert all(math.isnan(x) for x in spreadsheet_tdee_kcal(np.array([80.0]), np.array([1.0])))
+
+
+def test_expenditure_path_recovers_constant_expenditure() -> None:
+    """Noise-free: 2000 kcal/day in, -0.1 kg/day at rho 7700 -> 2770 kcal/day out."""
+    n = 90
+    w = _line(n, -0.1)
+    intake = np.full(n, 2000.0)
+    path = expenditure_path(w, intake, 7700.0, 0.3)
+    mid = slice(20, n - 5)
+    assert np.allclose(path.tdee_kcal[mid], 2770.0, atol=15.0)
+    assert np.all(path.sd_kcal > 0)
+
+
+def test_expenditure_path_handles_missing_intake_and_weight() -> None:
+    rng = np.random.default_rng(6)
+    n = 120
+    w = _line(n, -0.08) + rng.normal(0, 0.4, n)
+    intake = 2100 + rng.normal(0, 300, n)
+    w[rng.random(n) < 0.3] = np.nan
+    w[0] = 80.0
+    intake[rng.random(n) < 0.3] = np.nan
+    path = expenditure_path(w, intake, 7500.0, 0.4)
+    assert np.all(np.isfinite(path.tdee_kcal))
+    # truth: 2100 + 0.08 x 7500 = 2700 kcal/day; the mean over the log is close
+    assert float(np.mean(path.tdee_kcal[14:])) == pytest.approx(2700.0, abs=120.0)
