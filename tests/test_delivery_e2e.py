@@ -12,7 +12,7 @@ from _delivery_helpers import (
     smtp_server,
     write_config,
 )
-from click.testing import CliRunner
+from click.testing import CliRunner, Result
 from pypdf import PasswordType, PdfReader
 
 from reportgen.cli import main
@@ -27,7 +27,7 @@ BATCH = ("--month", MONTH, "--clients", CLIENTS, "--quiet")
 SECRET = "sample-practice-secret-for-tests"
 
 
-def _cli(*args: object) -> object:
+def _cli(*args: object) -> Result:
     return CliRunner().invoke(main, [str(a) for a in args], catch_exceptions=False)
 
 

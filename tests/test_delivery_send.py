@@ -18,7 +18,7 @@ from _delivery_helpers import (
 )
 
 from reportgen.delivery.month import DeliveryError
-from reportgen.delivery.send import SendOptions, send_month
+from reportgen.delivery.send import SendOptions, SendReport, send_month
 
 # Every test here fails if anything but 127.0.0.1 is contacted or looked up.
 pytestmark = pytest.mark.usefixtures("loopback_only")
@@ -26,7 +26,7 @@ pytestmark = pytest.mark.usefixtures("loopback_only")
 FAST = 0.01  # back-off base for tests [s]
 
 
-def _send(month: Month, **kw: object) -> object:
+def _send(month: Month, **kw: object) -> SendReport:
     opts = SendOptions(retry_delay_s=FAST, **kw)  # type: ignore[arg-type]
     return send_month(month.month_dir, opts)
 
