@@ -165,7 +165,7 @@ def read_client(
     sources: list[str] = []
     if client.roster_file:
         sources.append(client.roster_file)
-    if phases and (book / PHASES_FILE).is_file():
+    if (book / PHASES_FILE).is_file():  # it decides this client's phases, even if none
         sources.append(PHASES_FILE)
 
     log, outliers = DailyLog.empty(), ()
