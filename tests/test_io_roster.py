@@ -271,3 +271,24 @@ def test_cp1252_roster(tmp_path: Path) -> None:
     roster = read_roster(book)
     assert roster.clients[0].name == "Hélène Müller"
     find_problem(roster.problems, "encoding-fallback", match=r"clients.csv is not UTF-8")
+
+
+def test_blank_roster_details_warn(tmp_path: Path) -> None:
+    roster = roster_of(tmp_path, f"{ROSTER_HEADER}\nc001,Ada,,,168,,no\nc002,Bo,m,1980-01-01,,,\n")
+    find_problem(
+        roster.problems,
+        "missing-detail",
+        match=r"sex and birth_date are blank: .*cannot tell whether the client is a minor",
+        severity="warning",
+        row=2,
+        column="sex",
+    )
+    find_problem(
+        roster.problems,
+        "missing-detail",
+        match=r"height_cm is blank: BMI and expected expenditure need the height",
+        row=3,
+    )
+    # A bad value is reported as the error it is, not again as blank.
+    roster = roster_of(tmp_path / "again", f"{ROSTER_HEADER}\nc001,Ada,x,1990-01-01,168,,no\n")
+    assert [p.code for p in roster.problems] == ["bad-value"]

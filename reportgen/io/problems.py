@@ -41,4 +41,5 @@ PROBLEM_CODES: Final[dict[str, tuple[Severity, str]]] = {
     "encoding-fallback": ("warning", "a file that is not UTF-8, read as cp1252/latin-1"),
     "duplicate-row": ("warning", "a row repeating another row exactly, ignored"),
     "special-handling": ("warning", "a minor or pregnant client: no deficit analysis"),
+    "missing-detail": ("warning", "sex, birth date or height blank in the roster"),
 }

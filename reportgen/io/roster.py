@@ -38,6 +38,24 @@ _LIMITS: Final = {
 }
 
 
+_NEEDED_FOR: Final = {
+    "sex": "expected expenditure and body fat need the sex",
+    "birth_date": "without the age reportgen cannot tell whether the client is a minor, and "
+    "expected expenditure and body fat need it",
+    "height_cm": "BMI and expected expenditure need the height",
+}
+
+
+def _names(raw: dict[str, str], canonical: str) -> set[str | None]:
+    """The column names as written that carry ``canonical``."""
+    return {raw[a] for a in alternatives(canonical) if a in raw}
+
+
+def _label(raw: dict[str, str], canonical: str) -> str:
+    """The column as written for ``canonical`` (first alternative present), else its name."""
+    return next((raw[a] for a in alternatives(canonical) if a in raw), canonical)
+
+
 def parse_roster(table: Table, today: dt.date) -> tuple[tuple[Client, ...], list[Problem]]:
     """Parse the roster table; problems carry the client id where one is known."""
     problems, ok = check_columns(table, [("client_id",)], ROSTER_COLUMNS, None, warn_unknown=False)
@@ -153,6 +171,30 @@ def parse_roster(table: Table, today: dt.date) -> tuple[tuple[Client, ...], list
         pregnant = get("pregnant", parse_yes_no) or False
         email = parse_text(cell("email")) or None
         extra = {name: parse_text(cells[p]) for p, name in extra_pos}
+        blank = [
+            col
+            for col, value in (
+                ("sex", sex),
+                ("birth_date", birth),
+                ("height_cm", measures["height_cm"]),
+            )
+            if value is None and not any(b.column in _names(raw, col) for b in bad)
+        ]
+        if blank:
+            bad.append(
+                Problem(
+                    "warning",
+                    "missing-detail",
+                    f"{' and '.join(_label(raw, c) for c in blank)} "
+                    f"{'is' if len(blank) == 1 else 'are'} blank: "
+                    + "; ".join(_NEEDED_FOR[c] for c in blank)
+                    + ". Fill in the roster",
+                    file=table.file,
+                    row=row,
+                    column=_label(raw, blank[0]),
+                    client_id=cid,
+                )
+            )
         problems.extend(bad)
         clients.append(
             Client(
