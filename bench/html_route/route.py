@@ -210,35 +210,32 @@ def render_client_html_pdf(analysis: ClientAnalysis, config: Config) -> bytes:
 
 def render_practitioner_html_pdf(analysis: ClientAnalysis, config: Config) -> bytes:
     """The one-page practitioner summary through jinja2 HTML + WeasyPrint."""
-    ctx = _client_context_practitioner(analysis, config)
+    ctx = _practitioner_context(analysis, config)
     return _pdf(_env().get_template("practitioner.html.j2").render(**ctx))
 
 
-def _client_context_practitioner(analysis: ClientAnalysis, config: Config) -> dict[str, Any]:
-    """The practitioner page: the same figures, phase table, flags and methods, one page."""
-    from reportgen.report.viewmodel import client_view
+def _practitioner_context(analysis: ClientAnalysis, config: Config) -> dict[str, Any]:
+    """The practitioner page from the product's summary view and practitioner wording."""
+    from reportgen.report.practitioner import summary_view
     from reportgen.report.wording import Wording
 
-    words = Wording(config, "report/client.j2")
-    vm = client_view(analysis, config)
+    words = Wording(config, "report/practitioner.j2")
+    sv = summary_view(analysis, config, words)
     labels = words.labels
-    cols = labels["phase_cols"]
-    units = [u.replace("{e}", vm.energy_unit + "/day") for u in labels["phase_units"]]
-    figures = [
-        {
-            "label": labels["figures"][key],
-            "value": vm.figures[key].value if vm.figures[key].known else labels["not_enough"],
-            "interval": vm.figures[key].interval,
-        }
-        for key in FIGURE_KEYS
-    ]
+    ident = [(labels["ident"][k], v) for k, v in sv.ident]
+    half = (len(ident) + 1) // 2
     return {
-        "vm": vm,
+        "practice": config.practice,
         "paper": config.report.paper,
         "accent": config.report.accent_colour,
-        "figures": figures,
-        "phase_head": list(zip(cols, units, strict=True)),
-        "phase_rows": vm.phases,
-        "methods": vm.methods,
-        "flags": vm.flags,
+        "labels": labels,
+        "header": markup_to_html(words.text("header", sv)),
+        "ident_rows": list(zip(ident[:half], [*ident[half:], ("", "")], strict=False)),
+        "special": Markup(words.text("special_line", sv).strip()),
+        "rows": [(labels["rows"][k], v, i, m) for k, v, i, m in sv.rows],
+        "phases": sv.phases,
+        "flags": [Markup(words.text("flag_line", f)) for f in sv.flags],
+        "quality": Markup(words.text("quality_line", sv)),
+        "references": [Markup(words.text("reference_line", m)) for m in sv.methods],
+        "footnote": Markup(words.text("footnote", sv)),
     }
