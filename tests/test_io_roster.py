@@ -292,3 +292,15 @@ def test_blank_roster_details_warn(tmp_path: Path) -> None:
     # A bad value is reported as the error it is, not again as blank.
     roster = roster_of(tmp_path / "again", f"{ROSTER_HEADER}\nc001,Ada,x,1990-01-01,168,,no\n")
     assert [p.code for p in roster.problems] == ["bad-value"]
+
+
+def test_roster_workbook_without_a_clients_sheet_uses_the_first(tmp_path: Path) -> None:
+    book = write_book(tmp_path / "book")
+    (book / "clients.csv").unlink()
+    write_xlsx(
+        book / "clients.xlsx",
+        {"Sheet": [["client_id", "name"], ["c001", "Ada"]], "notes": [["x"]]},
+    )
+    roster = read_roster(book, today=TODAY)
+    assert [c.name for c in roster.clients] == ["Ada"]
+    assert roster.clients[0].roster_file == "clients.xlsx"
