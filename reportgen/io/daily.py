@@ -81,8 +81,9 @@ def number_column(
     """
     n = len(cells)
     out: FloatArray | None = None
-    if all(type(c) is str for c in cells):
-        joined = "".join(cells)  # type: ignore[arg-type]
+    texts = [c for c in cells if type(c) is str]
+    if len(texts) == n:
+        joined = "".join(texts)
         if joined.isascii() and "_" not in joined:  # what float() takes beyond our rules
             try:
                 out = np.array(cells, dtype=str).astype(np.float64)

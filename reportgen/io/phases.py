@@ -3,13 +3,13 @@
 from __future__ import annotations
 
 import itertools
-from typing import Final
+from typing import Final, cast
 
 from reportgen.io import limits
 from reportgen.io.cells import CellError, check_range, parse_date, parse_number, parse_text
 from reportgen.io.columns import check_columns
 from reportgen.io.model import PHASE_KINDS, Phase, PhaseKind, Problem
-from reportgen.io.tables import Table
+from reportgen.io.tables import Cell, Table
 
 PHASE_COLUMNS: Final = ("client_id", "name", "start", "end", "kind", "target_kcal")
 
@@ -34,11 +34,11 @@ def parse_phases(
 
     for row, cells in table.rows:
 
-        def cell(c: str, cells: tuple[object, ...] = cells) -> object:
+        def cell(c: str, cells: tuple[Cell, ...] = cells) -> Cell:
             p = pos[c]
             return None if p is None else cells[p]
 
-        cid = client_id if client_id is not None else parse_text(cell("client_id"))  # type: ignore[arg-type]
+        cid = client_id if client_id is not None else parse_text(cell("client_id"))
         bad: list[Problem] = []
 
         def err(
@@ -70,30 +70,30 @@ def parse_phases(
         dates = {}
         for c in ("start", "end"):
             try:
-                dates[c] = parse_date(cell(c), raw.get(c, c))  # type: ignore[arg-type]
+                dates[c] = parse_date(cell(c), raw.get(c, c))
             except CellError as e:
                 err(e.code, e.message, c)
                 dates[c] = None
         start, end = dates["start"], dates["end"]
         if start is None and not any(b.column == raw["start"] for b in bad):
             err("missing-value", f"phase in row {row} has no start date; add it", "start")
-        kind = parse_text(cell("kind")).lower()  # type: ignore[arg-type]
+        kind = parse_text(cell("kind")).lower()
         if kind not in PHASE_KINDS:
             err(
                 "bad-value",
-                f'kind "{parse_text(cell("kind"))}" is not a phase kind; use one of '  # type: ignore[arg-type]
+                f'kind "{parse_text(cell("kind"))}" is not a phase kind; use one of '
                 f"{', '.join(PHASE_KINDS)}",
                 "kind",
             )
         target = None
         try:
-            target = parse_number(cell("target_kcal"), raw.get("target_kcal", "target_kcal"))  # type: ignore[arg-type]
+            target = parse_number(cell("target_kcal"), raw.get("target_kcal", "target_kcal"))
             if target is not None:
                 check_range(
                     target,
                     limits.TARGET_KCAL,
                     raw["target_kcal"],
-                    cell("target_kcal"),  # type: ignore[arg-type]
+                    cell("target_kcal"),
                     "kcal",
                     "no plausible daily intake",
                 )
@@ -110,8 +110,8 @@ def parse_phases(
             problems.extend(bad)
             continue
         assert start is not None
-        name = parse_text(cell("name")) or kind  # type: ignore[arg-type]
-        k: PhaseKind = kind  # type: ignore[assignment]
+        name = parse_text(cell("name")) or kind
+        k = cast(PhaseKind, kind)  # checked against PHASE_KINDS above
         out.setdefault(cid, []).append(
             (row, Phase(name=name, start=start, end=end, kind=k, target_kcal=target))
         )

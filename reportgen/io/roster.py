@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import datetime as dt
 import re
-from typing import Final
+from collections.abc import Callable
+from typing import Final, TypeVar
 
 from reportgen.io import limits
 from reportgen.io.cells import (
@@ -21,6 +22,7 @@ from reportgen.io.model import Client, Problem
 from reportgen.io.tables import Cell, Table
 from reportgen.io.units import UNIT_AGREEMENT, UNIT_MAP, alternatives
 
+T = TypeVar("T")
 CLIENT_ID_RE: Final = re.compile(rf"[A-Za-z0-9_-]{{1,{limits.MAX_CLIENT_ID_LEN}}}")
 ROSTER_COLUMNS: Final = (
     "client_id",
@@ -125,7 +127,7 @@ def parse_roster(table: Table, today: dt.date) -> tuple[tuple[Client, ...], list
             continue
         seen[cid] = row
 
-        def get(c: str, fn, cid: str = cid):  # type: ignore[no-untyped-def]
+        def get(c: str, fn: Callable[[Cell, str], T], cid: str = cid) -> T | None:
             try:
                 return fn(cell(c), raw.get(c, c))
             except CellError as e:

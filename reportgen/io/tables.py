@@ -67,8 +67,15 @@ def is_blank(cell: Cell) -> bool:
     return cell is None or (isinstance(cell, str) and not cell.strip())
 
 
-def _problem(code: str, message: str, file: str, client_id: str | None, **kw: object) -> Problem:
-    return Problem("error", code, message, file=file, client_id=client_id, **kw)  # type: ignore[arg-type]
+def _problem(
+    code: str,
+    message: str,
+    file: str,
+    client_id: str | None,
+    row: int | None = None,
+    column: str | None = None,
+) -> Problem:
+    return Problem("error", code, message, file=file, row=row, column=column, client_id=client_id)
 
 
 def build_table(
