@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import datetime as dt
 from dataclasses import dataclass
 from pathlib import Path
@@ -20,13 +21,14 @@ class CheckResult:
     today: dt.date
     roster: Roster
     records: tuple[ClientRecord, ...]
+    unused_files: tuple[Problem, ...] = ()  # files no client's reading used
 
     @property
     def problems(self) -> tuple[Problem, ...]:
         """Book-level problems first, then each client's, in a stable order."""
         ids = {r.client.client_id for r in self.records}
         book = [p for p in self.roster.problems if p.client_id not in ids]
-        per_client = [p for r in self.records for p in r.problems]
+        per_client = [p for r in self.records for p in r.problems] + list(self.unused_files)
         return tuple(sorted(book, key=_order)) + tuple(sorted(per_client, key=_order))
 
     @property
@@ -122,7 +124,57 @@ def check_book(
             else r
             for r in records
         ]
-    return CheckResult(str(book.resolve()), month, today, roster, tuple(records))
+    unused = tuple(_unused_files(book, roster, records))
+    return CheckResult(str(book.resolve()), month, today, roster, tuple(records), unused)
+
+
+def _unused_files(book: Path, roster: Roster, records: list[ClientRecord]) -> list[Problem]:
+    """Warnings for files in logs/ and skinfolds/ that no client's reading used.
+
+    A log saved under a mistyped name (or as .xls/.ods) is otherwise silently left out.
+    Hidden files and spreadsheet lock files (``~$...``) are not mentioned.
+    """
+    used = {f for r in records for f in r.source_files}
+    # Compare by inode too: on a case-insensitive file system C001.csv *is* c001.csv.
+    used_ids = set()
+    for f in used:
+        with contextlib.suppress(OSError):
+            st = (book / f).stat()
+            used_ids.add((st.st_dev, st.st_ino))
+    ids = {c.client_id.lower(): c.client_id for c in roster.clients}
+    out = []
+    for folder in ("logs", "skinfolds"):
+        if not (book / folder).is_dir():
+            continue
+        for path in sorted((book / folder).iterdir()):
+            rel = f"{folder}/{path.name}"
+            if rel in used or not path.is_file() or path.name.startswith((".", "~$")):
+                continue
+            st = path.stat()
+            if (st.st_dev, st.st_ino) in used_ids:
+                continue
+            owner = ids.get(path.stem.lower())
+            if owner is None:
+                why = f"its name matches no client_id in {', '.join(roster.source_files[:1])}"
+            elif path.stem != owner:
+                why = f'the name must match the client_id "{owner}" exactly'
+            elif path.suffix.lower() not in (".csv", ".xlsx") or (
+                folder == "skinfolds" and path.suffix.lower() != ".csv"
+            ):
+                kinds = ".csv" if folder == "skinfolds" else ".csv or .xlsx"
+                why = f"reportgen reads {kinds} files here; save it in that format"
+            else:
+                continue  # a second source of the same data: reported as two-sources
+            out.append(
+                Problem(
+                    "warning",
+                    "unused-file",
+                    f"{rel} is not read: {why}",
+                    file=rel,
+                    client_id=owner,
+                )
+            )
+    return out
 
 
 def _minor(record: ClientRecord, on: dt.date) -> bool:

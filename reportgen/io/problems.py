@@ -42,4 +42,5 @@ PROBLEM_CODES: Final[dict[str, tuple[Severity, str]]] = {
     "duplicate-row": ("warning", "a row repeating another row exactly, ignored"),
     "special-handling": ("warning", "a minor or pregnant client: no deficit analysis"),
     "missing-detail": ("warning", "sex, birth date or height blank in the roster"),
+    "unused-file": ("warning", "a file in logs/ or skinfolds/ that no client reads (check only)"),
 }
