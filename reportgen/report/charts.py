@@ -239,7 +239,8 @@ def _y_ticks(ax: Axes, lo: float, hi: float, n: int = 4, min_span: float = 0.0) 
     ax.set_ylim(min(lo - pad, ticks[0]), max(hi + pad, ticks[-1]))
     ax.set_yticks(ticks)
     dp = 0 if step >= 1 else (1 if step >= 0.1 else 2)
-    ax.set_yticklabels([f"{t:,.{dp}f}".replace("-", "\u2212") for t in ticks])
+    # ASCII hyphen-minus: a U+2212 would make matplotlib embed a second font subset
+    ax.set_yticklabels([f"{t:,.{dp}f}" for t in ticks])
 
 
 def _shade_phases(ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *, names: bool):
@@ -468,13 +469,14 @@ def signals_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -
                 ax.text(
                     1.0,
                     base,
-                    " " + L["baseline"],
+                    L["baseline"],
                     transform=ax.get_yaxis_transform(),
                     fontsize=5.5,
                     color=T.INK,
                     va="bottom",
                     ha="right",
                     zorder=6,
+                    bbox={"fc": "white", "ec": "none", "pad": 0.6, "alpha": 0.85},
                 )
                 lo, hi = min(lo, base), max(hi, base)
             if name == "steps":
@@ -489,67 +491,75 @@ def signals_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -
 
 
 def bodycomp_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) -> bytes | None:
+    """Fat and lean mass as change since the first session (one scale), and the skinfold sum."""
     sessions = [s for s in a.bodycomp if not s.rough]
     if not sessions:
         return None
     u, L = ctx.units, ctx.labels
     xs = np.array([_day(s.date) for s in sessions])
-    panels = [
-        (
-            L["fat_mass"],
-            np.array([u.weight(s.fat_mass_kg) for s in sessions]),
-            T.WARM,
-            u.weight_unit,
-            1,
-        ),
-        (
-            L["lean_mass"],
-            np.array([u.weight(s.lean_mass_kg) for s in sessions]),
-            ctx.accent,
-            u.weight_unit,
-            1,
-        ),
-        (
-            L["skinfold_sum"],
-            np.array([np.nan if s.sum_mm is None else s.sum_mm for s in sessions]),
-            T.DEEP,
-            "mm",
-            0,
-        ),
-    ]
-    fig = _figure(ctx, height_mm, (12, 3, 8, 6))
-    axes = fig.subplots(1, 3)
-    x0 = min(xs.min(), _day(ctx.start)) if len(xs) > 1 else xs.min() - 14
-    x1 = max(xs.max(), _day(ctx.end)) if len(xs) > 1 else xs.max() + 14
-    first = dt.date.fromordinal(int(x0) + dt.date(1970, 1, 1).toordinal())
-    last = dt.date.fromordinal(int(x1) + dt.date(1970, 1, 1).toordinal())
-    for ax, (title, y, c, unit, dp) in zip(axes, panels, strict=True):
-        _grid(ax)
-        ax.set_title(f"{title} ({unit})", fontsize=6.5, color=T.INK, loc="left", pad=3)
-        ok = np.isfinite(y)
-        if ok.any():
-            ax.plot(xs[ok], y[ok], color=c, lw=1.2, marker="o", ms=3.2, zorder=3)
-            ends = [0, -1] if ok.sum() > 1 else [0]
-            for xi, yi, ha in zip(xs[ok][ends], y[ok][ends], ("left", "right"), strict=False):
-                ax.annotate(
-                    f"{yi:.{dp}f}",
-                    (xi, yi),
-                    xytext=(3 if ha == "left" else -3, 3),
-                    textcoords="offset points",
-                    ha=ha,
-                    fontsize=5.8,
-                    color=T.INK,
-                )
-            _y_ticks(ax, float(np.nanmin(y)), float(np.nanmax(y)) * 1.0 + 0.001, n=3)
-            ymin, ymax = ax.get_ylim()
-            ax.set_ylim(ymin, ymax + (ymax - ymin) * 0.12)
-        else:
-            ax.set_yticks([])
-        _time_ticks(ax, first, last, u)
-        if len(ax.get_xticks()) > 3:
-            ax.set_xticks(ax.get_xticks()[::2])
-            ax.set_xticklabels([t.get_text() for t in ax.get_xticklabels()])
+    fat = np.array([float(u.weight(s.fat_mass_kg)) for s in sessions])
+    lean = np.array([float(u.weight(s.lean_mass_kg)) for s in sessions])
+    sums = np.array([np.nan if s.sum_mm is None else s.sum_mm for s in sessions])
+    fig = _figure(ctx, height_mm, (14, 3, 8, 6))
+    gs = fig.add_gridspec(1, 2, width_ratios=(3, 2), wspace=0.22)
+    left, right = fig.add_subplot(gs[0]), fig.add_subplot(gs[1])
+    pad = 10.0 if len(xs) > 1 else 21.0
+    first = _date_of(min(xs.min() - pad, _day(ctx.start)) if len(xs) > 1 else xs.min() - pad)
+    last = _date_of(xs.max() + pad)
+
+    _grid(left)
+    left.set_title(
+        L["bodycomp_change"].format(unit=u.weight_unit),
+        fontsize=6.5,
+        color=T.INK,
+        loc="left",
+        pad=3,
+    )
+    left.axhline(0, color=T.MUTED, lw=0.6, zorder=2)
+    d_fat, d_lean = fat - fat[0], lean - lean[0]
+    left.plot(xs, d_fat, color=T.WARM, lw=1.3, marker="o", ms=3.2, zorder=4)
+    left.plot(xs, d_lean, color=ctx.accent, lw=1.3, marker="s", ms=3.0, ls=(0, (4, 1.5)), zorder=4)
+    for series, values, name in ((d_fat, fat, L["fat_mass"]), (d_lean, lean, L["lean_mass"])):
+        left.annotate(
+            f"{name} {values[-1]:.1f} {u.weight_unit}",
+            (xs[-1], series[-1]),
+            xytext=(4, 0),
+            textcoords="offset points",
+            va="center",
+            ha="left",
+            fontsize=5.8,
+            color=T.INK,
+        )
+    lo = float(min(d_fat.min(), d_lean.min(), 0.0))
+    hi = float(max(d_fat.max(), d_lean.max(), 0.0))
+    _y_ticks(left, lo, hi, n=3, min_span=float(u.weight(1.0)))
+    _time_ticks(left, first, last, u)
+    # room at the right for the "now" labels at the line ends
+    left.set_xlim(right=_day(last) + (_day(last) - _day(first)) * 0.28)
+
+    _grid(right)
+    right.set_title(L["skinfold_sum"] + " (mm)", fontsize=6.5, color=T.INK, loc="left", pad=3)
+    ok = np.isfinite(sums)
+    if ok.any():
+        right.plot(xs[ok], sums[ok], color=T.DEEP, lw=1.3, marker="D", ms=2.8, zorder=4)
+        right.annotate(
+            f"{sums[ok][-1]:.0f}",
+            (xs[ok][-1], sums[ok][-1]),
+            xytext=(0, 4),
+            textcoords="offset points",
+            ha="center",
+            fontsize=5.8,
+            color=T.INK,
+        )
+        _y_ticks(right, float(np.nanmin(sums)), float(np.nanmax(sums)), n=3, min_span=4.0)
+    else:
+        right.set_yticks([])
+    _time_ticks(right, first, last, u)
     return _save(fig)
+
+
+def _date_of(day_number: float) -> dt.date:
+    return dt.date(1970, 1, 1) + dt.timedelta(days=round(day_number))
 
 
 def projection_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 58) -> bytes | None:
