@@ -308,7 +308,7 @@ def _baseline(
     noise: NoiseModel | None,
     knots: tuple[int, ...],
 ) -> exp_.Baseline | None:
-    """First maintenance phase with a TDEE, else the first weeks of data."""
+    """First maintenance phase before any deficit with a TDEE, else the first weeks of data."""
     resting = resting_at  # callable weight -> kcal or None
 
     def make(b: bal.WindowBalance, mean_w: float, source: str) -> exp_.Baseline | None:
@@ -326,7 +326,10 @@ def _baseline(
             b.tdee_kcal.value, b.tdee_se_kcal, mean_w, fat, b.mean_intake_kcal, r, fr, lr, source
         )
 
+    first_deficit = min((w.phase.start for w in windows if w.phase.kind == "deficit"), default=None)
     for w in windows:
+        if first_deficit is not None and w.phase.start > first_deficit:
+            break  # a baseline comes before the first deficit
         if w.phase.kind == "maintenance" and w.bal is not None and w.mean_weight_kg is not None:
             got = make(w.bal, w.mean_weight_kg, "maintenance-phase")
             if got is not None:
@@ -533,8 +536,14 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
         f_now = _fat_at(comp, cur_w)
         rho = energy_density_kcal_per_kg(f_now) if f_now else bal.KCAL_PER_KG_SPREADSHEET
         if np.isfinite(log.intake_kcal).sum() >= bal.MIN_INTAKE_DAYS:
+            starts = tuple(i0 for _, i0, _, _ in raw_windows if i0 > 0)
             path = bal.expenditure_path(
-                weights_used, log.intake_kcal, rho, fit.noise_sd_kg, fit.weights
+                weights_used,
+                log.intake_kcal,
+                rho,
+                fit.noise_sd_kg,
+                fit.weights,
+                shift_days=starts,
             )
             expenditure = ExpenditureSeries(
                 dates=log.dates,

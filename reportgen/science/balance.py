@@ -34,12 +34,22 @@ from reportgen.science.composition import (
     energy_density_kcal_per_kg,
     partition_weight_change_hall,
 )
-from reportgen.science.trend import Z80, NoiseModel, WindowRate, window_rate
+from reportgen.science.trend import (
+    SHIFT_PRIOR_SD_KG,
+    SHIFT_TAU_DAYS,
+    Z80,
+    NoiseModel,
+    WindowRate,
+    window_rate,
+)
 
 MIN_DAYS = 14  # no expenditure from fewer days (science notes §4.4, §8: common practice)
 MIN_WEIGH_INS = 8  # judgment: fewer weigh-ins than this cannot pin a rate
 MIN_INTAKE_DAYS = 7  # judgment: a mean intake from fewer logged days is not used
 KCAL_PER_KG_SPREADSHEET = 7700.0  # the constant a spreadsheet typically uses (common practice)
+# Glycogen 17.6 MJ/kg (Hall 2008, published) held with about 3 g of water per g (from
+# memory, unverified): 1052 kcal per kg of glycogen-with-water shift.
+GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / 4.184 / 4
 FALLBACK_RHO_HALF_RANGE = 600.0  # judgment: bracket of 7700 when the fat mass is unknown
 
 
@@ -130,6 +140,34 @@ def fat_mass_at(fat_ref_kg: float, weight_ref_kg: float, weight_kg: float) -> fl
     return fat_ref_kg + d_fat
 
 
+def intake_mean_se_kcal(logged_kcal: FloatArray, days: int) -> float:
+    """Standard error of the mean logged intake as an estimate of the window's mean intake.
+
+    Parameters
+    ----------
+    logged_kcal : numpy.ndarray
+        Intake on the logged days only. [kcal/day]
+    days : int
+        Days in the window (logged or not).
+
+    Returns
+    -------
+    float
+        sqrt(s_true^2 (1 - n/N) / n + (c m)^2 / n) [kcal/day]: the sampling error of
+        the unlogged days (finite-population correction) plus random day-to-day
+        logging error of c = 10 % of the mean m (judgment), with
+        s_true^2 = max(s^2 - (c m)^2, 0) the spread of the true intakes.
+    """
+    x = np.asarray(logged_kcal, dtype=float)
+    n = x.size
+    m = float(x.mean())
+    s2 = float(x.var(ddof=1))
+    log_var = (INTAKE_LOG_NOISE_FRACTION * m) ** 2
+    s2_true = max(s2 - log_var, 0.0)
+    fpc = max(1.0 - n / max(days, n), 0.0)
+    return math.sqrt(s2_true * fpc / n + log_var / n)
+
+
 @dataclass(frozen=True)
 class WindowBalance:
     """Energy balance of one window (a phase from its start to its analysed end)."""
@@ -193,9 +231,12 @@ def window_balance(
 
     Notes
     -----
-    rate = least-squares slope (AR(1)-aware SE); dW = rate x days;
+    rate = tissue slope (AR(1)-aware SE); dW = rate x days;
     rho = (rhoF dF + rhoL dL)/dW from the Hall/Forbes partition at F (Hall 2008);
-    deficit = -rho rate; TDEE = mean intake + deficit.
+    deficit = -(rho rate + rhoG shift/days), where shift is the fitted
+    glycogen-and-water shift inside the window (1052 kcal/kg) when the rate
+    comes from :func:`reportgen.science.trend.segment_rate`; TDEE = mean intake +
+    deficit.
     Var(deficit) = rho^2 SE(rate)^2 + rate^2 s_rho^2 with s_rho half the spread of
     rho over F +/- SE(F) (judgment: the notes' bracket [Hall rho, 7700] would assume
     pure adipose loss, which Hall 2008 shows is wrong for F < 30 kg);
@@ -208,7 +249,7 @@ def window_balance(
     logged = intake[np.isfinite(intake)]
     intake_days = int(logged.size)
     mean_i = float(logged.mean()) if intake_days else None
-    se_i = float(logged.std(ddof=1) / math.sqrt(intake_days)) if intake_days > 1 else None
+    se_i = intake_mean_se_kcal(logged, days) if intake_days > 1 else None
 
     def empty(reason: str) -> WindowBalance:
         return WindowBalance(
@@ -252,8 +293,15 @@ def window_balance(
         rho_lo, rho_hi = min(r_a, r_b), max(r_a, r_b)
         d_fat, d_lean = partition_weight_change_hall(fat_start_kg, change)
     s_rho = (rho_hi - rho_lo) / 2.0
-    deficit = -rho * rate.rate_kg_per_day
-    var_def = (rho * rate.se_kg_per_day) ** 2 + (rate.rate_kg_per_day * s_rho) ** 2
+    # energy of the glycogen-and-water shift inside the window (0 unless fitted)
+    g = GLYCOGEN_WATER_KCAL_PER_KG / days
+    deficit = -(rho * rate.rate_kg_per_day + g * rate.shift_kg)
+    var_def = (
+        (rho * rate.se_kg_per_day) ** 2
+        + (g * rate.shift_se_kg) ** 2
+        + 2 * rho * g * rate.rate_shift_cov
+        + (rate.rate_kg_per_day * s_rho) ** 2
+    )
     sd_def = math.sqrt(var_def)
     deficit_est = Estimate(deficit, deficit - Z80 * sd_def, deficit + Z80 * sd_def)
     if mean_i is None or intake_days < MIN_INTAKE_DAYS or se_i is None:
@@ -324,6 +372,7 @@ def expenditure_path(
     noise_sd_kg: float,
     robust_weights: FloatArray | None = None,
     rw_sd_kcal: float = EXPENDITURE_RW_SD_KCAL,
+    shift_days: tuple[int, ...] = (),
 ) -> ExpenditurePath:
     """Daily expenditure by Kalman filtering and RTS smoothing of weight with intake as input.
 
@@ -341,6 +390,10 @@ def expenditure_path(
         Weigh-in precision weights from the robust trend fit.
     rw_sd_kcal : float
         SD of the daily change in expenditure (random walk). [kcal/day]
+    shift_days : tuple of int
+        Indices where the intake plan changed (phase starts): over the following
+        days the weight may shift by glycogen and water, N(0, 1 kg^2) in all, spread
+        with a 4-day time constant, without that being read as expenditure.
 
     Returns
     -------
@@ -384,6 +437,13 @@ def expenditure_path(
         else:
             u[t] = mean_i / rho
             qw[t] = (sd_i / rho) ** 2 + WEIGHT_PROCESS_SD_KG**2
+    for k in shift_days:
+        for d in range(max(k, 0), min(k + 5 * int(SHIFT_TAU_DAYS), n)):
+            qw[d] += (
+                SHIFT_PRIOR_SD_KG**2
+                * (1 - math.exp(-1 / SHIFT_TAU_DAYS))
+                * math.exp(-(d - k) / SHIFT_TAU_DAYS)
+            )
     inv = 1.0 / rho
     for t in range(n):
         yt = w[t]

@@ -5,6 +5,7 @@ its own adaptive-thermogenesis strength, living through a maintenance phase and
 one or two deficit phases of 8-16 weeks (optionally with a maintenance break
 between).  What the client *logs* is corrupted the way real logs are:
 
+* body mass includes a fast glycogen-and-water shift when the intake changes;
 * weigh-ins = body mass + water swings (AR(1)) + a weekly rhythm (heaviest on
   Sunday/Monday, Orsama et al. 2014) + scale noise + occasional spikes,
   rounded to 0.1 kg, with 5-35 % of days missing;
@@ -36,6 +37,12 @@ from reportgen.io.model import (
 )
 from reportgen.science.hall import HALL_2011, HallBaseline, hall_baseline, simulate_hall
 from reportgen.science.skinfolds import JP3_MEN, JPW3_WOMEN
+
+GLYCOGEN_KG_PER_KCAL = 0.0018  # glycogen+water shift per kcal/day of cut (invented, judgment)
+GLYCOGEN_TAU_DAYS = 4.0  # (invented, judgment)
+# Glycogen 17.6 MJ/kg (Hall 2008, published) stored with about 3 g water per g (from
+# memory): 4206 kcal/kg / 4 = 1052 kcal per kg of glycogen-with-water.
+GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / 4.184 / 4
 
 
 @dataclass(frozen=True)
@@ -95,6 +102,7 @@ def simulate_client(
     deficit_kcal: float | None = None,
     beta_at: float | None = None,
     two_deficits: bool | None = None,
+    glycogen: bool = True,
 ) -> SimulatedClient:
     """One simulated client with known truth (see the module docstring).
 
@@ -107,6 +115,8 @@ def simulate_client(
         Last day of the report month; the log ends there.
     sex, under_report, missing_weight, missing_intake, deficit_kcal, beta_at, two_deficits
         Fix a property instead of drawing it.
+    glycogen : bool, default True
+        Include the fast glycogen-and-water shift at intake changes.
 
     Returns
     -------
@@ -175,7 +185,18 @@ def simulate_client(
         off[t] = o
     lean0 = weight0 - fat0
     path = simulate_hall(fat0, lean0, intake_true, base, 0.0, off)
-    bw = path.weight_kg[:-1]
+    # Glycogen with its water: a fast shift when the planned intake changes (about 0.9 kg
+    # for a 500 kcal/day cut, time constant 4 days; invented magnitudes in the range the
+    # science notes §4.4 describe, 1-2 kg early in a diet).
+    glyco_target = np.where(target < ei0, -GLYCOGEN_KG_PER_KCAL * (ei0 - target), 0.0)
+    glyco = np.empty(n_days + 1)
+    g = 0.0 if glycogen else math.nan
+    for t in range(n_days):
+        glyco[t] = g if glycogen else 0.0
+        if glycogen:
+            g += (glyco_target[t] - g) / GLYCOGEN_TAU_DAYS
+    glyco[n_days] = g if glycogen else 0.0
+    bw = path.weight_kg[:-1] + glyco[:-1]
     fat = path.fat_kg[:-1]
     ee = path.expenditure_kcal
     at = path.at_kcal[:-1]
@@ -282,7 +303,13 @@ def simulate_client(
         d_f = path.fat_kg[ei + 1] - path.fat_kg[si]
         d_l = path.lean_kg[ei + 1] - path.lean_kg[si]
         days = ei - si + 1
-        deficit = -(params.rho_fat_kcal_per_kg * d_f + params.rho_lean_kcal_per_kg * d_l) / days
+        d_g = glyco[ei + 1] - glyco[si]
+        stored = (
+            params.rho_fat_kcal_per_kg * d_f
+            + params.rho_lean_kcal_per_kg * d_l
+            + GLYCOGEN_WATER_KCAL_PER_KG * d_g
+        )
+        deficit = -stored / days
         tdee = float(ee[si : ei + 1].mean())
         adapt = float(at[si : ei + 1].mean() + off[si : ei + 1].mean()) - off_base
         truths.append(
