@@ -59,8 +59,12 @@ def test_sample_month_batch_then_send(
         assert "skipped-no-report" in sent.output  # c007, listed but not counted
 
         # the batch again: byte-identical PDFs, so nothing goes out twice
+        before = (month_dir / "manifest.json").read_bytes()
         again = _cli("batch", sample_book, *BATCH, "--out", out, "--config", config)
         assert again.exit_code == 1
+        assert (month_dir / "manifest.json").read_bytes() == before, (
+            "the batch rerun wrote different PDF bytes; send treats those as new versions"
+        )
         rerun = _cli("send", month_dir, "--practitioner-copies", "--encrypt")
         assert rerun.exit_code == 0 and "already-sent" in rerun.output
 
