@@ -487,3 +487,15 @@ def test_blank_rows_are_skipped_and_row_numbers_stay_true(tmp_path: Path) -> Non
     find_problem(
         read_book_client(book).problems, "bad-number", match=r'"x1" is not a number', row=7
     )
+
+
+def test_problems_in_rows_after_the_month_belong_to_a_later_report(tmp_path: Path) -> None:
+    rows = daily_rows(start=dt.date(2026, 10, 1), days=45)  # to 2026-11-14
+    rows[40][1] = "81,6kg"  # 2026-11-09
+    rows.append(["2026-12-20", "x", 1900, 8000])  # future and unreadable
+    october = read_log(tmp_path, rows, "csv", month_end=dt.date(2026, 10, 31))
+    assert october.ok
+    find_problem(october.problems, "future-date", match=r"2026-12-20 is after today", row=47)
+    assert [p.code for p in october.problems] == ["future-date"]
+    november = read_log(tmp_path / "n", rows, "csv", month_end=dt.date(2026, 11, 30))
+    find_problem(november.problems, "bad-number", match=r'"81,6kg" is not a number', row=41)

@@ -125,3 +125,13 @@ def test_skinfolds_in_both_places(tmp_path: Path) -> None:
         "two-sources",
         match=r"skinfolds are in both logs/c001.xlsx \(sheet skinfolds\) and skinfolds/c001.csv",
     )
+
+
+def test_skinfold_rows_after_the_month_are_not_judged(tmp_path: Path) -> None:
+    text = "date,triceps\n2026-10-01,12\n2026-11-20,95\n2026-12-24,12\n"
+    book = write_book(tmp_path / "book", skinfolds={"c001.csv": text})
+    rec = read_book_client(book, month_end=dt.date(2026, 10, 31))
+    assert rec.ok
+    assert [s.date for s in rec.skinfolds] == [dt.date(2026, 10, 1)]
+    find_problem(rec.problems, "future-date", match=r"date 2026-12-24 is after today", row=4)
+    assert len(rec.problems) == 1

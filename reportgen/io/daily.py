@@ -199,6 +199,11 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
             None,
         )
     today_o, end_o = today.toordinal(), month_end.toordinal()
+    # Rows after the month end belong to a later report and future rows are ignored: their
+    # cell problems are not this report's (a future row gets its one warning below).
+    cut_rows = {rows[i] for i in np.flatnonzero((ords > end_o) | (ords > today_o))}
+    if cut_rows:
+        problems = [p for p in problems if p.row not in cut_rows]
     for i in np.flatnonzero(ords > today_o):
         problems.append(
             _warn(

@@ -10,7 +10,7 @@ from reportgen.io import limits
 from reportgen.io.cells import CellError, check_range, parse_date, parse_number
 from reportgen.io.columns import missing_column
 from reportgen.io.model import SKINFOLD_SITES, Problem, SkinfoldSession
-from reportgen.io.tables import Table
+from reportgen.io.tables import Table, cell_text
 
 #: Repeated readings at one site may differ by at most 5 % (ISAK protocol: take a third
 #: reading when the first two differ by more than 5 %, then use the mean of two or the median
@@ -96,6 +96,22 @@ def parse_skinfolds(
         except CellError as e:
             err(e, date_raw, cells[date_pos])
             continue
+        if day is not None and day > today:
+            problems.append(
+                Problem(
+                    "warning",
+                    "future-date",
+                    f"{date_raw} {day} is after today ({today}); the row is ignored",
+                    file=table.file,
+                    row=row,
+                    column=date_raw,
+                    value=cell_text(cells[date_pos]),
+                    client_id=client_id,
+                )
+            )
+            continue
+        if day is not None and day > month_end:
+            continue  # a later report's session: not read, not judged
         values: dict[str, float] = {}
         for site, pos in site_pos.items():
             raw = table.raw_columns[pos]
@@ -114,20 +130,7 @@ def parse_skinfolds(
                     None,
                 )
             continue
-        if day > today:
-            problems.append(
-                Problem(
-                    "warning",
-                    "future-date",
-                    f"{date_raw} {day} is after today ({today}); the row is ignored",
-                    file=table.file,
-                    row=row,
-                    column=date_raw,
-                    client_id=client_id,
-                )
-            )
-            continue
-        if day > month_end or not values:
+        if not values:
             continue
         session = readings.setdefault(day, {})
         first_row.setdefault(day, row)
