@@ -86,10 +86,12 @@ def test_encrypted_pdf_opens_with_the_password_only(tmp_path: Path) -> None:
         assert pdf.encryption.R == 6  # AES-256, PDF 2.0 / 1.7 extension level 8
         assert pdf.encryption.bits == 256
         assert pdf.encryption.stream_method.name == "aesv3"
+
+
+@pytest.mark.skipif(shutil.which("qpdf") is None, reason="qpdf is not on PATH")
+def test_encrypted_pdf_passes_qpdf_check(tmp_path: Path) -> None:
     path = tmp_path / "enc.pdf"
-    path.write_bytes(enc)
-    if shutil.which("qpdf") is None:
-        pytest.skip("qpdf not on PATH: the qpdf --check part is skipped")
+    path.write_bytes(encrypt_pdf(make_pdf("report c001 2026-11", pages=2), PASSWORD))
     out = subprocess.run(
         ["qpdf", "--check", f"--password={PASSWORD}", str(path)],
         capture_output=True,
