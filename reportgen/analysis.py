@@ -46,7 +46,6 @@ from reportgen.science.trend import (
     fit_noise_model,
     local_linear_trend,
     segment_rate,
-    window_rate,
 )
 
 MIN_ANALYSIS_DAYS = bal.MIN_DAYS
@@ -443,8 +442,14 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
         )
         if i_m >= last:
             month_change = Estimate.missing("no-data-in-month")
+        # Current rate: the last 4 weeks, but not before the current phase started
+        # unless that leaves fewer than 14 days (then the fit spans the phase change).
         lo = max(log.n_days - RECENT_DAYS, 0)
-        wr = window_rate(weights_used[lo:], fit.weights[lo:], noise=noise)
+        starts = [i0 for _, i0, i1, _ in raw_windows if i1 == last]
+        if starts and starts[-1] > lo:
+            lo = min(starts[-1], max(log.n_days - MIN_ANALYSIS_DAYS, 0))
+        all_knots = tuple(sorted({i0 for _, i0, _, _ in raw_windows}))
+        wr = segment_rate(weights_used, lo, last, all_knots, fit.weights, noise, edge_knots=False)
         if wr is None or log.n_days - lo < MIN_ANALYSIS_DAYS:
             weekly_rate = Estimate.missing("too-few-days")
         else:

@@ -156,3 +156,30 @@ def test_expenditure_path_handles_missing_intake_and_weight() -> None:
     assert np.all(np.isfinite(path.tdee_kcal))
     # truth: 2100 + 0.08 x 7500 = 2700 kcal/day; the mean over the log is close
     assert float(np.mean(path.tdee_kcal[14:])) == pytest.approx(2700.0, abs=120.0)
+
+
+def test_glycogen_shift_energy_enters_the_deficit() -> None:
+    """deficit = -(rho rate + 1052 shift / days); 1052 kcal/kg = 17.6 MJ/kg glycogen (Hall
+    2008, published) held with about 3 g water per g (from memory)."""
+    from reportgen.science.balance import GLYCOGEN_WATER_KCAL_PER_KG
+    from reportgen.science.trend import WindowRate
+
+    assert pytest.approx(17.6e3 / 4.184 / 4, rel=1e-12) == GLYCOGEN_WATER_KCAL_PER_KG
+    rate = WindowRate(-0.05, 0.0, 0.0, 0.0, 0.0, 28, 28, shift_kg=-0.8, shift_se_kg=0.0)
+    b = window_balance(_line(28, -0.05), np.full(28, 2000.0), 25.0, 0.0, rate=rate)
+    rho = b.energy_density_kcal_per_kg
+    assert rho is not None
+    expected = -(rho * -0.05 + GLYCOGEN_WATER_KCAL_PER_KG * -0.8 / 28)
+    assert b.deficit_kcal.value == pytest.approx(expected, rel=1e-12)
+
+
+def test_intake_mean_se() -> None:
+    """All days logged at a constant intake: only the 10 % logging noise is left."""
+    from reportgen.science.balance import intake_mean_se_kcal
+
+    x = np.full(28, 2000.0)
+    assert intake_mean_se_kcal(x, 28) == pytest.approx(0.1 * 2000 / math.sqrt(28), rel=1e-12)
+    rng = np.random.default_rng(1)
+    y = 2000 + rng.normal(0, 400, 20)
+    # fewer logged days of a varying intake: larger than the logging part alone
+    assert intake_mean_se_kcal(y, 40) > 0.1 * float(y.mean()) / math.sqrt(20)

@@ -216,3 +216,32 @@ def test_segment_rate_uses_continuity_across_a_knot() -> None:
     assert first is not None and second is not None
     assert first.rate_kg_per_day == pytest.approx(-0.1, abs=1e-9)
     assert second.rate_kg_per_day == pytest.approx(-0.02, abs=1e-9)
+
+
+def test_segment_rate_separates_a_glycogen_shift_from_tissue_loss() -> None:
+    """Noise-free: tissue -0.1 then -0.02 kg/day, plus a -1 kg glycogen/water step at day 40.
+
+    The step follows the model's 4-day exponential approach (judgment, see
+    SHIFT_TAU_DAYS); the fit returns the tissue slope and the shift separately.
+    """
+    t = np.arange(80.0)
+    tissue = np.where(t < 40, 90 - 0.1 * t, 86 - 0.02 * (t - 40))
+    shift = np.where(t >= 40, -1.0 * (1 - np.exp(-(t - 40) / 4.0)), 0.0)
+    w = tissue + shift
+    second = segment_rate(w, 40, 79, knots=(40,))
+    assert second is not None
+    assert second.rate_kg_per_day == pytest.approx(-0.02, abs=1e-6)
+    assert second.shift_kg == pytest.approx(-1.0 * (1 - math.exp(-10.0)), abs=1e-4)
+    first = segment_rate(w, 0, 39, knots=(40,))
+    assert first is not None and first.rate_kg_per_day == pytest.approx(-0.1, abs=1e-6)
+    assert first.shift_kg == pytest.approx(0.0, abs=1e-9)
+
+
+def test_segment_rate_mean_rate_across_an_interior_knot() -> None:
+    """A window that is not a phase (edge_knots=False) gets the mean rate across the kink."""
+    t = np.arange(80.0)
+    w = np.where(t < 40, 90 - 0.1 * t, 86 - 0.02 * (t - 40))
+    r = segment_rate(w, 30, 59, knots=(40,), shift_prior_sd_kg=None, edge_knots=False)
+    assert r is not None
+    # (w(60) - w(30)) / 30 = (85.6 - 87.0) / 30, hand-calculated
+    assert r.rate_kg_per_day == pytest.approx((85.6 - 87.0) / 30, abs=1e-9)

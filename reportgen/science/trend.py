@@ -718,6 +718,7 @@ def segment_rate(
     noise: NoiseModel | None = None,
     margin_days: int = SEGMENT_MARGIN_DAYS,
     shift_prior_sd_kg: float | None = SHIFT_PRIOR_SD_KG,
+    edge_knots: bool = True,
 ) -> WindowRate | None:
     """Rate over a window from a piecewise-linear GLS fit that spans its edges.
 
@@ -729,7 +730,8 @@ def segment_rate(
         First and last index of the window (inclusive).
     knots : tuple of int
         Indices where the trend may change slope (phase starts); ``i0`` and
-        ``i1 + 1`` are always knots.
+        ``i1 + 1`` are knots too unless ``edge_knots`` is False (a window that is
+        not a phase, e.g. the last four weeks).
     weights : numpy.ndarray, optional
         Robust precision weights of the weigh-ins.
     noise : NoiseModel, optional
@@ -775,7 +777,8 @@ def segment_rate(
     t = np.nonzero(obs)[0].astype(float) + lo
     y = seg[obs]
     wt = np.ones(t.size) if weights is None else np.asarray(weights[lo : hi + 1])[obs]
-    kn = sorted({k for k in (*knots, i0, i1 + 1) if t[0] < k <= t[-1]})
+    edges = (i0, i1 + 1) if edge_knots else ()
+    kn = sorted({k for k in (*knots, *edges) if t[0] < k <= t[-1]})
     cols = [np.ones_like(t), t - t[0]] + [np.maximum(t - k, 0.0) for k in kn]
     n_lin = len(cols)
     if shift_prior_sd_kg is not None:
