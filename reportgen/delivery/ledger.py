@@ -1,9 +1,11 @@
 """The delivery ledger: ``OUT/<YYYY-MM>/deliveries.jsonl``, append-only.
 
-Every SMTP try writes an ``attempt`` line (with its Message-ID) before the
-message is handed to the server and one outcome line after it (``sent``,
-``refused`` or ``failed-temporary``); each line is flushed and ``os.fsync``-ed
-before the next step.  Messages that are not tried get one ``skipped-...`` line.
+Every SMTP try writes one outcome line (``sent``, ``refused`` or
+``failed-temporary``).  When the try gets as far as handing the message over
+(connected, signed in, recipient accepted), an ``attempt`` line with its
+Message-ID is written just before the transfer.  Each line is flushed and
+``os.fsync``-ed before the next step.  Messages that are not tried get one
+``skipped-...`` line.
 
 A delivery is identified by (client, kind, address, sha256 of the source PDF).
 For each such key the ledger says one of:

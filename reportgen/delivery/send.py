@@ -272,12 +272,16 @@ def _send_all(
             if attempt:
                 delay = min(options.retry_delay_s * 2 ** (attempt - 1), options.retry_max_delay_s)
                 time.sleep(delay)
+            # The attempt line is written just before the message is handed over (after
+            # connecting, TLS, login and an accepted recipient), so only a stop during
+            # the transfer itself leaves a message whose fate is unknown.
+            tried = attempt + 1
+
+            def mark_attempt(tried: int = tried, base: dict[str, object] = base) -> None:
+                ledger.append({**base, "time": utc_now(), "try": tried, "result": "attempt"})
+
             try:
-                # Connect (TLS, login) before the attempt line: a crash while connecting
-                # must not leave the message looking as if the server might have it.
-                not_ready = conn.connect()
-                ledger.append({**base, "time": utc_now(), "try": attempt + 1, "result": "attempt"})
-                result = not_ready or conn.send(msg, sender.address, item.address)
+                result = conn.send(msg, sender.address, item.address, before_data=mark_attempt)
             except FatalSMTPError as exc:
                 # Nothing reached the server (login and TLS come before MAIL FROM).
                 result = SendResult("failed-temporary", str(exc))

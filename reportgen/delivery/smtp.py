@@ -11,6 +11,7 @@ from __future__ import annotations
 import smtplib
 import socket
 import ssl
+from collections.abc import Callable
 from dataclasses import dataclass
 from email.message import EmailMessage
 from typing import Literal
@@ -187,8 +188,19 @@ class SMTPConnection:
             return self._error(exc)
         return None
 
-    def send(self, msg: EmailMessage, from_addr: str, to_addr: str) -> SendResult:
-        """One try at one message; never raises for a per-message problem."""
+    def send(
+        self,
+        msg: EmailMessage,
+        from_addr: str,
+        to_addr: str,
+        before_data: Callable[[], None] | None = None,
+    ) -> SendResult:
+        """One try at one message; never raises for a per-message problem.
+
+        ``before_data`` runs once the server has accepted the recipient and just
+        before the message itself is handed over: the only point after which the
+        server may have the message without us having heard its answer.
+        """
         failed = self.connect()
         if failed is not None:
             return failed
@@ -202,6 +214,8 @@ class SMTPConnection:
             if code not in (250, 251):
                 return self._fail(code, resp)
             data = msg.as_bytes(policy=WIRE_POLICY)
+            if before_data is not None:
+                before_data()
             code, resp = conn.data(data)
             if code != 250:
                 return self._fail(code, resp)
