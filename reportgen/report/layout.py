@@ -133,6 +133,7 @@ def practice_header(config: Config, theme: Theme, width: float) -> list[Flowable
     t = Table(
         [[left or "", logo or ""]],
         colWidths=[width - LOGO_MAX_W - 4 * mm, LOGO_MAX_W + 4 * mm],
+        hAlign="LEFT",
         style=TableStyle(
             [
                 ("FONTNAME", (0, 0), (-1, -1), T.FONT),
@@ -207,7 +208,9 @@ def cards(
         for c in range(1, 2 * columns - 1, 2):
             style.append(("LEFTPADDING", (c, r), (c, r), 0))
             style.append(("RIGHTPADDING", (c, r), (c, r), 0))
-    t = Table(data, colWidths=widths, style=TableStyle(style), spaceBefore=0, spaceAfter=0)
+    t = Table(
+        data, colWidths=widths, style=TableStyle(style), spaceBefore=0, spaceAfter=0, hAlign="LEFT"
+    )
     # rows separated by a gap: add space between rows via row heights is not possible with
     # auto heights, so split into one table per row
     return t
@@ -241,6 +244,7 @@ def data_table(
     right_to: int | None = None,
     bold_first: bool = False,
     repeat: int = 1,
+    dense: bool = False,
 ) -> Table:
     """A striped table of Paragraph cells; ``header`` is markup, rows are already escaped.
 
@@ -269,8 +273,8 @@ def data_table(
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("LEFTPADDING", (0, 0), (-1, -1), 2.0),
         ("RIGHTPADDING", (0, 0), (-1, -1), 2.0),
-        ("TOPPADDING", (0, 0), (-1, -1), 2.2),
-        ("BOTTOMPADDING", (0, 0), (-1, -1), 2.6),
+        ("TOPPADDING", (0, 0), (-1, -1), 1.0 if dense else 2.2),
+        ("BOTTOMPADDING", (0, 0), (-1, -1), 1.5 if dense else 2.6),
         ("LINEBELOW", (0, 0), (-1, 0), 0.8, theme.accent),
         ("VALIGN", (0, 0), (-1, 0), "BOTTOM"),
     ]
@@ -278,7 +282,13 @@ def data_table(
         if r % 2 == 0:
             style.append(("BACKGROUND", (0, r), (-1, r), colors.HexColor(T.PANEL)))
     style.append(("LINEBELOW", (0, len(body)), (-1, len(body)), 0.5, colors.HexColor(T.RULE)))
-    return Table([head, *body], colWidths=list(widths), repeatRows=repeat, style=TableStyle(style))
+    return Table(
+        [head, *body],
+        colWidths=list(widths),
+        repeatRows=repeat,
+        style=TableStyle(style),
+        hAlign="LEFT",
+    )
 
 
 def chart_block(

@@ -13,7 +13,7 @@ from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate
 
 from . import theme as T
-from .layout import data_table, practice_header
+from .layout import data_table
 from .pdfbuild import Document, build, mark_heading
 from .theme import Theme, page_size, theme_for
 from .units import DASH, Units
@@ -97,7 +97,9 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
         values = sorted(a.resting_kcal.items(), key=lambda kv: kv[1])
         lo, hi = values[0][1], values[-1][1]
         span = u.e(lo) if len(values) == 1 else f"{u.e(lo, unit=False)}{chr(0x2013)}{u.e(hi)}"
-        detail = "; ".join(f"{_method_name(a, c)} {u.e(k, unit=False)}" for c, k in values)
+        detail = "; ".join(
+            f"{_short_name(_method_name(a, c))} {u.e(k, unit=False)}" for c, k in values
+        )
         rows.append(("resting", span, "", detail))
     if a.bodycomp:
         last = a.bodycomp[-1]
@@ -170,6 +172,11 @@ def _first_day(a: ClientAnalysis) -> dt.date | None:
     return dt.date.fromisoformat(str(a.log.dates[0].astype("datetime64[D]")))
 
 
+def _short_name(name: str) -> str:
+    """'Harris-Benedict revised by Roza & Shizgal 1984, standard...' -> up to the first comma."""
+    return name.split(",")[0].split(" (")[0].strip()
+
+
 def _method_name(a: ClientAnalysis, code: str) -> str:
     for m in a.methods:
         if m.code == code:
@@ -178,19 +185,22 @@ def _method_name(a: ClientAnalysis, code: str) -> str:
 
 
 def _ident_table(sv: SummaryView, words: Wording, theme: Theme, width: float) -> Table:
+    """Identification in three label/value column pairs."""
     L = words.labels["ident"]
     cells = [
         [Paragraph(esc(L[k]), theme["cell_head"]), Paragraph(esc(v), theme["cell"])]
         for k, v in sv.ident
     ]
-    half = (len(cells) + 1) // 2
-    left, right = cells[:half], cells[half:]
-    right += [["", ""]] * (half - len(right))
-    data = [lft + rgt for lft, rgt in zip(left, right, strict=True)]
-    w = width / 2
+    per_col = (len(cells) + 2) // 3
+    cols = [cells[i * per_col : (i + 1) * per_col] for i in range(3)]
+    for col in cols:
+        col += [["", ""]] * (per_col - len(col))
+    data = [[cell for col in cols for cell in col[r]] for r in range(per_col)]
+    w = width / 3
     return Table(
         data,
-        colWidths=[0.3 * w, 0.7 * w, 0.3 * w, 0.7 * w],
+        colWidths=[0.3 * w, 0.7 * w] * 3,
+        hAlign="LEFT",
         style=TableStyle(
             [
                 ("FONTNAME", (0, 0), (-1, -1), T.FONT),
@@ -206,30 +216,32 @@ def _ident_table(sv: SummaryView, words: Wording, theme: Theme, width: float) ->
 
 
 def _signature(words: Wording, theme: Theme, width: float) -> Table:
+    """The practitioner's note box on the left, name/registration/signature/date lines right."""
     L = words.labels
     sign = L["sign"]
-    data = [
-        [Paragraph(esc(L["note"]), theme["cell_head"]), "", "", ""],
-        ["", "", "", ""],
-        [Paragraph(esc(s), theme["cell_head"]) for s in sign],
-        ["", "", "", ""],
+    rows: list[list[object]] = [[Paragraph(esc(L["note"]), theme["cell_head"]), ""]]
+    for label in sign:
+        rows.append(["", Paragraph(esc(label), theme["cell_head"])])
+    heights = [5 * mm] + [6.5 * mm] * len(sign)
+    style = [
+        ("FONTNAME", (0, 0), (-1, -1), T.FONT),
+        ("SPAN", (0, 0), (0, -1)),
+        ("BOX", (0, 0), (0, -1), 0.6, colors.HexColor(T.MUTED)),
+        ("VALIGN", (0, 0), (-1, -1), "BOTTOM"),
+        ("VALIGN", (0, 0), (0, -1), "TOP"),
+        ("LEFTPADDING", (0, 0), (-1, -1), 3),
+        ("TOPPADDING", (0, 0), (-1, -1), 2),
+        ("BOTTOMPADDING", (0, 0), (-1, -1), 1),
     ]
+    for r in range(1, len(rows)):
+        style.append(("LINEABOVE", (1, r), (1, r), 0.6, colors.HexColor(T.MUTED)))
+    gap = 4 * mm
     return Table(
-        data,
-        colWidths=[width * 0.3, width * 0.22, width * 0.28, width * 0.2],
-        rowHeights=[5 * mm, 20 * mm, 4 * mm, 8 * mm],
-        style=TableStyle(
-            [
-                ("FONTNAME", (0, 0), (-1, -1), T.FONT),
-                ("SPAN", (0, 0), (-1, 0)),
-                ("SPAN", (0, 1), (-1, 1)),
-                ("BOX", (0, 0), (-1, 1), 0.6, colors.HexColor(T.MUTED)),
-                ("LINEBELOW", (0, 3), (-1, 3), 0.6, colors.HexColor(T.MUTED)),
-                ("VALIGN", (0, 0), (-1, -1), "TOP"),
-                ("LEFTPADDING", (0, 0), (-1, -1), 3),
-                ("TOPPADDING", (0, 0), (-1, -1), 2),
-            ]
-        ),
+        rows,
+        colWidths=[width * 0.62 - gap, width * 0.38 + gap],
+        rowHeights=heights,
+        hAlign="LEFT",
+        style=TableStyle(style),
     )
 
 
@@ -243,9 +255,9 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
     width = pagesize[0] - 2 * margin
     L = words.labels
     body: list[Flowable] = []
-    body += practice_header(config, theme, width)[:1]
     head = blocks(words.text("header", sv), theme)
     if head and isinstance(head[0], Paragraph):
+        head[0].style = theme["h1"]  # a compact title: this page is dense by design
         mark_heading(head[0], 0, L["document"])
     body += head
     body.append(Spacer(1, 2 * mm))
@@ -261,10 +273,11 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
         data_table(
             [esc(c) for c in L["cols"]],
             rows,
-            [0.27 * width, 0.17 * width, 0.19 * width, 0.37 * width],
+            [0.23 * width, 0.18 * width, 0.17 * width, 0.42 * width],
             theme,
             right_from=1,
             right_to=3,
+            dense=True,
         )
     )
     body.append(Spacer(1, 3 * mm))
@@ -295,6 +308,7 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
                 theme,
                 right_from=3,
                 right_to=10,
+                dense=True,
             )
         )
         body.append(Spacer(1, 3 * mm))
@@ -318,13 +332,21 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
         refs = " ".join(
             f"[{n}] " + words.text("reference_line", m) for n, m in enumerate(sv.methods, 1)
         )
-        body.append(Paragraph(f"<b>{esc(L['references'])}.</b> {refs}", theme["small"]))
-    body.append(Paragraph(words.text("footnote", sv), theme["small"]))
+        body.append(Paragraph(f"<b>{esc(L['references'])}.</b> {refs}", theme["fine"]))
+    body.append(Paragraph(words.text("footnote", sv), theme["fine"]))
     body.append(Spacer(1, 2 * mm))
     sig = _signature(words, theme, width)
     frame_h = pagesize[1] - 2 * margin
     story: list[Flowable] = [
-        KeepInFrame(width, frame_h - sig.wrap(width, frame_h)[1] - 4 * mm, body, mode="shrink"),
+        # Shrinks only as a last resort (very many phases or methods); anchored top left.
+        KeepInFrame(
+            width,
+            frame_h - sig.wrap(width, frame_h)[1] - 4 * mm,
+            body,
+            mode="shrink",
+            hAlign="LEFT",
+            vAlign="TOP",
+        ),
         Spacer(1, 2 * mm),
         sig,
     ]

@@ -107,6 +107,7 @@ def _styles(accent: colors.Color) -> dict[str, ParagraphStyle]:
         "body": base,
         "lead": derive("lead", fontSize=SIZE_LEAD, leading=SIZE_LEAD * 1.35, spaceAfter=5),
         "small": derive("small", fontSize=SIZE_SMALL, leading=SIZE_SMALL * 1.3, textColor=muted),
+        "fine": derive("fine", fontSize=6.2, leading=6.2 * 1.28, textColor=muted, spaceAfter=1),
         "caption": derive(
             "caption",
             fontSize=SIZE_SMALL,
@@ -115,7 +116,9 @@ def _styles(accent: colors.Color) -> dict[str, ParagraphStyle]:
             spaceBefore=1,
             spaceAfter=6,
         ),
-        "bullet": derive("bullet", leftIndent=9, bulletIndent=1, spaceAfter=2),
+        "bullet": derive(
+            "bullet", leftIndent=12, bulletIndent=1.5, bulletFontSize=SIZE_BODY, spaceAfter=2
+        ),
         "title": derive(
             "title",
             fontName=FONT_BOLD,
