@@ -540,7 +540,9 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
     if fit is not None and not special and log.n_days >= MIN_ANALYSIS_DAYS and cur_w is not None:
         f_now = _fat_at(comp, cur_w)
         rho = energy_density_kcal_per_kg(f_now) if f_now else bal.KCAL_PER_KG_SPREADSHEET
-        if np.isfinite(log.intake_kcal).sum() >= bal.MIN_INTAKE_DAYS:
+        if np.isfinite(log.intake_kcal).sum() < bal.MIN_INTAKE_DAYS:
+            notes.append("expenditure-too-few-intake-days")
+        else:
             starts = tuple(i0 for _, i0, _, _ in raw_windows if i0 > 0)
             path = bal.expenditure_path(
                 weights_used,

@@ -18,6 +18,43 @@ from reportgen.io.model import Client, DailyLog, DateArray, FloatArray, Problem
 
 FlagSeverity = Literal["info", "caution", "urgent"]
 
+# Stable codes set by ``reportgen.analysis`` (templates word them; tests check that no
+# other code appears).
+# Estimate.reason when a value is missing:
+REASON_CODES: tuple[str, ...] = (
+    "too-few-days",  # window shorter than 14 days (no expenditure from fewer)
+    "too-few-weigh-ins",  # fewer than 8 weigh-ins in the window, or no trend at all
+    "too-few-intake-days",  # fewer than 7 logged intake days in the window
+    "special-handling",  # minor or pregnant client: no deficit or adaptation analysis
+    "no-resting-equation",  # no baseline and no sex/age/height for a resting equation
+    "no-observed",  # adaptation without an observed TDEE
+    "no-expected",  # adaptation without an expected TDEE
+    "no-data-in-month",  # no trend data inside the report month
+    "not-estimable",  # the computation gave no finite value
+)
+# PhaseResult.status:
+PHASE_STATUSES: tuple[str, ...] = ("ok", "running", "too-few-days", "special-handling")
+# PhaseResult.notes:
+PHASE_NOTE_CODES: tuple[str, ...] = (
+    "early-phase-water-glycogen",  # under 21 days: glycogen and water dominate
+    "expected-lower-confidence",  # expected TDEE from a resting equation x activity factor
+    "baseline-first-weeks",  # baseline from the first weeks of data, not a maintenance phase
+    "implausible-adaptation",  # |adaptation| > 20 % of expected: more likely logging/data
+    "composition-change-from-skinfolds",  # fat/lean change from two skinfold sessions
+    "composition-change-from-forbes",  # fat/lean change from the Forbes partition
+)
+# ClientAnalysis.notes ("skinfold-session-unusable" carries ":<ISO date>"):
+ANALYSIS_NOTE_CODES: tuple[str, ...] = (
+    "too-few-weigh-ins",
+    "bodycomp-needs-sex-age-weight",
+    "skinfold-session-unusable",
+    "bodyfat-fallback-unavailable",
+    "bodyfat-unknown",
+    "resting-equations-unavailable",
+    "expenditure-too-few-days",
+    "expenditure-too-few-intake-days",
+)
+
 
 @dataclass(frozen=True)
 class Estimate:
@@ -150,7 +187,8 @@ class Projection:
 class Flag:
     """A safety or data flag; wording and advice come from templates by ``code``."""
 
-    code: str  # e.g. "rapid-loss", "low-bmi", "low-intake", "minor", "pregnant", "implausible-adaptation"
+    # e.g. "rapid-loss", "low-bmi", "low-intake", "minor", "pregnant", "implausible-adaptation"
+    code: str
     severity: FlagSeverity
     values: dict[str, float | str] = field(default_factory=dict)
 

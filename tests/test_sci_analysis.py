@@ -15,9 +15,12 @@ import math
 import numpy as np
 import pytest
 from _sci_helpers import short_record, simulated, with_client, with_error
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from reportgen.analysis import analyse_client
 from reportgen.config import AnalysisSettings
+from reportgen.io.model import ClientRecord
 from reportgen.results import ClientAnalysis, Estimate
 
 SETTINGS = AnalysisSettings()
@@ -175,3 +178,110 @@ def test_deterministic() -> None:
     assert a.projection is not None and b.projection is not None
     assert np.array_equal(a.projection.low_kg, b.projection.low_kg)
     assert math.isclose(a.trend.noise_sd_kg, b.trend.noise_sd_kg)  # type: ignore[union-attr]
+
+
+def _odd_record(
+    n: int, weight_frac: float, intake_frac: float, seed: int, n_phases: int
+) -> ClientRecord:
+    import dataclasses as dc
+
+    from reportgen.io.model import DailyLog, Phase
+
+    rng = np.random.default_rng(seed)
+    base = short_record(max(n, 1), start=dt.date(2026, 11, 30) - dt.timedelta(days=max(n, 1) - 1))
+    w = 80 + rng.normal(0, 0.6, base.log.n_days)
+    w[rng.random(base.log.n_days) > weight_frac] = np.nan
+    intake = 2000 + rng.normal(0, 400, base.log.n_days)
+    intake[rng.random(base.log.n_days) > intake_frac] = np.nan
+    log = DailyLog(
+        dates=base.log.dates,
+        weight_kg=w,
+        weight_outlier=np.zeros(base.log.n_days, dtype=bool),
+        intake_kcal=intake,
+        steps=base.log.steps,
+        hunger=base.log.hunger,
+        energy=base.log.energy,
+        sleep_h=base.log.sleep_h,
+    )
+    first = _date0(log)
+    phases = []
+    for k in range(n_phases):
+        start = first + dt.timedelta(days=int(rng.integers(-10, max(n, 1) + 10)))
+        length = int(rng.integers(1, 60))
+        end = None if rng.random() < 0.3 else start + dt.timedelta(days=length)
+        kind = ("deficit", "maintenance", "break", "surplus")[k % 4]
+        phases.append(Phase(f"P{k}", start, end, kind, None))  # type: ignore[arg-type]
+    phases.sort(key=lambda p: p.start)
+    return dc.replace(base, log=log, phases=tuple(phases))
+
+
+def _date0(log: object) -> dt.date:
+    return log.dates[0].astype("datetime64[D]").item()  # type: ignore[attr-defined]
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    n=st.integers(1, 90),
+    weight_frac=st.floats(0.0, 1.0),
+    intake_frac=st.floats(0.0, 1.0),
+    seed=st.integers(0, 10_000),
+    n_phases=st.integers(0, 4),
+)
+def test_odd_logs_never_crash(
+    n: int, weight_frac: float, intake_frac: float, seed: int, n_phases: int
+) -> None:
+    """Short, gappy or empty logs and odd phase layouts give an analysis, never an error."""
+    rec = _odd_record(n, weight_frac, intake_frac, seed, n_phases)
+    a = analyse_client(rec, "2026-11", SETTINGS)
+    for p in a.phases:
+        for e in (p.realised_deficit_kcal, p.observed_tdee_kcal, p.adaptation_kcal):
+            assert e.known or e.reason
+            if e.known:
+                assert math.isfinite(e.value)  # type: ignore[arg-type]
+                assert e.low <= e.value <= e.high  # type: ignore[operator]
+    if a.trend is not None:
+        assert np.all(np.isfinite(a.trend.level_kg))
+
+
+def test_empty_log() -> None:
+    import dataclasses as dc
+
+    from reportgen.io.model import DailyLog
+
+    rec = dc.replace(short_record(5), log=DailyLog.empty())
+    a = analyse_client(rec, "2026-11", SETTINGS)
+    assert a.trend is None and a.phases == () and a.projection is None
+    assert a.current_weight_kg.reason == "too-few-weigh-ins"
+    assert a.quality.weight_days == 0 and a.quality.days_in_period == 30
+
+
+def test_only_documented_codes_appear() -> None:
+    from reportgen.results import (
+        ANALYSIS_NOTE_CODES,
+        PHASE_NOTE_CODES,
+        PHASE_STATUSES,
+        REASON_CODES,
+    )
+
+    records = [simulated(s).record for s in range(6)]
+    records += [short_record(10), short_record(20), with_client(simulated(1), sex=None)]
+    records.append(with_client(simulated(2), pregnant=True))
+    records.append(dataclasses.replace(simulated(3).record, skinfolds=()))
+    for rec in records:
+        a = analyse_client(rec, "2026-11", SETTINGS)
+        for code in a.notes:
+            assert code.split(":")[0] in ANALYSIS_NOTE_CODES, code
+        for p in a.phases:
+            assert p.status in PHASE_STATUSES
+            assert set(p.notes) <= set(PHASE_NOTE_CODES), p.notes
+            for e in (
+                p.rate_kg_per_week,
+                p.realised_deficit_kcal,
+                p.observed_tdee_kcal,
+                p.expected_tdee_kcal,
+                p.adaptation_kcal,
+                p.adaptation_pct,
+            ):
+                assert e.known or e.reason in REASON_CODES, e.reason
+        for e in (a.current_weight_kg, a.month_change_kg, a.weekly_rate_kg):
+            assert e.known or e.reason in REASON_CODES
