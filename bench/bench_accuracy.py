@@ -11,7 +11,9 @@ window of at least ``--min-weeks`` weeks:
 * 80 % interval coverage of deficit, TDEE and adaptation;
 * adaptation error vs the true adaptive thermogenesis;
 * the least-squares bound: rho x the true sampling SD of the least-squares slope
-  under the simulated noise (AR(1) water + white noise) on the observed days.
+  under the simulated noise (AR(1) water + white noise) on the observed days; for
+  expenditure combined with the actual error of the mean logged intake, which
+  every method shares.
 
 The spreadsheet method is (first - last raw weight) x 7700 kcal/kg / days, plus the
 mean logged intake for TDEE.
@@ -114,7 +116,12 @@ def score_client(
             s.tdee_err.append(t.value - tr.tdee_kcal)
             s.tdee_sheet_err.append(sheet_tdee - tr.tdee_kcal)
             s.tdee_cover.append(_covers(t, tr.tdee_kcal))
-            s.tdee_ls_bound.append(rho * ls_bound_kg_per_day(sim, i0, i1))
+            # the best any method can do also carries the error of the mean logged intake
+            # over the logged days (the same for every method)
+            logged = log.intake_kcal[i0 : i1 + 1]
+            ok_i = np.isfinite(logged)
+            intake_err = float(logged[ok_i].mean() - sim.intake_true_kcal[i0 : i1 + 1].mean())
+            s.tdee_ls_bound.append(math.hypot(rho * ls_bound_kg_per_day(sim, i0, i1), intake_err))
         if p.adaptation_kcal.known and p.kind == "deficit":
             ad = p.adaptation_kcal
             assert ad.value is not None
