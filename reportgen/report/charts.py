@@ -195,7 +195,24 @@ def _save(fig: Figure) -> bytes:
     return buf.getvalue()
 
 
-def _time_ticks(ax: Axes, start: dt.date, end: dt.date, units: Units, *, label: bool = True):
+def _time_ticks(
+    ax: Axes,
+    start: dt.date,
+    end: dt.date,
+    units: Units,
+    *,
+    label: bool = True,
+    max_ticks: int = 8,
+) -> None:
+    """Month (or week) ticks over [start, end]; without ``label`` the axis gets no ticks at all.
+
+    Every tick is a handful of matplotlib artists, the main per-chart cost after text, so
+    panels that only need the time scale aligned (``label=False``) carry none.
+    """
+    ax.set_xlim(_day(start) - 0.5, _day(end) + 0.5)
+    if not label:
+        ax.set_xticks([])
+        return
     span = (end - start).days
     ticks: list[float] = []
     names: list[str] = []
@@ -218,9 +235,10 @@ def _time_ticks(ax: Axes, start: dt.date, end: dt.date, units: Units, *, label: 
             ticks.append(_day(d))
             names.append(f"{d.day} {d.strftime('%b')}")
             d += dt.timedelta(days=step)
+    while len(ticks) > max_ticks:
+        ticks, names = ticks[::2], names[::2]
     ax.set_xticks(ticks)
-    ax.set_xticklabels(names if label else [])
-    ax.set_xlim(_day(start) - 0.5, _day(end) + 0.5)
+    ax.set_xticklabels(names)
 
 
 def _y_ticks(ax: Axes, lo: float, hi: float, n: int = 4, min_span: float = 0.0) -> None:
@@ -245,42 +263,35 @@ def _y_ticks(ax: Axes, lo: float, hi: float, n: int = 4, min_span: float = 0.0) 
 
 def _shade_phases(ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *, names: bool):
     x0, x1 = _day(ctx.start), _day(ctx.end)
+    fig = ax.get_figure()
+    axes_pt = ax.get_position().width * (fig.get_figwidth() if fig else 6.0) * PT
     for i, p in enumerate(phases):
         a, b = max(_day(p.start), x0), min(_day(p.window_end), x1)
         if b < a:
             continue
         ax.axvspan(a - 0.5, b + 0.5, color=T.PHASE_FILLS[i % 2], lw=0, zorder=0)
-        if names and (b - a) / max(x1 - x0, 1) > 0.08:
-            name = p.name if len(p.name) <= 22 else p.name[:21] + "…"
-            ax.text(
-                a + 1,
-                0.97,
-                name,
-                transform=ax.get_xaxis_transform(),
-                va="top",
-                ha="left",
-                fontsize=5.8,
-                color=T.MUTED,
-                zorder=5,
-                clip_on=True,
-            )
+        if names:
+            # fit the name inside its band (about 0.6 em per character at 5.8 pt)
+            room = int(((b - a + 1) / max(x1 - x0 + 1, 1) * axes_pt - 4) / (5.8 * 0.6))
+            if room >= 4:
+                name = p.name if len(p.name) <= room else p.name[: room - 1] + "…"
+                ax.text(
+                    a + 1,
+                    0.97,
+                    name,
+                    transform=ax.get_xaxis_transform(),
+                    va="top",
+                    ha="left",
+                    fontsize=5.8,
+                    color=T.MUTED,
+                    zorder=5,
+                    clip_on=True,
+                )
 
 
 def _grid(ax: Axes) -> None:
     ax.grid(axis="y", color=T.RULE, lw=0.4)
     ax.set_axisbelow(True)
-
-
-def _legend(ax: Axes, ncol: int) -> None:
-    ax.legend(
-        loc="lower left",
-        bbox_to_anchor=(0.0, 1.0),
-        ncol=ncol,
-        borderaxespad=0.2,
-        handlelength=1.8,
-        columnspacing=1.4,
-        handletextpad=0.5,
-    )
 
 
 def _window(a: ClientAnalysis, dates: np.ndarray, ctx: ChartContext) -> np.ndarray:
@@ -297,7 +308,7 @@ def weight_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 78) ->
         return None
     x = day_numbers(log.dates[sel])
     out = log.weight_outlier[sel]
-    fig = _figure(ctx, height_mm, (14, 3, 8, 9))
+    fig = _figure(ctx, height_mm, (14, 3, 8, 2))
     ax = fig.add_subplot()
     _shade_phases(ax, a.phases, ctx, names=True)
     _grid(ax)
@@ -354,7 +365,6 @@ def weight_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 78) ->
     _y_ticks(ax, float(u.weight(lo_all)), float(u.weight(hi_all)), min_span=float(u.weight(2.0)))
     ax.set_ylabel(u.weight_unit)
     _time_ticks(ax, ctx.start, ctx.end, u)
-    _legend(ax, 4)
     return _save(fig)
 
 
@@ -366,7 +376,7 @@ def energy_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 66) ->
     if not np.isfinite(intake).any() and not have_tdee:
         return None
     x = day_numbers(log.dates[sel])
-    fig = _figure(ctx, height_mm, (14, 3, 8, 9))
+    fig = _figure(ctx, height_mm, (14, 3, 8, 2))
     ax = fig.add_subplot()
     _shade_phases(ax, a.phases, ctx, names=True)
     _grid(ax)
@@ -427,7 +437,6 @@ def energy_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 66) ->
     _y_ticks(ax, float(u.energy(lo_all)), float(u.energy(hi_all)), min_span=float(u.energy(600)))
     ax.set_ylabel(u.energy_label)
     _time_ticks(ax, ctx.start, ctx.end, u)
-    _legend(ax, 5)
     return _save(fig)
 
 
@@ -441,7 +450,8 @@ def signals_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -
     baselines = {s.name: s.baseline for s in a.signals}
     colours = {"steps": ctx.accent, "hunger": T.WARM, "energy": T.DEEP}
     fig = _figure(ctx, height_mm, (14, 3, 7, 3))
-    axes = fig.subplots(3, 1, sharex=True)
+    # not sharex: shared axes share tick locators, and only the bottom panel needs ticks
+    axes = fig.subplots(3, 1)
     for i, (ax, (name, v)) in enumerate(zip(axes, series, strict=True)):
         _shade_phases(ax, a.phases, ctx, names=(i == 0))
         _grid(ax)
@@ -533,7 +543,7 @@ def bodycomp_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) 
     lo = float(min(d_fat.min(), d_lean.min(), 0.0))
     hi = float(max(d_fat.max(), d_lean.max(), 0.0))
     _y_ticks(left, lo, hi, n=3, min_span=float(u.weight(1.0)))
-    _time_ticks(left, first, last, u)
+    _time_ticks(left, first, last, u, max_ticks=4)
     # room at the right for the "now" labels at the line ends
     left.set_xlim(right=_day(last) + (_day(last) - _day(first)) * 0.28)
 
@@ -554,7 +564,7 @@ def bodycomp_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) 
         _y_ticks(right, float(np.nanmin(sums)), float(np.nanmax(sums)), n=3, min_span=4.0)
     else:
         right.set_yticks([])
-    _time_ticks(right, first, last, u)
+    _time_ticks(right, first, last, u, max_ticks=3)
     return _save(fig)
 
 
@@ -570,7 +580,7 @@ def projection_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 58
     start = max(ctx.end - dt.timedelta(days=41), ctx.start)
     end = dt.date.fromisoformat(str(p.dates[-1].astype("datetime64[D]")))
     sub = ChartContext(u, L, ctx.accent, ctx.width_mm, start, end)
-    fig = _figure(sub, height_mm, (14, 3, 8, 9))
+    fig = _figure(sub, height_mm, (14, 3, 8, 2))
     ax = fig.add_subplot()
     _grid(ax)
     xp = day_numbers(p.dates)
@@ -619,8 +629,59 @@ def projection_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 58
     _y_ticks(ax, float(u.weight(lo_all)), float(u.weight(hi_all)))
     ax.set_ylabel(u.weight_unit)
     _time_ticks(ax, start, end, u)
-    _legend(ax, 4)
     return _save(fig)
+
+
+# ---------------------------------------------------------------------------------------------
+# Legends are set by the layout as a line of text above each chart (symbol in the series'
+# colour, then its label): as text they are searchable and cost nothing to draw, where a
+# matplotlib legend box is about a sixth of a chart's drawing time.
+LegendEntry = tuple[str, str, str]  # (symbol, colour hex, label)
+LINE, DOT, BLOCK, CROSS, DASHED, DOTTED, SQUARE, DIAMOND = "━", "●", "█", "✕", "╍", "┈", "■", "◆"
+
+
+def _tint(colour: str, alpha: float) -> str:
+    """The colour of ``colour`` at ``alpha`` over white (how a translucent band prints)."""
+    rgb = [int(colour[i : i + 2], 16) for i in (1, 3, 5)]
+    mixed = [round(255 - alpha * (255 - c)) for c in rgb]
+    return "#" + "".join(f"{c:02X}" for c in mixed)
+
+
+def legend(key: str, a: ClientAnalysis, ctx: ChartContext) -> list[LegendEntry]:
+    """What each mark in chart ``key`` means, for the series this client's chart shows."""
+    L, acc = ctx.labels, ctx.accent
+    if key == "weight":
+        out = [(DOT, T.POINTS, L["weighins"])]
+        if a.trend is not None:
+            out += [(LINE, acc, L["trend"]), (BLOCK, _tint(acc, 0.2), L["band"])]
+        if a.log.weight_outlier.any():
+            out.append((CROSS, T.OUTLIER, L["outliers"]))
+        return out
+    if key == "energy":
+        out = [(DOT, _tint(T.WARM, 0.45), L["intake_daily"]), (LINE, T.WARM, L["intake_mean"])]
+        if a.expenditure is not None:
+            out += [
+                (LINE, acc, L["tdee"]),
+                (BLOCK, _tint(acc, 0.16), L["tdee_band"]),
+                (BLOCK, T.SOFT_WARM, L["deficit_gap"]),
+            ]
+        return out
+    if key == "bodycomp":
+        return [
+            (DOT, T.WARM, L["legend_fat"]),
+            (SQUARE, acc, L["legend_lean"]),
+            (DIAMOND, T.DEEP, L["legend_sum"]),
+        ]
+    if key == "projection":
+        out = [
+            (LINE, acc, L["trend"]),
+            (DASHED, acc, L["projection"]),
+            (BLOCK, _tint(acc, 0.16), L["projection_band"]),
+        ]
+        if a.projection is not None and a.projection.goal_weight_kg is not None:
+            out.append((DOTTED, T.DEEP, L["goal"]))
+        return out
+    return []
 
 
 CHARTS = {

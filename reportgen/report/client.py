@@ -12,7 +12,7 @@ from reportlab.platypus import Flowable, PageBreak, Paragraph, Spacer
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis
 
-from .charts import CHARTS, ChartContext
+from .charts import CHARTS, ChartContext, legend
 from .layout import card_grid, chart_block, data_table, practice_header, section_break
 from .pdfbuild import ChartSlot, Document, build, mark_heading
 from .theme import page_size, theme_for
@@ -40,6 +40,11 @@ def _axis_start(a: ClientAnalysis) -> dt.date:
     if a.log.n_days:
         first = min(first, dt.date.fromisoformat(str(a.log.dates[0].astype("datetime64[D]"))))
     return max(first, a.as_of - dt.timedelta(days=HISTORY_DAYS - 1))
+
+
+def chart_context(a: ClientAnalysis, config: Config, width_mm: float, labels: dict[str, str]):
+    u = Units.from_config(config)
+    return ChartContext(u, labels, config.report.accent_colour, width_mm, _axis_start(a), a.as_of)
 
 
 def draw_charts(
@@ -111,6 +116,7 @@ def render_client_report(
         story.append(PageBreak())
         story += blocks(words.text("charts_intro", vm), theme, heading_hook=_heading_hook)
         titles = words.labels["charts"]
+        ctx = chart_context(analysis, config, width / mm, words.labels["chart"])
         for key in CHARTS:
             slot = None
             if charts.get(key):
@@ -123,6 +129,7 @@ def render_client_report(
                     words.text("chart_missing", key, vm),
                     words.text("chart_caption", key, vm),
                     theme,
+                    legend(key, analysis, ctx) if slot is not None else (),
                 )
             )
 

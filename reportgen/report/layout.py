@@ -297,12 +297,20 @@ def chart_block(
     missing: str,
     caption: str,
     theme: Theme,
+    legend: Sequence[tuple[str, str, str]] = (),
 ) -> Flowable:
-    """Heading, chart box (or the one line saying what to log) and caption, kept together."""
+    """Heading, legend line, chart box (or the one line saying what to log) and caption."""
     head = Paragraph(esc(title), theme["h2"])
     mark_heading(head, 1)
     parts: list[Flowable] = [head]
     if slot is not None:
+        if legend:
+            entries = [
+                f'<font color="{colour}">{symbol}</font>\u00a0{esc(label)}'
+                for symbol, colour, label in legend
+            ]
+            gap = "&nbsp;" * 5
+            parts.append(Paragraph(gap.join(entries), theme["legend"]))
         parts.append(ChartBox(slot))
         parts.extend(blocks(caption, theme))
     else:

@@ -54,6 +54,7 @@ SIZE_FIGURE = 15.0  # headline numbers
 MARGIN = 18 * mm
 GUTTER = 6 * mm
 HEADER_SPACE = 10 * mm
+CHART_AXES_LEFT = 14 * mm  # the charts' fixed left margin: legends line up with the axes
 FOOTER_SPACE = 10 * mm
 
 
@@ -107,6 +108,14 @@ def _styles(accent: colors.Color) -> dict[str, ParagraphStyle]:
         "body": base,
         "lead": derive("lead", fontSize=SIZE_LEAD, leading=SIZE_LEAD * 1.35, spaceAfter=5),
         "small": derive("small", fontSize=SIZE_SMALL, leading=SIZE_SMALL * 1.3, textColor=muted),
+        "legend": derive(
+            "legend",
+            fontSize=SIZE_SMALL,
+            leading=SIZE_SMALL * 1.3,
+            textColor=ink,
+            spaceAfter=1,
+            leftIndent=CHART_AXES_LEFT,
+        ),
         "fine": derive("fine", fontSize=6.2, leading=6.2 * 1.28, textColor=muted, spaceAfter=1),
         "caption": derive(
             "caption",
