@@ -272,13 +272,19 @@ class _Window:
 def _phase_windows(
     phases: tuple[Phase, ...], log: DailyLog, as_of: dt.date
 ) -> list[tuple[Phase, int, int, dt.date]]:
+    """Every phase started by ``as_of`` with its log indices (i1 < i0: no logged days)."""
     out = []
     for ph in sorted(phases, key=lambda p: p.start):
-        if ph.start > as_of or log.n_days == 0:
+        if ph.start > as_of:
             continue
         end = as_of if ph.end is None or ph.end > as_of else ph.end
-        i0 = max(_index(log, ph.start), 0)
-        i1 = min(_index(log, end), log.n_days - 1)
+        if log.n_days == 0:
+            out.append((ph, 0, -1, end))
+            continue
+        i0 = min(max(_index(log, ph.start), 0), log.n_days)
+        i1 = max(min(_index(log, end), log.n_days - 1), -1)
+        if i1 < i0:
+            i0, i1 = 0, -1
         out.append((ph, i0, i1, end))
     return out
 
@@ -686,13 +692,14 @@ def _phase_result(
     special: tuple[str, ...],
 ) -> PhaseResult:
     ph = w.phase
-    days = w.i1 - w.i0 + 1
-    wts = log.weight_used_kg[w.i0 : w.i1 + 1]
-    intake = log.intake_kcal[w.i0 : w.i1 + 1]
+    days = (w.window_end - ph.start).days + 1  # calendar days of the window
+    data_days = max(w.i1 - w.i0 + 1, 0)  # of which inside the log
+    wts = log.weight_used_kg[w.i0 : w.i1 + 1] if data_days else np.empty(0)
+    intake = log.intake_kcal[w.i0 : w.i1 + 1] if data_days else np.empty(0)
     notes: list[str] = []
     running = ph.end is None or ph.end > w.window_end
     t_start = t_end = t_change = None
-    if fit is not None:
+    if fit is not None and data_days:
         t_start = float(fit.level_kg[w.i0])
         t_end = float(fit.level_kg[w.i1])
         t_change = t_end - t_start
@@ -706,7 +713,7 @@ def _phase_result(
         status = "special-handling"
     else:
         if b is None or b.rate is None:
-            reason = "too-few-days" if days < MIN_ANALYSIS_DAYS else "too-few-weigh-ins"
+            reason = "too-few-days" if data_days < MIN_ANALYSIS_DAYS else "too-few-weigh-ins"
             rate = rate_pct = Estimate.missing(reason)
         else:
             rate = _est(7 * b.rate.rate_kg_per_day, 7 * b.rate.se_kg_per_day)
@@ -719,7 +726,7 @@ def _phase_result(
         if a.implausible:
             notes.append("implausible-adaptation")
         depth = exp_.deficit_depth_pct(deficit.value, expected.value)
-        if days < MIN_ANALYSIS_DAYS:
+        if data_days < MIN_ANALYSIS_DAYS:
             status = "too-few-days"
         elif running:
             status = "running"

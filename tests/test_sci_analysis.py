@@ -250,7 +250,9 @@ def test_empty_log() -> None:
 
     rec = dc.replace(short_record(5), log=DailyLog.empty())
     a = analyse_client(rec, "2026-11", SETTINGS)
-    assert a.trend is None and a.phases == () and a.projection is None
+    assert a.trend is None and a.projection is None
+    (p,) = a.phases  # listed even without data
+    assert p.status == "too-few-days" and p.weight_days == 0
     assert a.current_weight_kg.reason == "too-few-weigh-ins"
     assert a.quality.weight_days == 0 and a.quality.days_in_period == 30
 
@@ -285,3 +287,17 @@ def test_only_documented_codes_appear() -> None:
                 assert e.known or e.reason in REASON_CODES, e.reason
         for e in (a.current_weight_kg, a.month_change_kg, a.weekly_rate_kg):
             assert e.known or e.reason in REASON_CODES
+
+
+def test_phase_before_the_log_has_no_data_and_does_not_borrow_any() -> None:
+    from reportgen.io.model import Phase
+
+    rec = short_record(30, start=dt.date(2026, 11, 1))
+    early = Phase("Old cut", dt.date(2026, 9, 1), dt.date(2026, 9, 30), "deficit", 1800.0)
+    rec = dataclasses.replace(rec, phases=(early, *rec.phases))
+    a = analyse_client(rec, "2026-11", SETTINGS)
+    old, new = a.phases
+    assert old.days == 30 and old.weight_days == 0 and old.intake_days == 0
+    assert old.status == "too-few-days" and not old.realised_deficit_kcal.known
+    assert old.trend_start_kg is None
+    assert new.weight_days == 30 and new.observed_tdee_kcal.known
