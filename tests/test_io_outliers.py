@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import warnings
+
 import numpy as np
 
 from reportgen.io.outliers import weight_outliers
@@ -60,3 +62,16 @@ def test_no_false_positives_over_many_noisy_clients() -> None:
         level = rng.uniform(40.0, 160.0)
         w = level - 0.03 * np.arange(365) + rng.normal(0.0, 0.5, size=365)
         assert not weight_outliers(w)[0].any()
+
+
+def test_row_median_matches_numpy_nanmedian() -> None:
+    from reportgen.io.outliers import _row_nanmedian
+
+    rng = np.random.default_rng(3)
+    a = rng.normal(80.0, 2.0, size=(500, 15))
+    a[rng.random(a.shape) < 0.4] = np.nan
+    a[7] = np.nan
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)  # the all-NaN row
+        expected = np.nanmedian(a, axis=1)
+    np.testing.assert_allclose(_row_nanmedian(a), expected, rtol=0, atol=1e-12, equal_nan=True)

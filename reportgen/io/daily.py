@@ -5,6 +5,7 @@ from __future__ import annotations
 import datetime as dt
 import itertools
 import math
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Final
@@ -110,6 +111,30 @@ def number_column(
     return out, errors
 
 
+_ISO_COLUMN = re.compile(r"(?:[0-9]{4}-[0-9]{2}-[0-9]{2}\n)*")
+_EPOCH_ORDINAL = dt.date(1970, 1, 1).toordinal()
+
+
+def _iso_text_ordinals(cells: Sequence[Cell]) -> IntArray | None:
+    """Day ordinals for a column that is entirely plain ISO date text, else None.
+
+    The common CSV case in one pass: one regular expression over the whole column, then
+    numpy's ISO parser (which refuses impossible dates such as 2026-02-30).  Anything else
+    (blanks, date cells, other text) goes through :func:`~reportgen.io.cells.parse_date`.
+    """
+    texts = [c for c in cells if type(c) is str]
+    if not texts or len(texts) != len(cells):
+        return None
+    if _ISO_COLUMN.fullmatch("\n".join(texts) + "\n") is None:
+        return None
+    try:
+        days = np.array(texts, dtype="datetime64[D]")
+    except ValueError:
+        return None
+    ords = days.astype(np.int64) + _EPOCH_ORDINAL
+    return ords if ords.min() >= 1 else None  # year 0 is no date: let parse_date say so
+
+
 def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date) -> DailyResult:
     """Parse a daily log table into a :class:`DailyLog` on a complete calendar grid."""
     problems, ok = check_columns(table, DAILY_REQUIRED, DAILY_KNOWN, client_id)
@@ -128,8 +153,9 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
         problems.append(_err(code, msg, table, client_id, rows[i], col, val))
 
     # Dates: ISO text or real date cells only (never guessed).
-    ords = np.full(n, -1, dtype=np.int64)
-    for i, cell in enumerate(columns[date_pos]):
+    fast = _iso_text_ordinals(columns[date_pos])
+    ords = fast if fast is not None else np.full(n, -1, dtype=np.int64)
+    for i, cell in enumerate(columns[date_pos] if fast is None else ()):
         try:
             day = parse_date(cell, date_raw)
         except CellError as e:

@@ -73,13 +73,28 @@ def weight_outliers(weight_kg: FloatArray) -> tuple[BoolArray, FloatArray]:
     judged = ~np.isnan(w) & (count - 1 >= OUTLIER_MIN_NEIGHBOURS)
     if not judged.any():
         return flags, level
+    level = _row_nanmedian(win)
+    mad = _row_nanmedian(np.abs(win - level[:, None]))
+    resid = w - level
     with warnings.catch_warnings():
-        warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN windows give NaN: wanted
-        level = np.nanmedian(win, axis=1)
-        mad = np.nanmedian(np.abs(win - level[:, None]), axis=1)
-        resid = w - level
+        warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN gives NaN: handled below
         overall = MAD_TO_SD * np.nanmedian(np.abs(resid - np.nanmedian(resid)))
     floor = np.maximum(SCALE_FLOOR_KG, SCALE_FLOOR_FRACTION * np.abs(level))
     scale = np.maximum(np.maximum(MAD_TO_SD * mad, floor), np.nan_to_num(overall))
     flags = judged & (np.abs(w - level) > OUTLIER_K * scale)
     return flags, level
+
+
+def _row_nanmedian(a: FloatArray) -> FloatArray:
+    """Median of each row ignoring NaN (NaN for an all-NaN row).
+
+    Same result as ``np.nanmedian(a, axis=1)``, which for short rows goes through masked
+    arrays and is about 20x slower here.
+    """
+    s = np.sort(a, axis=1)  # NaN sorts last
+    k = np.sum(~np.isnan(a), axis=1)
+    rows = np.arange(a.shape[0])
+    lo = s[rows, np.maximum((k - 1) // 2, 0)]
+    hi = s[rows, np.maximum(k // 2, 0)]
+    hi = np.where(k % 2 == 1, lo, hi)
+    return np.where(k > 0, (lo + hi) / 2.0, np.nan)
