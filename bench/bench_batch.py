@@ -222,6 +222,12 @@ def run_size(n: int, workers: int, root: Path) -> dict[str, object]:
     split = _stage_split(outcomes)
     mem = _memory(outcomes)
     failed = [(o.client_id, o.reason) for o in result.failed]
+    cpu = [o.timings_s.get("cpu", math.nan) for o in outcomes if o.ok]
+    task_wall = [
+        sum(v for k, v in o.timings_s.items() if "_" not in k and k != "cpu")
+        for o in outcomes
+        if o.ok
+    ]
     row: dict[str, object] = {
         "clients": n,
         "mean_log_days": size["mean_days"],
@@ -233,6 +239,11 @@ def run_size(n: int, workers: int, root: Path) -> dict[str, object]:
         "reports_per_s": ok / wall if wall > 0 else math.nan,
         "s_per_report": wall / ok if ok else math.nan,
         "month_files_s": wall - (last_arrival[0] - t0) if outcomes else 0.0,
+        "cpu_s_per_client": statistics.mean(cpu) if cpu else math.nan,
+        "task_wall_s_per_client": statistics.mean(task_wall) if task_wall else math.nan,
+        # what the workers' CPU time allows when each has a core to itself
+        "cpu_bound_reports_per_s": workers / statistics.mean(cpu) if cpu else math.nan,
+        "load_avg_1min": os.getloadavg()[0],
         "worker_s": split,
         "memory": mem,
         "parent_peak_mb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0,
@@ -256,14 +267,14 @@ def compare_html(n: int, root: Path) -> dict[str, object]:
     roster = read_roster(book)
     rows = []
     for i, c in enumerate(roster.clients):
-        t0 = time.perf_counter()
+        t0, c0 = time.perf_counter(), time.process_time()
         rec = read_client(book, c, roster.phases.get(c.client_id, ()), MONTH_END)
         a = analyse_client(rec, MONTH, config.analysis)
-        t1 = time.perf_counter()
+        t1, c1 = time.perf_counter(), time.process_time()
         rl = render_client_report(a, config), render_practitioner_summary(a, config)
-        t2 = time.perf_counter()
+        t2, c2 = time.perf_counter(), time.process_time()
         html = render_client_html_pdf(a, config), render_practitioner_html_pdf(a, config)
-        t3 = time.perf_counter()
+        t3, c3 = time.perf_counter(), time.process_time()
         if i == 0:
             continue  # warm-up: imports, fonts, template compilation
         rows.append(
@@ -271,6 +282,9 @@ def compare_html(n: int, root: Path) -> dict[str, object]:
                 "read_analyse_s": t1 - t0,
                 "reportlab_s": t2 - t1,
                 "html_s": t3 - t2,
+                "read_analyse_cpu_s": c1 - c0,
+                "reportlab_cpu_s": c2 - c1,
+                "html_cpu_s": c3 - c2,
                 "reportlab_kb": sum(len(x) for x in rl) / 1024,
                 "html_kb": sum(len(x) for x in html) / 1024,
             }
@@ -278,8 +292,15 @@ def compare_html(n: int, root: Path) -> dict[str, object]:
     rl_s = sum(r["reportlab_s"] for r in rows)
     html_s = sum(r["html_s"] for r in rows)
     ra_s = sum(r["read_analyse_s"] for r in rows)
+    rl_cpu = sum(r["reportlab_cpu_s"] for r in rows)
+    html_cpu = sum(r["html_cpu_s"] for r in rows)
+    ra_cpu = sum(r["read_analyse_cpu_s"] for r in rows)
     return {
         "clients": len(rows),
+        "reportlab_cpu_s_per_client": rl_cpu / len(rows),
+        "html_cpu_s_per_client": html_cpu / len(rows),
+        "render_cpu_ratio": html_cpu / rl_cpu,
+        "whole_cpu_ratio": (ra_cpu + html_cpu) / (ra_cpu + rl_cpu),
         "reportlab_s_per_client": rl_s / len(rows),
         "html_s_per_client": html_s / len(rows),
         "render_ratio": html_s / rl_s,
@@ -321,6 +342,17 @@ def _print_sizes(rows: list[dict[str, object]], workers: int) -> None:
             + " ".join(f"{100 * split[s] / total:>12.1f}%" for s in STAGES)
             + f" {1000 * total / ok:>10.0f}"
         )
+    print("\nCPU time per client in the workers (independent of other load on the machine)")
+    print(
+        f"{'clients':>7} {'CPU s/client':>12} {'task wall s':>11} {'load avg':>8} "
+        f"{'CPU-bound reports/s':>19}"
+    )
+    for r in rows:
+        print(
+            f"{r['clients']:>7} {r['cpu_s_per_client']:>12.3f} "
+            f"{r['task_wall_s_per_client']:>11.3f} {r['load_avg_1min']:>8.1f} "
+            f"{r['cpu_bound_reports_per_s']:>19.2f}"
+        )
     for r in rows:
         if r["failures"]:
             print(f"  failures at {r['clients']}: {r['failures']}")
@@ -334,7 +366,10 @@ def _print_compare(c: dict[str, object]) -> None:
         f"  jinja2 HTML + WeasyPrint:  {c['html_s_per_client']:.3f} s/client, "
         f"{c['html_kb']:.0f} KiB\n"
         f"  ratio HTML / reportlab: rendering {c['render_ratio']:.2f}x, "
-        f"whole task (read + analyse + render) {c['whole_ratio']:.2f}x"
+        f"whole task (read + analyse + render) {c['whole_ratio']:.2f}x\n"
+        f"  in CPU seconds: reportlab {c['reportlab_cpu_s_per_client']:.3f} s, "
+        f"HTML {c['html_cpu_s_per_client']:.3f} s per client; ratio rendering "
+        f"{c['render_cpu_ratio']:.2f}x, whole task {c['whole_cpu_ratio']:.2f}x"
     )
 
 

@@ -187,8 +187,11 @@ def process_client(task: ClientTask) -> ClientOutcome:
     inputs: dict[str, str] = dict(task.roster_inputs)
     warnings: tuple[dict[str, object], ...] = ()
 
+    cpu0 = time.process_time()
+
     def failed(messages: tuple[str, ...], tb: str | None = None) -> ClientOutcome:
         _remove_stale_outputs(out_dir, cid)
+        timings["cpu"] = time.process_time() - cpu0
         return ClientOutcome(
             client_id=cid,
             name=client.name,
@@ -239,6 +242,7 @@ def process_client(task: ClientTask) -> ClientOutcome:
             write_bytes_atomic(out_dir / name, data)
             files[kind] = {"path": name, "sha256": sha256_bytes(data)}
         timings["write"] = time.perf_counter() - t4
+        timings["cpu"] = time.process_time() - cpu0  # CPU seconds: comparable under load
     except Exception as exc:
         tb = traceback.format_exc()
         first = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
@@ -465,7 +469,7 @@ class BatchResult:
     outcomes: list[ClientOutcome]  # sorted by client id
     files: dict[str, str]  # month-level file -> sha256
     errors: list[str] = field(default_factory=list)  # month-level problems (overview failed...)
-    book_warnings: list[dict[str, object]] = field(default_factory=list)
+    book_problems: list[dict[str, object]] = field(default_factory=list)
 
     @property
     def failed(self) -> list[ClientOutcome]:
@@ -542,7 +546,7 @@ def run_batch(
     roster = read_roster(book_dir)
     clients = _select_clients(roster.clients, client_ids)
     roster_ids = {c.client_id for c in roster.clients}
-    book_warnings = [
+    book_problems = [
         p.as_dict() for p in roster.problems if p.client_id is None or p.client_id not in roster_ids
     ]
     roster_inputs = dict(sorted(hash_inputs(book_dir, roster.source_files).items()))
@@ -594,7 +598,7 @@ def run_batch(
             month_dir=month_dir,
             outcomes=outcomes,
             files={},
-            book_warnings=book_warnings,
+            book_problems=book_problems,
         )
         _write_month_files(result, book_dir, config)
     return result
@@ -628,7 +632,7 @@ def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> N
         config=config.as_dict(),
         files=result.files,
         clients={o.client_id: o.manifest_entry() for o in result.outcomes},
-        book_warnings=result.book_warnings,
+        book_problems=result.book_problems,
     )
     if result.errors:
         manifest["errors"] = list(result.errors)

@@ -74,7 +74,7 @@ def build_manifest(
     config: dict[str, Any],
     files: dict[str, str],
     clients: dict[str, ClientEntry],
-    book_warnings: list[dict[str, object]] | None = None,
+    book_problems: list[dict[str, object]] | None = None,
 ) -> dict[str, Any]:
     """The manifest as a plain dict (clients in client-id order)."""
     return {
@@ -86,7 +86,7 @@ def build_manifest(
         "config": config,
         "files": dict(sorted(files.items())),
         "clients": {cid: clients[cid].as_dict() for cid in sorted(clients)},
-        "book_warnings": list(book_warnings or []),
+        "book_problems": list(book_problems or []),
     }
 
 

@@ -73,6 +73,7 @@ def test_manifest_contents_and_hashes(reference_run: ReferenceRun) -> None:
     assert m["book"] == str(reference_run.book.resolve())
     assert m["config_file"] is None
     assert m["config"]["report"]["paper"] == "A4"
+    assert m["book_problems"] == []
     assert sorted(m["files"]) == ["overview.pdf", "summary.csv"]
     for name, digest in m["files"].items():
         assert hashlib.sha256((month_dir / name).read_bytes()).hexdigest() == digest
@@ -306,3 +307,18 @@ def test_config_file_is_recorded(reference_run: ReferenceRun, tmp_path: Path) ->
     }
     for row in rows:
         assert row == ref[row["phase"]]
+
+
+def test_book_level_problem_is_recorded_not_fatal(tmp_path: Path) -> None:
+    book = copy_sample(tmp_path / "book")
+    with open(book / "phases.csv", "a", encoding="utf-8") as fh:
+        fh.write("c999,Ghost phase,2026-11-01,,deficit,\n")  # a client not in the roster
+    out = tmp_path / "out"
+    r = run_cli([book, "--month", MONTH, "--out", out, "--clients", "c001"])
+    assert r.exit_code == 0, r.output
+    assert "problem(s) not tied to a client" in r.output
+    m = json.loads((out / MONTH / "manifest.json").read_text())
+    assert [(p["code"], p["client_id"], p["file"]) for p in m["book_problems"]] == [
+        ("unknown-client", "c999", "phases.csv")
+    ]
+    assert m["clients"]["c001"]["status"] == "ok"

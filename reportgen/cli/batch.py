@@ -57,6 +57,13 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
         f"{n_warnings} in all, listed in manifest.json" if n_warnings else "",
     )
     table.add_row("failed", str(len(failed)), "")
+    if result.book_problems:
+        table.add_row(
+            "book",
+            "",
+            f"{len(result.book_problems)} problem(s) not tied to a client in this run "
+            "(manifest.json book_problems; `reportgen check` shows them)",
+        )
     for o in failed:
         table.add_row("", o.client_id, o.reason)
     out.print(table)
@@ -83,7 +90,12 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     default=None,
     help="Worker processes (default: one per core; 1 runs everything in this process).",
 )
-@click.option("--clients", "clients", metavar="ID,ID", help="Only these clients.")
+@click.option(
+    "--clients",
+    "clients",
+    metavar="ID,ID",
+    help="Only these clients (summary.csv, overview.pdf and manifest.json then cover only them).",
+)
 @click.option(
     "--config",
     "config_file",
