@@ -8,8 +8,9 @@ rendering is timed.  Each client is rendered once to warm caches (fonts, templat
 
 Reported per document: total, and for the client report the split between drawing the five
 charts (matplotlib to PDF) and layout + embedding (reportlab build, pikepdf form XObjects),
-plus the median of each chart.  Also the resident memory before and after all renders, to show
-that rendering does not accumulate memory (no pyplot, one Figure per chart).
+plus the median of each chart, and the process CPU time (on a shared machine wall time
+swings with other load; CPU time much less).  Also the resident memory before and after all
+renders, to show that rendering does not accumulate memory (no pyplot, one Figure per chart).
 
 Run:  MPLBACKEND=Agg python bench/bench_render.py [--repeat 5] [--simulated 10]
 """
@@ -66,16 +67,18 @@ def measure(items: list[ClientAnalysis], config: Config, repeat: int) -> dict[st
         render_client_report(a, config)
         render_practitioner_summary(a, config)
     rss_before = rss_mb()
-    report, charts, layout, summary = [], [], [], []
+    report, charts, layout, summary, cpu_report, cpu_summary = [], [], [], [], [], []
     per_chart: dict[str, list[float]] = {}
     for _ in range(repeat):
         for a in items:
             timing = Timing()
-            t0 = time.perf_counter()
+            c0, t0 = time.process_time(), time.perf_counter()
             render_client_report(a, config, timing=timing)
-            t1 = time.perf_counter()
+            c1, t1 = time.process_time(), time.perf_counter()
             render_practitioner_summary(a, config)
-            t2 = time.perf_counter()
+            c2, t2 = time.process_time(), time.perf_counter()
+            cpu_report.append(c1 - c0)
+            cpu_summary.append(c2 - c1)
             report.append(t1 - t0)
             summary.append(t2 - t1)
             charts.append(timing.charts_s)
@@ -93,6 +96,9 @@ def measure(items: list[ClientAnalysis], config: Config, repeat: int) -> dict[st
         "summary_s": med(summary),
         "both_s": med(both),
         "per_chart_s": {k: med(v) for k, v in per_chart.items()},
+        "cpu_report_s": med(cpu_report),
+        "cpu_summary_s": med(cpu_summary),
+        "cpu_both_s": med([r + s for r, s in zip(cpu_report, cpu_summary, strict=True)]),
         "rss_before_mb": rss_before,
         "rss_after_mb": rss_mb(),
     }
@@ -113,6 +119,12 @@ def show(title: str, m: dict[str, object]) -> None:
     print(f"  practitioner page   median {m['summary_s'] * 1000:7.1f} ms")
     both = float(m["both_s"])  # type: ignore[arg-type]
     print(f"  both documents      median {both * 1000:7.1f} ms  = {1 / both:4.1f} clients/s serial")
+    cpu = float(m["cpu_both_s"])  # type: ignore[arg-type]
+    print(
+        f"  CPU time            report {m['cpu_report_s'] * 1000:.0f} ms, practitioner "
+        f"{m['cpu_summary_s'] * 1000:.0f} ms, both {cpu * 1000:.0f} ms = {1 / cpu:4.1f} "
+        "clients/s per core (less sensitive than wall time to other load)"
+    )
     print(
         f"  peak RSS            {m['rss_before_mb']:.0f} MB after warm-up, "
         f"{m['rss_after_mb']:.0f} MB after all renders"
