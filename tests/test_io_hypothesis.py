@@ -5,6 +5,7 @@ from __future__ import annotations
 import csv
 import datetime as dt
 import io
+import math
 import shutil
 import tempfile
 from pathlib import Path
@@ -14,6 +15,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from reportgen.io.book import read_client, read_roster
+from reportgen.io.cells import CellError, parse_date, parse_number
+from reportgen.io.daily import _iso_text_ordinals, number_column
 from reportgen.io.model import ClientRecord, InputError, Problem
 from reportgen.io.problems import PROBLEM_CODES
 
@@ -223,3 +226,46 @@ def test_arbitrary_xlsx_cells(daily: list, skin: list, phases: list, epoch_1904:
         )
         check_only_our_problems(book)
         shutil.rmtree(book)
+
+
+def _one_by_one(parse, cells, column):  # type: ignore[no-untyped-def]
+    out, bad = [], []
+    for i, c in enumerate(cells):
+        try:
+            out.append(parse(c, column))
+        except CellError:
+            out.append(None)
+            bad.append(i)
+    return out, bad
+
+
+@settings(max_examples=150, deadline=None)
+@given(
+    cells=st.one_of(
+        st.lists(TEXT, max_size=30),
+        st.lists(st.one_of(XLSX_CELL, st.integers(), st.booleans()), max_size=30),
+    )
+)
+def test_fast_number_column_agrees_with_cell_parser(cells: list) -> None:  # type: ignore[type-arg]
+    values, errors = number_column(cells, "weight_kg")
+    expected, bad = _one_by_one(parse_number, cells, "weight_kg")
+    assert [i for i, _ in errors] == bad
+    for got, want in zip(values.tolist(), expected, strict=True):
+        assert (want is None and math.isnan(got)) or got == want
+
+
+ISO_ISH = st.one_of(
+    st.dates().map(str),
+    st.from_regex(r"\A[0-9]{4}-[0-9]{2}-[0-9]{2}\Z"),
+    TEXT,
+)
+
+
+@settings(max_examples=150, deadline=None)
+@given(cells=st.lists(ISO_ISH, min_size=1, max_size=30))
+def test_fast_date_column_agrees_with_cell_parser(cells: list[str]) -> None:
+    fast = _iso_text_ordinals(cells)
+    expected, bad = _one_by_one(parse_date, cells, "date")
+    if fast is not None:
+        assert bad == []
+        assert fast.tolist() == [d.toordinal() for d in expected]
