@@ -57,6 +57,8 @@ class Scores:
     adapt_all_err: list[float] = field(default_factory=list)
     path_err: list[float] = field(default_factory=list)
     path_cover: list[bool] = field(default_factory=list)
+    proj_err: dict[int, list[float]] = field(default_factory=lambda: {28: [], 56: [], 84: []})
+    proj_cover: dict[int, list[bool]] = field(default_factory=lambda: {28: [], 56: [], 84: []})
     seconds: list[float] = field(default_factory=list)
     client_days: int = 0
 
@@ -129,6 +131,17 @@ def score_client(
             if honest:
                 s.adapt_err.append(ad.value - tr.adaptation_kcal)
                 s.adapt_cover.append(_covers(ad, tr.adaptation_kcal))
+    fut = sim.future_weight_kg
+    # projection: only where the current phase has run 4 weeks, so the "current intake"
+    # (last 28 days) is the plan that the simulated future continues
+    cur = a.current_phase
+    if a.projection is not None and fut.size and cur is not None and cur.days >= 28:
+        pr = a.projection
+        for k in s.proj_err:
+            if k < len(pr.weight_kg) and k - 1 < fut.size:
+                truth = float(fut[k - 1])
+                s.proj_err[k].append(float(pr.weight_kg[k]) - truth)
+                s.proj_cover[k].append(bool(pr.low_kg[k] <= truth <= pr.high_kg[k]))
     if honest and a.expenditure is not None:
         ee = sim.expenditure_true_kcal
         k = np.ones(7) / 7
@@ -151,7 +164,7 @@ def run(n_clients: int, seed: int, min_weeks: int) -> Scores:
     s = Scores()
     settings = AnalysisSettings()
     for i in range(n_clients):
-        sim = simulate_client(rng, f"b{i:04d}")
+        sim = simulate_client(rng, f"b{i:04d}", future_days=84)
         score_client(sim, s, 7 * min_weeks, settings)
     return s
 
@@ -215,6 +228,13 @@ def table(s: Scores) -> str:
     for name, a, b, what in rows:
         bs = "" if math.isnan(b) else f"{b:10.3f}"
         out.append(f"{name:44s} {a:10.3f} {bs:>10s}  {what}")
+    for k in sorted(s.proj_err):
+        if s.proj_err[k]:
+            out.append(
+                f"{f'projection at {k} d: RMSE [kg] / 80 % coverage':44s} "
+                f"{rms(s.proj_err[k]):10.3f} {float(np.mean(s.proj_cover[k])):10.3f}  "
+                f"(n {len(s.proj_err[k])})"
+            )
     out.append(
         f"phases scored: deficit {len(s.deficit_err)}, expenditure {len(s.tdee_err)}, "
         f"adaptation {len(s.adapt_err)}"

@@ -23,7 +23,7 @@ from __future__ import annotations
 
 import datetime as dt
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -76,6 +76,8 @@ class SimulatedClient:
     weekly_amp_kg: float
     under_report: float  # fraction of intake not logged (0 = honest)
     phases: tuple[PhaseTruth, ...]
+    # true body mass after the report month at the last plan (index 0 = the first day after)
+    future_weight_kg: FloatArray = field(default_factory=lambda: np.empty(0))
 
 
 def _jp3_sum_mm(sex: str, age: float, bodyfat_pct: float) -> float:
@@ -103,6 +105,7 @@ def simulate_client(
     beta_at: float | None = None,
     two_deficits: bool | None = None,
     glycogen: bool = True,
+    future_days: int = 0,
 ) -> SimulatedClient:
     """One simulated client with known truth (see the module docstring).
 
@@ -117,6 +120,9 @@ def simulate_client(
         Fix a property instead of drawing it.
     glycogen : bool, default True
         Include the fast glycogen-and-water shift at intake changes.
+    future_days : int, default 0
+        Also simulate this many days after the report month at the last phase's
+        plan (``future_weight_kg``), to check projections.
 
     Returns
     -------
@@ -315,6 +321,16 @@ def simulate_client(
         truths.append(
             PhaseTruth(ph.name, ph.kind, si, ei, float(deficit), tdee, adapt, tdee - adapt)
         )
+    # The weeks after the report month at the last phase's plan (for projection checks);
+    # drawn last so that everything above is the same whatever ``future_days`` is.
+    future = np.empty(0)
+    if future_days > 0:
+        wd = (dates[-1].astype("datetime64[D]").view("int64") + 4 + np.arange(future_days)) % 7
+        fut_intake = (
+            target[-1] + 180.0 * (wd >= 5) - 180.0 * 2 / 7 + rng.normal(0, 220, future_days)
+        )
+        fut = simulate_hall(path.fat_kg[-1], path.lean_kg[-1], fut_intake, base, path.at_kcal[-1])
+        future = fut.weight_kg + glyco[n_days]
     return SimulatedClient(
         record=record,
         month=f"{month_end.year:04d}-{month_end.month:02d}",
@@ -331,4 +347,5 @@ def simulate_client(
         weekly_amp_kg=amp,
         under_report=ur,
         phases=tuple(truths),
+        future_weight_kg=future,
     )
