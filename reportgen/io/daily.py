@@ -51,13 +51,13 @@ def _err(code: str, msg: str, t: Table, cid: str, row: int, col: str | None, val
         file=t.file,
         row=row,
         column=col,
-        value=None if val is None else str(val),
+        value=None if val is None else cell_text(val),
         client_id=cid,
     )
 
 
 def _warn(
-    code: str, msg: str, t: Table, cid: str, row: int | None, col: str | None, val: object = None
+    code: str, msg: str, t: Table, cid: str, row: int | None, col: str | None, val: Cell = None
 ) -> Problem:
     return Problem(
         "warning",
@@ -66,7 +66,7 @@ def _warn(
         file=t.file,
         row=row,
         column=col,
-        value=None if val is None else str(val),
+        value=None if val is None else cell_text(val),
         client_id=cid,
     )
 

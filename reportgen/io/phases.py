@@ -9,7 +9,7 @@ from reportgen.io import limits
 from reportgen.io.cells import CellError, check_range, parse_date, parse_number, parse_text
 from reportgen.io.columns import check_columns
 from reportgen.io.model import PHASE_KINDS, Phase, PhaseKind, Problem
-from reportgen.io.tables import Cell, Table
+from reportgen.io.tables import Cell, Table, cell_text
 
 PHASE_COLUMNS: Final = ("client_id", "name", "start", "end", "kind", "target_kcal")
 
@@ -58,7 +58,7 @@ def parse_phases(
                     file=table.file,
                     row=row,
                     column=raw.get(c) if c else None,
-                    value=None if v is None else str(v),
+                    value=None if v is None else cell_text(v),
                     client_id=cid or None,
                 )
             )

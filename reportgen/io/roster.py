@@ -19,7 +19,7 @@ from reportgen.io.cells import (
 )
 from reportgen.io.columns import check_columns
 from reportgen.io.model import Client, Problem
-from reportgen.io.tables import Cell, Table
+from reportgen.io.tables import Cell, Table, cell_text
 from reportgen.io.units import UNIT_AGREEMENT, UNIT_MAP, alternatives
 
 T = TypeVar("T")
@@ -95,7 +95,7 @@ def parse_roster(table: Table, today: dt.date) -> tuple[tuple[Client, ...], list
                     file=table.file,
                     row=row,
                     column=raw.get(c) if c else None,
-                    value=None if v is None else str(v),
+                    value=None if v is None else cell_text(v),
                     client_id=cid,
                 )
             )

@@ -10,7 +10,7 @@ from reportgen.io import limits
 from reportgen.io.cells import CellError, check_range, parse_date, parse_number
 from reportgen.io.columns import missing_column
 from reportgen.io.model import SKINFOLD_SITES, Problem, SkinfoldSession
-from reportgen.io.tables import Table, cell_text
+from reportgen.io.tables import Cell, Table, cell_text
 
 #: Repeated readings at one site may differ by at most 5 % (ISAK protocol: take a third
 #: reading when the first two differ by more than 5 %, then use the mean of two or the median
@@ -77,7 +77,7 @@ def parse_skinfolds(
     first_row: dict[dt.date, int] = {}
     for row, cells in table.rows:
 
-        def err(e: CellError, col: str, cell: object, row: int = row) -> None:
+        def err(e: CellError, col: str, cell: Cell, row: int = row) -> None:
             problems.append(
                 Problem(
                     "error",
@@ -86,7 +86,7 @@ def parse_skinfolds(
                     file=table.file,
                     row=row,
                     column=col,
-                    value=None if cell is None else str(cell),
+                    value=None if cell is None else cell_text(cell),
                     client_id=client_id,
                 )
             )
