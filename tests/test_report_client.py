@@ -356,3 +356,11 @@ def test_png_and_svg_logos_are_placed_in_the_header(tmp_path: Path) -> None:
             with pikepdf.open(io.BytesIO(data)) as pdf:
                 xo = pdf.pages[0].Resources.XObject
                 assert any(v.Subtype == "/Image" for _, v in xo.items())
+
+
+def test_characters_the_font_lacks_are_reported_not_dropped_silently(tmp_path: Path) -> None:
+    # DejaVu Sans has no CJK glyphs (engineering notes, font table); reportlab would print blanks.
+    book = write_tiny_book(tmp_path / "book", "王秀英 Wang", days=20)
+    data = render_client_report(analyse_book(book, "t001"), CONFIG)
+    text = " ".join(flat(t) for t in pdf_pages_text(data))
+    assert "are not in the report's font and may print as blanks" in text

@@ -68,6 +68,21 @@ def register_fonts() -> None:
     )
 
 
+def missing_glyphs(text: str) -> str:
+    """The characters of ``text`` the report font cannot draw (e.g. CJK), in order, once each.
+
+    reportlab has no per-glyph fallback, so such characters would print as blanks; the
+    report says so instead of failing silently.
+    """
+    register_fonts()
+    face = pdfmetrics.getFont(FONT).face
+    seen: list[str] = []
+    for ch in text:
+        if ord(ch) >= 32 and ord(ch) not in face.charToGlyph and ch not in seen:
+            seen.append(ch)
+    return "".join(seen)
+
+
 def page_size(config: Config, *, wide: bool = False) -> tuple[float, float]:
     base = A4 if config.report.paper == "A4" else letter
     return landscape(base) if wide else base

@@ -17,6 +17,7 @@ import numpy as np
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate, PhaseResult
 
+from .theme import missing_glyphs
 from .units import Units
 
 # Rate of loss bands in % of body weight per week.  0.5-1.0 %/week is the range Helms,
@@ -295,6 +296,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "warnings": [
             {"where": p.location, "message": p.message, "code": p.code} for p in q.warnings
         ],
+        "unprintable": missing_glyphs(a.client.name + "".join(p.name for p in a.phases)),
     }
     methods = [
         {"code": m.code, "name": m.name, "reference": m.reference, "see": m.see or ""}
