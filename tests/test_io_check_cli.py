@@ -137,10 +137,23 @@ def test_unusable_book_exits_two(tmp_path: Path) -> None:
     code, out, err = run(str(tmp_path / "empty"))
     assert code == 2
     assert out == ""
-    assert re.match(r"reportgen check: .* has no clients.csv or clients.xlsx", err)
+    assert re.fullmatch(
+        r"reportgen check: \S+ has no clients.csv or clients.xlsx; is this the client book "
+        r"folder\?\n",
+        err,
+    )
     code, out, _ = run(str(tmp_path / "empty"), "--json")
     assert code == 2
     assert json.loads(out)["unusable"]["code"] == "missing-file"
+
+
+def test_roster_that_cannot_be_read_exits_two(tmp_path: Path) -> None:
+    book = write_book(tmp_path / "book")
+    (book / "clients.csv").unlink()
+    (book / "clients.xlsx").write_text("not a workbook", encoding="utf-8")
+    code, _, err = run(str(book))
+    assert code == 2
+    assert re.match(r"reportgen check: clients.xlsx: clients.xlsx is not a readable Excel", err)
 
 
 def test_bad_month_option(tmp_path: Path) -> None:

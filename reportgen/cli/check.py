@@ -66,7 +66,9 @@ def check_command(book: Path, month: str | None, as_json: bool, today: dt.date |
         if as_json:
             click.echo(json.dumps({"unusable": exc.problem.as_dict()}, indent=2, sort_keys=True))
         else:
-            click.echo(f"reportgen check: {exc}", err=True)
+            p = exc.problem
+            where = f"{p.location}: " if p.file else ""
+            click.echo(f"reportgen check: {where}{p.message}", err=True)
         sys.exit(EXIT_UNUSABLE)
 
     if as_json:
