@@ -4,6 +4,11 @@ A value outside these limits cannot be a correct measurement of an adult or adol
 client under outpatient nutrition care, so it is an error that the practitioner must fix
 (usually a typo or a unit mix-up).  The limits are deliberately wide: they catch impossible
 values, not unusual ones.  Common practice, no single source, unless noted.
+
+One exception: a single weigh-in far from the client's surrounding weigh-ins (8.2 among
+82s) is an isolated entry error that the analysis can simply leave out, so it is reported as
+an ``outlier`` warning even when it is also outside :data:`WEIGHT_KG`
+(see :mod:`reportgen.io.outliers`).  Limits apply inclusively.
 """
 
 from __future__ import annotations
