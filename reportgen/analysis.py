@@ -35,18 +35,11 @@ from reportgen.science import expected as exp_
 from reportgen.science.composition import energy_density_kcal_per_kg, fat_and_lean_mass_kg
 from reportgen.science.flags import FlagInputs, safety_flags
 from reportgen.science.hall import project_weight
+from reportgen.science.rates import NoiseModel, fit_noise_model, segment_rate
 from reportgen.science.resting import RESTING_METHODS, resting_kcal_all
 from reportgen.science.signals import summarise_signal
 from reportgen.science.skinfolds import estimate_body_fat, estimate_body_fat_from_bmi
-from reportgen.science.trend import (
-    Z80,
-    NoiseModel,
-    TrendFit,
-    ema_series,
-    fit_noise_model,
-    local_linear_trend,
-    segment_rate,
-)
+from reportgen.science.trend import Z80, TrendFit, ema_series, local_linear_trend
 
 MIN_ANALYSIS_DAYS = bal.MIN_DAYS
 BASELINE_FIRST_WEEKS_DAYS = 28  # "first weeks of data" when no maintenance phase (judgment)

@@ -162,7 +162,7 @@ def test_glycogen_shift_energy_enters_the_deficit() -> None:
     """deficit = -(rho rate + 1052 shift / days); 1052 kcal/kg = 17.6 MJ/kg glycogen (Hall
     2008, published) held with about 3 g water per g (from memory)."""
     from reportgen.science.balance import GLYCOGEN_WATER_KCAL_PER_KG
-    from reportgen.science.trend import WindowRate
+    from reportgen.science.rates import WindowRate
 
     assert pytest.approx(17.6e3 / 4.184 / 4, rel=1e-12) == GLYCOGEN_WATER_KCAL_PER_KG
     rate = WindowRate(-0.05, 0.0, 0.0, 0.0, 0.0, 28, 28, shift_kg=-0.8, shift_se_kg=0.0)

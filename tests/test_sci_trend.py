@@ -14,15 +14,13 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from reportgen.science.balance import rate_se_iid_kg_per_day
+from reportgen.science.rates import fit_noise_model, segment_rate, window_rate
 from reportgen.science.trend import (
     ema,
     ema_series,
-    fit_noise_model,
     local_level_filter,
     local_level_steady_gain,
     local_linear_trend,
-    segment_rate,
-    window_rate,
 )
 
 

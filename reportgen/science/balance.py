@@ -9,7 +9,7 @@ fallback.
 
 The 80 % interval (science notes §4.5) combines, as independent parts:
 
-* the rate's standard error from :func:`reportgen.science.trend.window_rate`,
+* the rate's standard error from :func:`reportgen.science.rates.window_rate`,
   which allows for autocorrelated water swings (AR(1) plus white noise);
 * the sampling SE of the mean intake over the logged days (missing days);
 * the energy-density bracket: the density at fat mass F +/- its standard error.
@@ -34,14 +34,14 @@ from reportgen.science.composition import (
     energy_density_kcal_per_kg,
     partition_weight_change_hall,
 )
-from reportgen.science.trend import (
+from reportgen.science.rates import (
     SHIFT_PRIOR_SD_KG,
     SHIFT_TAU_DAYS,
-    Z80,
     NoiseModel,
     WindowRate,
     window_rate,
 )
+from reportgen.science.trend import Z80
 
 MIN_DAYS = 14  # no expenditure from fewer days (science notes §4.4, §8: common practice)
 MIN_WEIGH_INS = 8  # judgment: fewer weigh-ins than this cannot pin a rate
@@ -219,7 +219,7 @@ def window_balance(
         window alone when not given.
     rate : WindowRate, optional
         A rate already estimated for this window (e.g. by
-        :func:`reportgen.science.trend.segment_rate`, which also uses the
+        :func:`reportgen.science.rates.segment_rate`, which also uses the
         neighbouring weeks); by default the window's own least-squares rate.
 
     Returns
@@ -235,7 +235,7 @@ def window_balance(
     rho = (rhoF dF + rhoL dL)/dW from the Hall/Forbes partition at F (Hall 2008);
     deficit = -(rho rate + rhoG shift/days), where shift is the fitted
     glycogen-and-water shift inside the window (1052 kcal/kg) when the rate
-    comes from :func:`reportgen.science.trend.segment_rate`; TDEE = mean intake +
+    comes from :func:`reportgen.science.rates.segment_rate`; TDEE = mean intake +
     deficit.
     Var(deficit) = rho^2 SE(rate)^2 + rate^2 s_rho^2 with s_rho half the spread of
     rho over F +/- SE(F) (judgment: the notes' bracket [Hall rho, 7700] would assume
