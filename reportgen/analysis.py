@@ -431,6 +431,7 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
         spans = [(i0, i1) for _, i0, i1, _ in raw_windows if i1 - i0 + 1 >= MIN_ANALYSIS_DAYS]
         noise = fit_noise_model(weights_used, spans or [(0, log.n_days - 1)], fit.weights)
     last = log.n_days - 1
+    recent_lo = max(log.n_days - RECENT_DAYS, 0)
     if fit is not None:
         cur_w = float(fit.level_kg[last])
         current_weight = _est(cur_w, math.sqrt(fit.level_var_kg2[last]))
@@ -448,6 +449,7 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
         if starts and starts[-1] > lo:
             lo = min(starts[-1], max(log.n_days - MIN_ANALYSIS_DAYS, 0))
         all_knots = tuple(sorted({i0 for _, i0, _, _ in raw_windows}))
+        recent_lo = lo
         wr = segment_rate(weights_used, lo, last, all_knots, fit.weights, noise, edge_knots=False)
         if wr is None or log.n_days - lo < MIN_ANALYSIS_DAYS:
             weekly_rate = Estimate.missing("too-few-days")
@@ -575,6 +577,7 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
             client.goal_weight_kg,
             settings,
             as_of,
+            recent_lo,
         )
         if projection is not None:
             methods["hall-2011"] = METHODS["hall-2011"]
@@ -813,9 +816,11 @@ def _projection(
     goal: float | None,
     settings: AnalysisSettings,
     as_of: dt.date,
+    recent_lo: int,
 ) -> Projection | None:
-    lo = max(log.n_days - RECENT_DAYS, 0)
-    intake = _mean(log.intake_kcal[lo:])
+    # current intake: the same recent window as the current rate (the current phase's
+    # last four weeks at most)
+    intake = _mean(log.intake_kcal[recent_lo:])
     fat = _fat_at(comp, cur_w)
     rest = resting_at(cur_w)  # type: ignore[operator]
     if intake is None or fat is None or rest is None:
