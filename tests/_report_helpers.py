@@ -286,16 +286,26 @@ def sample_analysis(client_id: str, month: str = SAMPLE_MONTH) -> ClientAnalysis
     return analyse_book(SAMPLE_BOOK, client_id, month)
 
 
-def write_tiny_book(folder: Path, name: str, days: int, client_id: str = "t001") -> Path:
+def write_tiny_book(
+    folder: Path,
+    name: str,
+    days: int,
+    client_id: str = "t001",
+    *,
+    birth_date: str = "1990-05-05",
+    pregnant: bool = False,
+) -> Path:
     """A book with one client and only ``days`` logged days at the end of November 2026."""
     folder.mkdir(parents=True, exist_ok=True)
     (folder / "logs").mkdir(exist_ok=True)
     header = "client_id,name,sex,birth_date,height_cm,email,pregnant,goal_weight_kg\n"
-    row = f'{client_id},"{name}",female,1990-05-05,165,t@example.org,no,\n'
+    preg = "yes" if pregnant else "no"
+    row = f'{client_id},"{name}",female,{birth_date},165,t@example.org,{preg},\n'
     (folder / "clients.csv").write_text(header + row, encoding="utf-8")
     (folder / "phases.csv").write_text(
         "client_id,name,start,end,kind,target_kcal\n"
-        f"{client_id},First weeks,2026-11-{31 - days:02d},,deficit,1700\n",
+        f"{client_id},First weeks,{dt.date(2026, 11, 30) - dt.timedelta(days=days - 1)},,"
+        "deficit,1700\n",
         encoding="utf-8",
     )
     lines = ["date,weight_kg,intake_kcal,steps,hunger,energy,sleep_h"]

@@ -364,3 +364,21 @@ def test_characters_the_font_lacks_are_reported_not_dropped_silently(tmp_path: P
     data = render_client_report(analyse_book(book, "t001"), CONFIG)
     text = " ".join(flat(t) for t in pdf_pages_text(data))
     assert "are not in the report's font and may print as blanks" in text
+
+
+@pytest.mark.parametrize(
+    ("birth_date", "pregnant", "flag"),
+    [("2010-03-03", False, "Client is under 18"), ("1990-05-05", True, "Pregnancy recorded")],
+)
+def test_special_handling_shows_no_deficit_figures_and_an_urgent_flag(
+    tmp_path: Path, birth_date: str, pregnant: bool, flag: str
+) -> None:
+    book = write_tiny_book(
+        tmp_path / "b", "Sam Young", 40, birth_date=birth_date, pregnant=pregnant
+    )
+    a = analyse_book(book, "t001")
+    assert a.special_handling, "the analysis should mark this client for special handling"
+    pages = [flat(t) for t in pdf_pages_text(render_client_report(a, CONFIG))]
+    assert "no deficit, expenditure or projection figures are worked out" in pages[0]
+    assert "No projection is made for this client" in " ".join(pages)
+    assert f"Act now: {flag}." in pages[-1]

@@ -73,7 +73,12 @@ def _figure_items(vm: ClientView, words: Wording) -> list[tuple[str, str, bool, 
     items = []
     for key in ("weight", "change", "rate", "intake", "deficit", "tdee", "adaptation", "bodyfat"):
         f = vm.figures[key]
-        value = esc(f.value) if f.known else esc(words.labels["not_enough"])
+        if f.known:
+            value = esc(f.value)
+        elif f.reason in words.labels["not_estimated_for"]:
+            value = esc(words.labels["not_estimated"])  # by design, not for lack of data
+        else:
+            value = esc(words.labels["not_enough"])
         items.append((labels[key], value, f.known, words.text("figure_note", f, vm).strip()))
     return items
 
