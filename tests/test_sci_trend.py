@@ -243,3 +243,29 @@ def test_segment_rate_mean_rate_across_an_interior_knot() -> None:
     assert r is not None
     # (w(60) - w(30)) / 30 = (85.6 - 87.0) / 30, hand-calculated
     assert r.rate_kg_per_day == pytest.approx((85.6 - 87.0) / 30, abs=1e-9)
+
+
+def test_smoother_matches_statsmodels_unobserved_components() -> None:
+    """Reference library: statsmodels' local linear trend smoother with the same variances.
+
+    statsmodels uses the exact diffuse initialisation; ours a large finite prior,
+    so level and variances agree to about 1e-4 (the smoothed mean depends only on
+    the variance ratios, the variances scale with r).
+    """
+    import warnings
+
+    structural = pytest.importorskip("statsmodels.tsa.statespace.structural")
+    rng = np.random.default_rng(2)
+    n = 120
+    y = 85 - 0.07 * np.arange(n) + rng.normal(0, 0.5, n)
+    y[1:][rng.random(n - 1) < 0.25] = np.nan
+    r = 0.25
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        model = structural.UnobservedComponents(y, level="local linear trend")
+        ref = model.smooth([r, r / 90, r * 5e-5])
+    ours = local_linear_trend(y, robust=False, level_ratio=1 / 90, slope_ratio=5e-5)
+    assert np.allclose(ours.level_kg, ref.smoothed_state[0], atol=1e-4)
+    assert np.allclose(ours.slope_kg_per_day, ref.smoothed_state[1], atol=1e-5)
+    scaled = ours.level_var_kg2 / ours.noise_sd_kg**2 * r
+    assert np.allclose(scaled, ref.smoothed_state_cov[0, 0], atol=1e-4)
