@@ -161,3 +161,32 @@ def test_intake_for_rate_gives_that_rate() -> None:
         weekly = (daily.weight_kg[28] - 90.0) / 4
         assert weekly == pytest.approx(-rate / 100 * 90.0, rel=0.03)
     assert run.intake_for_rate_kcal[1.0][0] < run.intake_for_rate_kcal[0.5][0]
+
+
+@pytest.mark.parametrize(
+    ("sex", "weight", "fat", "height", "one_year", "steady", "half"),
+    [
+        # notes §5, computed there (age 40, PAL 1.6, -500 kcal/day): leaner man and woman
+        ("male", 80.0, 20.0, 175.0, -12.9, -18.5, 219),
+        ("female", 70.0, 25.0, 165.0, -12.9, -20.3, None),
+    ],
+)
+def test_other_baselines_from_the_notes(
+    sex: str,
+    weight: float,
+    fat: float,
+    height: float,
+    one_year: float,
+    steady: float,
+    half: int | None,
+) -> None:
+    rmr = resting_kcal_mifflin_st_jeor(sex, weight, height, 40)  # type: ignore[arg-type]
+    base = hall_baseline(weight, fat, rmr, 1.6)
+    intake = np.full(YEARS_15, base.intake0_kcal - 500.0)
+    w = simulate_hall(fat, weight - fat, intake, base).weight_kg
+    assert w[365] - weight == pytest.approx(one_year, abs=0.05)
+    assert w[-1] - weight == pytest.approx(steady, abs=0.05)
+    if half is not None:
+        assert days_to_fraction(w, 0.5) == pytest.approx(half, abs=2)
+    # leaner people lose more per kcal: 27 kcal/day per kg (man) vs 20.9 at F 35 kg
+    assert 18.0 <= 500.0 / (weight - w[-1]) <= 27.5
