@@ -266,15 +266,23 @@ def compare_html(n: int, root: Path) -> dict[str, object]:
     config = Config()
     roster = read_roster(book)
     rows = []
+    skipped: list[tuple[str, str]] = []
     for i, c in enumerate(roster.clients):
         t0, c0 = time.perf_counter(), time.process_time()
         rec = read_client(book, c, roster.phases.get(c.client_id, ()), MONTH_END)
-        a = analyse_client(rec, MONTH, config.analysis)
-        t1, c1 = time.perf_counter(), time.process_time()
-        rl = render_client_report(a, config), render_practitioner_summary(a, config)
-        t2, c2 = time.perf_counter(), time.process_time()
-        html = render_client_html_pdf(a, config), render_practitioner_html_pdf(a, config)
-        t3, c3 = time.perf_counter(), time.process_time()
+        if not rec.ok:
+            skipped.append((c.client_id, rec.errors[0].message))
+            continue
+        try:
+            a = analyse_client(rec, MONTH, config.analysis)
+            t1, c1 = time.perf_counter(), time.process_time()
+            rl = render_client_report(a, config), render_practitioner_summary(a, config)
+            t2, c2 = time.perf_counter(), time.process_time()
+            html = render_client_html_pdf(a, config), render_practitioner_html_pdf(a, config)
+            t3, c3 = time.perf_counter(), time.process_time()
+        except Exception as exc:  # a client one route cannot render is left out of the ratio
+            skipped.append((c.client_id, f"{type(exc).__name__}: {exc}"))
+            continue
         if i == 0:
             continue  # warm-up: imports, fonts, template compilation
         rows.append(
@@ -289,6 +297,8 @@ def compare_html(n: int, root: Path) -> dict[str, object]:
                 "html_kb": sum(len(x) for x in html) / 1024,
             }
         )
+    if not rows:
+        return {"clients": 0, "skipped": skipped}
     rl_s = sum(r["reportlab_s"] for r in rows)
     html_s = sum(r["html_s"] for r in rows)
     ra_s = sum(r["read_analyse_s"] for r in rows)
@@ -297,6 +307,7 @@ def compare_html(n: int, root: Path) -> dict[str, object]:
     ra_cpu = sum(r["read_analyse_cpu_s"] for r in rows)
     return {
         "clients": len(rows),
+        "skipped": skipped,
         "reportlab_cpu_s_per_client": rl_cpu / len(rows),
         "html_cpu_s_per_client": html_cpu / len(rows),
         "render_cpu_ratio": html_cpu / rl_cpu,
@@ -360,6 +371,10 @@ def _print_sizes(rows: list[dict[str, object]], workers: int) -> None:
 
 def _print_compare(c: dict[str, object]) -> None:
     print(f"\nSame content, two routes, serial in one process ({c['clients']} clients)")
+    for cid, why in c["skipped"]:  # type: ignore[attr-defined]
+        print(f"  left out {cid}: {why}")
+    if not c["clients"]:
+        return
     print(
         f"  reportlab route (product): {c['reportlab_s_per_client']:.3f} s/client, "
         f"{c['reportlab_kb']:.0f} KiB\n"

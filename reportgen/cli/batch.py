@@ -107,7 +107,10 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
 @click.option(
     "--scheduler",
     metavar="ADDRESS",
-    help="Send the per-client tasks to a Dask distributed scheduler (needs reportgen[cluster]).",
+    help=(
+        "Send the per-client tasks to a Dask distributed scheduler (needs reportgen[cluster]); "
+        "its workers must see BOOK and OUT at the same paths (a shared file system)."
+    ),
 )
 def batch_command(
     book: Path,
