@@ -250,13 +250,14 @@ def _y_ticks(ax: Axes, lo: float, hi: float, n: int = 4, min_span: float = 0.0) 
         lo, hi = mid - half, mid + half
     raw = (hi - lo) / n
     mag = 10 ** np.floor(np.log10(raw))
-    step = min((s * mag for s in (1, 2, 2.5, 5, 10) if s * mag >= raw), default=10 * mag)
+    step = min((s * mag for s in (1, 2, 5, 10) if s * mag >= raw), default=10 * mag)
     first = np.floor(lo / step) * step
     ticks = np.arange(first, hi + step * 0.999, step)
     pad = (hi - lo) * 0.06
     ax.set_ylim(min(lo - pad, ticks[0]), max(hi + pad, ticks[-1]))
     ax.set_yticks(ticks)
-    dp = 0 if step >= 1 else (1 if step >= 0.1 else 2)
+    # enough decimals that every label is exact for a 1-2-5 step (0.5 -> 1 dp, 0.02 -> 2 dp)
+    dp = max(0, -int(np.floor(np.log10(step) + 1e-9)))
     # ASCII hyphen-minus: a U+2212 would make matplotlib embed a second font subset
     ax.set_yticklabels([f"{t:,.{dp}f}" for t in ticks])
 
@@ -271,12 +272,13 @@ def _shade_phases(ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *,
             continue
         ax.axvspan(a - 0.5, b + 0.5, color=T.PHASE_FILLS[i % 2], lw=0, zorder=0)
         if names:
-            # fit the name inside its band (about 0.6 em per character at 5.8 pt)
-            room = int(((b - a + 1) / max(x1 - x0 + 1, 1) * axes_pt - 4) / (5.8 * 0.6))
+            # fit the name inside its band (about 0.6 em per character at 5.8 pt), 2 pt in
+            day_pt = axes_pt / max(x1 - x0 + 1, 1)
+            room = int(((b - a + 1) * day_pt - 4) / (5.8 * 0.6))
             if room >= 4:
                 name = p.name if len(p.name) <= room else p.name[: room - 1] + "…"
                 ax.text(
-                    a + 1,
+                    a - 0.5 + 2 / day_pt,
                     0.97,
                     name,
                     transform=ax.get_xaxis_transform(),
@@ -490,7 +492,7 @@ def signals_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -
                 )
                 lo, hi = min(lo, base), max(hi, base)
             if name == "steps":
-                _y_ticks(ax, lo, hi, n=3)
+                _y_ticks(ax, lo, hi, n=3, min_span=2000.0)
             else:
                 r0, r1 = RATING
                 ax.set_ylim(r0 - 0.6, r1 + 0.6)
