@@ -135,3 +135,16 @@ def test_skinfold_rows_after_the_month_are_not_judged(tmp_path: Path) -> None:
     assert [s.date for s in rec.skinfolds] == [dt.date(2026, 10, 1)]
     find_problem(rec.problems, "future-date", match=r"date 2026-12-24 is after today", row=4)
     assert len(rec.problems) == 1
+
+
+def test_header_only_skinfolds_sheet_does_not_clash_with_the_csv(tmp_path: Path) -> None:
+    book = write_book(
+        tmp_path / "book", logs={}, skinfolds={"c001.csv": "date,chest\n2026-10-01,10\n"}
+    )
+    write_xlsx(
+        book / "logs" / "c001.xlsx",
+        {"daily": daily_rows(), "skinfolds": [["date", "chest", "thigh"]]},
+    )
+    rec = read_book_client(book)
+    assert rec.problems == ()
+    assert [s.sites_mm for s in rec.skinfolds] == [{"chest": 10.0}]

@@ -242,6 +242,8 @@ def read_client(
         problems += more
         if table is not None:
             skin_tables.append(table)
+    if len(skin_tables) > 1:  # a header-only sheet (as a template leaves it) is no source
+        skin_tables = [t for t in skin_tables if t.rows] or skin_tables[:1]
     if len(skin_tables) > 1:
         problems.append(
             _client_problem(
