@@ -20,6 +20,33 @@ MONTH = "2026-11"
 FAILING_CLIENT = (
     "c007"  # the sample client with a deliberate error (sample_inputs/EXPECTED_PROBLEMS.md)
 )
+
+
+def expected_problems() -> list[tuple[str, str, int | None, str]]:
+    """(severity, file, row, column) of the sample's deliberate problems, from its own list."""
+    out = []
+    for line in (SAMPLE_BOOK / "EXPECTED_PROBLEMS.md").read_text(encoding="utf-8").splitlines():
+        cells = [c.strip() for c in line.strip().strip("|").split("|")]
+        if len(cells) >= 5 and cells[0] in ("error", "warning"):
+            out.append((cells[0], cells[2], int(cells[3]) if cells[3] else None, cells[4]))
+    return out
+
+
+def failing_value() -> str:
+    """The bad cell's text as the failing client's log holds it."""
+    for line in (SAMPLE_BOOK / "EXPECTED_PROBLEMS.md").read_text(encoding="utf-8").splitlines():
+        cells = [c.strip() for c in line.strip().strip("|").split("|")]
+        if cells and cells[0] == "error":
+            return cells[5].strip("`")
+    raise AssertionError("the sample lists no error")
+
+
+def failing_location() -> str:
+    """``file:row:column`` of the failing client's one error."""
+    (err,) = [p for p in expected_problems() if p[0] == "error"]
+    return f"{err[1]}:{err[2]}:{err[3]}"
+
+
 # Launches the batch command in a fresh interpreter (used by the kill-and-rerun test).
 CLI_LAUNCH = [
     sys.executable,
