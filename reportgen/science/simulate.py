@@ -65,6 +65,8 @@ class SimulatedClient:
     month: str
     weight_true_kg: FloatArray  # body mass without water or noise, on the log's grid
     fat_true_kg: FloatArray
+    lean_true_kg: FloatArray
+    glycogen_true_kg: FloatArray  # glycogen-with-water shift (part of weight_true_kg)
     expenditure_true_kcal: FloatArray
     intake_true_kcal: FloatArray
     at_true_kcal: FloatArray
@@ -336,6 +338,8 @@ def simulate_client(
         month=f"{month_end.year:04d}-{month_end.month:02d}",
         weight_true_kg=bw,
         fat_true_kg=fat,
+        lean_true_kg=path.lean_kg[:-1],
+        glycogen_true_kg=glyco[:-1],
         expenditure_true_kcal=ee,
         intake_true_kcal=intake_true,
         at_true_kcal=at,
