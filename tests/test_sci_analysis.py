@@ -301,3 +301,33 @@ def test_phase_before_the_log_has_no_data_and_does_not_borrow_any() -> None:
     assert old.status == "too-few-days" and not old.realised_deficit_kcal.known
     assert old.trend_start_kg is None
     assert new.weight_days == 30 and new.observed_tdee_kcal.known
+
+
+def test_sample_book_clients_analyse() -> None:
+    """Integration with the io readers on the shipped sample book (invented clients)."""
+    from pathlib import Path
+
+    from reportgen.io.book import month_end_of, read_client, read_roster
+
+    book = Path(__file__).resolve().parent.parent / "sample_inputs"
+    roster = read_roster(book)
+    done = 0
+    for client in roster.clients:
+        rec = read_client(
+            book, client, roster.phases.get(client.client_id, ()), month_end_of("2026-11")
+        )
+        if not rec.ok:
+            continue
+        a = analyse_client(rec, "2026-11", SETTINGS)
+        assert a.current_weight_kg.known and a.trend is not None
+        assert len(a.phases) == len(rec.phases)
+        for p in a.phases:
+            if p.observed_tdee_kcal.known:
+                assert 1000 < p.observed_tdee_kcal.value < 4500  # type: ignore[operator]
+                # the chain identity holds on real readers' output too
+                assert p.observed_tdee_kcal.value == pytest.approx(
+                    p.mean_intake_kcal + p.realised_deficit_kcal.value,
+                    abs=1e-9,  # type: ignore[operator]
+                )
+        done += 1
+    assert done >= 8
