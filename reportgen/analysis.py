@@ -355,17 +355,20 @@ def _gaps(log: DailyLog) -> tuple[tuple[dt.date, dt.date], ...]:
 
 
 def _weekly_rates_pct(fit: TrendFit | None, n: int) -> tuple[float, ...]:
-    """Trend rate of each of the last full weeks, oldest first [% of body weight/week]."""
+    """Trend rate at the end of each of the last weeks, oldest first [% of body weight/week].
+
+    The smoothed slope (7 x kg/day over the level) rather than a difference of
+    levels a week apart, so that a water swing does not pass for a week of rapid
+    loss.
+    """
     if fit is None:
         return ()
     out = []
     for k in range(FLAG_RATE_WEEKS, 0, -1):
         end = n - 1 - 7 * (k - 1)
-        start = end - 7
-        if start < 0:
+        if end - 6 < 0:
             continue
-        lvl = fit.level_kg
-        out.append(100.0 * (lvl[end] - lvl[start]) / lvl[start])
+        out.append(700.0 * fit.slope_kg_per_day[end] / fit.level_kg[end])
     return tuple(float(x) for x in out)
 
 

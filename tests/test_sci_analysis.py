@@ -331,3 +331,21 @@ def test_sample_book_clients_analyse() -> None:
                 )
         done += 1
     assert done >= 8
+
+
+def test_rapid_loss_flag_from_the_trend() -> None:
+    """Loss of 1.5 %/week for 4 weeks raises rapid-loss (Helms 2014 threshold 1 %/week,
+    published; the rule is A's flags module); 0.5 %/week does not."""
+    import dataclasses as dc
+
+    def with_rate(pct: float) -> ClientRecord:
+        rec = short_record(42, start=dt.date(2026, 10, 20))
+        t = np.arange(rec.log.n_days)
+        w = 80.0 * (1 - pct / 100 / 7) ** t + np.random.default_rng(0).normal(0, 0.3, t.size)
+        return dc.replace(rec, log=dc.replace(rec.log, weight_kg=w))
+
+    fast = analyse_client(with_rate(1.5), "2026-11", SETTINGS)
+    slow = analyse_client(with_rate(0.5), "2026-11", SETTINGS)
+    assert "rapid-loss" in {f.code for f in fast.flags}
+    assert "rapid-loss" not in {f.code for f in slow.flags}
+    assert fast.weekly_rate_pct.value == pytest.approx(-1.5, abs=0.3)
