@@ -382,3 +382,21 @@ def test_special_handling_shows_no_deficit_figures_and_an_urgent_flag(
     assert "no deficit, expenditure or projection figures are worked out" in pages[0]
     assert "No projection is made for this client" in " ".join(pages)
     assert f"Act now: {flag}." in pages[-1]
+
+
+def test_chart_text_outside_latin_falls_back_to_the_wide_font() -> None:
+    import pikepdf
+
+    from reportgen.report.charts import weight_chart
+    from reportgen.report.client import chart_context
+    from reportgen.report.wording import Wording
+
+    a = sample_analysis("c001")
+    greek = dataclasses.replace(a.phases[-1], name="Φάση δύο")
+    a = dataclasses.replace(a, phases=(*a.phases[:-1], greek))
+    labels = Wording(CONFIG, "report/client.j2").labels["chart"]
+    chart = weight_chart(a, chart_context(a, CONFIG, 174, labels))
+    assert chart is not None
+    with pikepdf.open(io.BytesIO(chart)) as pdf:
+        fonts = sorted(str(f.BaseFont)[8:] for _, f in pdf.pages[0].Resources.Font.items())
+    assert fonts == ["ReportgenChartLatin", "ReportgenChartSans"]

@@ -39,53 +39,8 @@ MM = 1 / 25.4  # inches per mm
 PT = 72.0
 
 
-CHART_FONT_FAMILY = "Reportgen Chart Sans"
-
-
-def _chart_font_file() -> Path:
-    """A reduced copy of DejaVu Sans for charts, renamed, cached on disk.
-
-    matplotlib subsets the font for every chart PDF (Type 42 embedding), and fontTools spent
-    about two thirds of all chart time decompiling DejaVu's large GPOS/GSUB tables (which
-    matplotlib never uses: it kerns from the ``kern`` table) and its 6,000-glyph tables.  A
-    copy without layout tables and limited to the scripts above subsets several times faster,
-    with identical outlines and metrics.  Modified copies must carry another name (Bitstream
-    Vera licence), hence the family name.
-    """
-    src = font_path()
-    recipe = f"{src}:{src.stat().st_size}:{FONT_TABLES_DROPPED}:{CHART_FONT_RANGES}"
-    stamp = hashlib.sha256(recipe.encode())
-    folder = (
-        Path(tempfile.gettempdir()) / f"reportgen-{os.getuid() if hasattr(os, 'getuid') else 0}"
-    )
-    target = folder / f"chart-sans-{stamp.hexdigest()[:16]}.ttf"
-    if target.is_file():
-        return target
-    from fontTools import subset
-
-    options = subset.Options()
-    options.layout_features = []
-    options.drop_tables += list(FONT_TABLES_DROPPED)
-    options.name_IDs = ["*"]
-    options.notdef_outline = True
-    options.glyph_names = True  # keep post format 2: matplotlib's own subsetting is faster
-    font = subset.load_font(str(src), options)
-    subsetter = subset.Subsetter(options=options)
-    subsetter.populate(unicodes=[c for lo, hi in CHART_FONT_RANGES for c in range(lo, hi + 1)])
-    subsetter.subset(font)
-    for rec in font["name"].names:
-        if rec.nameID in (1, 4, 16):
-            rec.string = CHART_FONT_FAMILY
-        elif rec.nameID == 6:
-            rec.string = CHART_FONT_FAMILY.replace(" ", "")
-    folder.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
-    with os.fdopen(fd, "wb") as fh:
-        font.save(fh)
-    os.replace(tmp, target)  # atomic: concurrent workers never see half a file
-    return target
-
-
+CHART_FONT_FAMILY = "Reportgen Chart Sans"  # wide coverage, the fallback
+CHART_FONT_LATIN = "Reportgen Chart Latin"  # what chart text almost always needs
 FONT_TABLES_DROPPED = ("GPOS", "GSUB", "GDEF", "MATH", "FFTM")
 # Scripts kept for chart text (labels from templates, phase names from the book): Latin with
 # all extensions (incl. Vietnamese), Greek, Cyrillic, punctuation, the euro and minus signs.
@@ -99,18 +54,74 @@ CHART_FONT_RANGES = (
     (0x20AC, 0x20AC),  # euro sign
     (0x2212, 0x2212),  # minus sign
 )
+# The first choice: 370 glyphs instead of about 1,500, so each chart's font subset is quicker
+# to make; matplotlib falls back glyph by glyph to the wide font for anything else.
+CHART_FONT_LATIN_RANGES = (
+    (0x0020, 0x007E),  # Basic Latin
+    (0x00A0, 0x017F),  # Latin-1 Supplement, Latin Extended-A
+    (0x2010, 0x2027),  # dashes, quotes, bullet, ellipsis
+    (0x20AC, 0x20AC),
+    (0x2212, 0x2212),
+)
+
+
+def _chart_font_file(family: str, ranges: tuple[tuple[int, int], ...]) -> Path:
+    """A reduced copy of DejaVu Sans for charts, renamed, cached on disk.
+
+    matplotlib subsets the font for every chart PDF (Type 42 embedding), and fontTools spent
+    about two thirds of all chart time decompiling DejaVu's large GPOS/GSUB tables (which
+    matplotlib never uses: it kerns from the ``kern`` table) and its 6,000-glyph tables.  A
+    copy without layout tables and limited to the scripts needed subsets several times
+    faster, with identical outlines and metrics.  Modified copies must carry another name
+    (Bitstream Vera licence), hence the family names.
+    """
+    src = font_path()
+    recipe = f"{src}:{src.stat().st_size}:{FONT_TABLES_DROPPED}:{family}:{ranges}"
+    stamp = hashlib.sha256(recipe.encode())
+    folder = (
+        Path(tempfile.gettempdir()) / f"reportgen-{os.getuid() if hasattr(os, 'getuid') else 0}"
+    )
+    target = folder / f"chart-font-{stamp.hexdigest()[:16]}.ttf"
+    if target.is_file():
+        return target
+    from fontTools import subset
+
+    options = subset.Options()
+    options.layout_features = []
+    options.drop_tables += list(FONT_TABLES_DROPPED)
+    options.name_IDs = ["*"]
+    options.notdef_outline = True
+    options.glyph_names = True  # keep post format 2: matplotlib's own subsetting is faster
+    font = subset.load_font(str(src), options)
+    subsetter = subset.Subsetter(options=options)
+    subsetter.populate(unicodes=[c for lo, hi in ranges for c in range(lo, hi + 1)])
+    subsetter.subset(font)
+    for rec in font["name"].names:
+        if rec.nameID in (1, 4, 16):
+            rec.string = family
+        elif rec.nameID == 6:
+            rec.string = family.replace(" ", "")
+    folder.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
+    with os.fdopen(fd, "wb") as fh:
+        font.save(fh)
+    os.replace(tmp, target)  # atomic: concurrent workers never see half a file
+    return target
 
 
 @cache
 def _setup() -> None:
     from matplotlib import font_manager
 
-    font_manager.fontManager.addfont(str(_chart_font_file()))
+    font_manager.fontManager.addfont(
+        str(_chart_font_file(CHART_FONT_LATIN, CHART_FONT_LATIN_RANGES))
+    )
+    font_manager.fontManager.addfont(str(_chart_font_file(CHART_FONT_FAMILY, CHART_FONT_RANGES)))
     matplotlib.rcParams.update(
         {
             "pdf.fonttype": 42,
             "pdf.compression": 6,
-            "font.family": CHART_FONT_FAMILY,
+            "font.family": [CHART_FONT_LATIN, CHART_FONT_FAMILY],
             "font.size": 6.5,
             "axes.linewidth": 0.5,
             "axes.edgecolor": T.MUTED,

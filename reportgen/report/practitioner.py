@@ -54,7 +54,7 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
         ("bmi", u.number(a.bmi, 1) if a.bmi is not None else DASH),
         (
             "period",
-            u.span(_first_day(a) or a.as_of, a.as_of) + f" ({a.quality.days_in_period} days)",
+            u.span(_first_day(a) or a.as_of, a.as_of) + f" ({a.log.n_days} days)",
         ),
         ("month", vm.month),
         (
@@ -299,7 +299,7 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
             ]
             for p in sv.phases
         ]
-        fr = [0.14, 0.11, 0.18, 0.05, 0.07, 0.07, 0.07, 0.07, 0.07, 0.06, 0.11]
+        fr = [0.14, 0.1, 0.17, 0.05, 0.07, 0.07, 0.07, 0.07, 0.07, 0.05, 0.14]
         body.append(
             data_table(
                 [esc(c) for c in pcols],
