@@ -88,3 +88,35 @@ def test_killed_run_leaves_complete_files_and_rerun_completes(
     r = run_cli([*args, "--quiet"])
     assert r.exit_code == 1  # c007's deliberate error, as in the reference run
     assert reference_run.files() == {p.name: p.read_bytes() for p in month_dir.iterdir()}
+
+
+@pytest.mark.skipif(not Path("/proc/self/stat").exists(), reason="needs /proc (Linux)")
+def test_a_worker_killed_mid_run_costs_no_client(
+    reference_run: ReferenceRun, tmp_path: Path
+) -> None:
+    # As when the out-of-memory killer takes one worker: the pool breaks, the tasks that were
+    # in flight are retried one by one in a fresh worker, the rest go on in a new pool.
+    out = tmp_path / "out"
+    month_dir = out / MONTH
+    args = [str(reference_run.book), "--month", MONTH, "--out", str(out), "--workers", "2"]
+    proc = subprocess.Popen(
+        [*CLI_LAUNCH, *args, "--quiet"],
+        stdout=subprocess.DEVNULL,
+        stderr=subprocess.DEVNULL,
+        env=dict(os.environ, MPLBACKEND="Agg"),
+    )
+    try:
+        deadline = time.monotonic() + 90
+        while not (month_dir.is_dir() and any(month_dir.glob("c*.pdf"))):
+            assert proc.poll() is None, "the batch ended before a worker could be killed"
+            assert time.monotonic() < deadline, "no PDF appeared"
+            time.sleep(0.02)
+        workers = _children(proc.pid)
+        assert len(workers) == 2
+        os.kill(workers[0], signal.SIGKILL)
+        assert proc.wait(timeout=120) == 1  # c007's deliberate error only
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+            proc.wait()
+    assert {p.name: p.read_bytes() for p in month_dir.iterdir()} == reference_run.files()
