@@ -400,3 +400,14 @@ def test_chart_text_outside_latin_falls_back_to_the_wide_font() -> None:
     with pikepdf.open(io.BytesIO(chart)) as pdf:
         fonts = sorted(str(f.BaseFont)[8:] for _, f in pdf.pages[0].Resources.Font.items())
     assert fonts == ["ReportgenChartLatin", "ReportgenChartSans"]
+
+
+def test_the_chart_fonts_are_made_byte_identically_wherever_they_are_made(tmp_path: Path) -> None:
+    import time
+
+    from reportgen.report.charts import CHART_FONT_LATIN, CHART_FONT_LATIN_RANGES, _chart_font_file
+
+    first = _chart_font_file(CHART_FONT_LATIN, CHART_FONT_LATIN_RANGES, tmp_path / "a")
+    time.sleep(1.1)  # a save-time timestamp would show up as a difference
+    second = _chart_font_file(CHART_FONT_LATIN, CHART_FONT_LATIN_RANGES, tmp_path / "b")
+    assert first.read_bytes() == second.read_bytes()

@@ -65,7 +65,9 @@ CHART_FONT_LATIN_RANGES = (
 )
 
 
-def _chart_font_file(family: str, ranges: tuple[tuple[int, int], ...]) -> Path:
+def _chart_font_file(
+    family: str, ranges: tuple[tuple[int, int], ...], folder: Path | None = None
+) -> Path:
     """A reduced copy of DejaVu Sans for charts, renamed, cached on disk.
 
     matplotlib subsets the font for every chart PDF (Type 42 embedding), and fontTools spent
@@ -76,11 +78,11 @@ def _chart_font_file(family: str, ranges: tuple[tuple[int, int], ...]) -> Path:
     (Bitstream Vera licence), hence the family names.
     """
     src = font_path()
-    recipe = f"{src}:{src.stat().st_size}:{FONT_TABLES_DROPPED}:{family}:{ranges}"
+    recipe = f"v2:{src}:{src.stat().st_size}:{FONT_TABLES_DROPPED}:{family}:{ranges}"
     stamp = hashlib.sha256(recipe.encode())
-    folder = (
-        Path(tempfile.gettempdir()) / f"reportgen-{os.getuid() if hasattr(os, 'getuid') else 0}"
-    )
+    if folder is None:
+        uid = os.getuid() if hasattr(os, "getuid") else 0
+        folder = Path(tempfile.gettempdir()) / f"reportgen-{uid}"
     target = folder / f"chart-font-{stamp.hexdigest()[:16]}.ttf"
     if target.is_file():
         return target
@@ -101,6 +103,9 @@ def _chart_font_file(family: str, ranges: tuple[tuple[int, int], ...]) -> Path:
             rec.string = family
         elif rec.nameID == 6:
             rec.string = family.replace(" ", "")
+    # keep DejaVu's own head.modified: a save-time timestamp would make the embedded subsets,
+    # and so every PDF, differ between machines or after the cache is cleared
+    font.recalcTimestamp = False
     folder.mkdir(parents=True, exist_ok=True)
     fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
     with os.fdopen(fd, "wb") as fh:

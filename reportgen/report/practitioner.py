@@ -266,7 +266,7 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
     if special:
         body.append(Spacer(1, 1.5 * mm))
         body.append(Paragraph(special, theme["cell_bold"]))
-    body.append(Spacer(1, 3 * mm))
+    body.append(Spacer(1, 2 * mm))
     rl = L["rows"]
     rows = [[esc(rl[k]), esc(v), esc(i), esc(m)] for k, v, i, m in sv.rows]
     body.append(
@@ -280,7 +280,7 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
             dense=True,
         )
     )
-    body.append(Spacer(1, 3 * mm))
+    body.append(Spacer(1, 2 * mm))
     if sv.phases:
         pcols = L["phase_cols"]
         prow = [
@@ -311,7 +311,7 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
                 dense=True,
             )
         )
-        body.append(Spacer(1, 3 * mm))
+        body.append(Spacer(1, 2 * mm))
     body.append(
         Paragraph(
             f"<b>{esc(L['flags'])}.</b> "
@@ -323,18 +323,18 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
             theme["cell"],
         )
     )
-    body.append(Spacer(1, 1.5 * mm))
+    body.append(Spacer(1, 1 * mm))
     body.append(
         Paragraph(f"<b>{esc(L['quality'])}.</b> " + words.text("quality_line", sv), theme["cell"])
     )
-    body.append(Spacer(1, 1.5 * mm))
+    body.append(Spacer(1, 1 * mm))
     if sv.methods:
         refs = " ".join(
             f"[{n}] " + words.text("reference_line", m) for n, m in enumerate(sv.methods, 1)
         )
         body.append(Paragraph(f"<b>{esc(L['references'])}.</b> {refs}", theme["fine"]))
     body.append(Paragraph(words.text("footnote", sv), theme["fine"]))
-    body.append(Spacer(1, 2 * mm))
+    body.append(Spacer(1, 1 * mm))
     sig = _signature(words, theme, width)
     frame_h = pagesize[1] - 2 * margin
     story: list[Flowable] = [
