@@ -35,7 +35,7 @@ from reportgen.science import expected as exp_
 from reportgen.science.composition import energy_density_kcal_per_kg, fat_and_lean_mass_kg
 from reportgen.science.flags import FlagInputs, safety_flags
 from reportgen.science.hall import project_weight
-from reportgen.science.rates import NoiseModel, fit_noise_model, segment_rate
+from reportgen.science.rates import NoiseModel, WindowRate, fit_noise_model, segment_rate
 from reportgen.science.resting import RESTING_METHODS, resting_kcal_all
 from reportgen.science.signals import summarise_signal
 from reportgen.science.skinfolds import estimate_body_fat, estimate_body_fat_from_bmi
@@ -260,6 +260,7 @@ class _Window:
     window_end: dt.date
     bal: bal.WindowBalance | None
     mean_weight_kg: float | None
+    rate: WindowRate | None = None  # also for special handling (trend only)
 
 
 def _phase_windows(
@@ -505,11 +506,12 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
     for ph, i0, i1, end in raw_windows:
         b = None
         mean_w = None
+        rate = None
         if fit is not None and i1 >= i0:
             mean_w = float(np.mean(fit.level_kg[i0 : i1 + 1]))
+            rate = segment_rate(weights_used, i0, i1, knots, fit.weights, noise)
             if not special:
                 fat0 = _fat_at(comp, float(fit.level_kg[i0]))
-                rate = segment_rate(weights_used, i0, i1, knots, fit.weights, noise)
                 b = bal.window_balance(
                     weights_used[i0 : i1 + 1],
                     log.intake_kcal[i0 : i1 + 1],
@@ -519,7 +521,7 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
                     noise,
                     rate,
                 )
-        windows.append(_Window(ph, i0, i1, end, b, mean_w))
+        windows.append(_Window(ph, i0, i1, end, b, mean_w, rate))
     baseline = None
     if fit is not None and not special:
         baseline = _baseline(windows, log, fit, comp, resting_at, noise, knots)
@@ -705,7 +707,12 @@ def _phase_result(
     b = w.bal
     if special:
         reason = "special-handling"
-        rate = rate_pct = Estimate.missing(reason)
+        # trend only: the rate of weight change, but no energy balance
+        if w.rate is not None and data_days >= MIN_ANALYSIS_DAYS:
+            rate = _est(7 * w.rate.rate_kg_per_day, 7 * w.rate.se_kg_per_day)
+            rate_pct = _scale(rate, 100.0 / (w.mean_weight_kg or 1.0))
+        else:
+            rate = rate_pct = Estimate.missing("too-few-days")
         deficit = tdee = expected = adapt_k = adapt_p = Estimate.missing(reason)
         expected_method = None
         depth = None

@@ -101,6 +101,7 @@ def test_minor_gets_special_handling() -> None:
     assert a.expenditure is None and a.projection is None
     assert all(p.status == "special-handling" for p in a.phases)
     assert all(p.realised_deficit_kcal.reason == "special-handling" for p in a.phases)
+    assert any(p.rate_kg_per_week.known for p in a.phases)  # the trend is still shown
     assert "minor" in {f.code for f in a.flags}
 
 
