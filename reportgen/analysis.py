@@ -310,7 +310,9 @@ def _baseline(
     """First maintenance phase before any deficit with a TDEE, else the first weeks of data."""
     resting = resting_at  # callable weight -> kcal or None
 
-    def make(b: bal.WindowBalance, mean_w: float, source: str) -> exp_.Baseline | None:
+    def make(
+        b: bal.WindowBalance, mean_w: float, source: str, start: dt.date | None = None
+    ) -> exp_.Baseline | None:
         if not b.tdee_kcal.known or b.tdee_se_kcal is None or b.mean_intake_kcal is None:
             return None
         r = resting(mean_w)  # type: ignore[operator]
@@ -322,7 +324,16 @@ def _baseline(
         lr = (b.lean_change_kg or 0.0) / days
         assert b.tdee_kcal.value is not None
         return exp_.Baseline(
-            b.tdee_kcal.value, b.tdee_se_kcal, mean_w, fat, b.mean_intake_kcal, r, fr, lr, source
+            b.tdee_kcal.value,
+            b.tdee_se_kcal,
+            mean_w,
+            fat,
+            b.mean_intake_kcal,
+            r,
+            fr,
+            lr,
+            source,
+            start,
         )
 
     first_deficit = min((w.phase.start for w in windows if w.phase.kind == "deficit"), default=None)
@@ -330,7 +341,7 @@ def _baseline(
         if first_deficit is not None and w.phase.start > first_deficit:
             break  # a baseline comes before the first deficit
         if w.phase.kind == "maintenance" and w.bal is not None and w.mean_weight_kg is not None:
-            got = make(w.bal, w.mean_weight_kg, "maintenance-phase")
+            got = make(w.bal, w.mean_weight_kg, "maintenance-phase", w.phase.start)
             if got is not None:
                 return got
     n = min(BASELINE_FIRST_WEEKS_DAYS, log.n_days)
@@ -729,7 +740,11 @@ def _phase_result(
         expected, expected_method = _expected(w, b, comp, baseline, resting_at, settings)
         a = exp_.adaptation(tdee, expected)
         adapt_k, adapt_p = a.kcal, a.pct
-        if a.implausible:
+        if baseline is not None and baseline.phase_start == ph.start:
+            # the reference itself: expected is its own observed TDEE by construction
+            adapt_k = adapt_p = Estimate.missing("baseline-phase")
+            notes.append("baseline-phase")
+        elif a.implausible:
             notes.append("implausible-adaptation")
         depth = exp_.deficit_depth_pct(deficit.value, expected.value)
         if data_days < MIN_ANALYSIS_DAYS:

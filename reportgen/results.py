@@ -30,6 +30,7 @@ REASON_CODES: tuple[str, ...] = (
     "no-observed",  # adaptation without an observed TDEE
     "no-expected",  # adaptation without an expected TDEE
     "no-data-in-month",  # no trend data inside the report month
+    "baseline-phase",  # adaptation of the baseline phase itself (it is the reference)
     "not-estimable",  # the computation gave no finite value
 )
 # PhaseResult.status:
@@ -39,6 +40,7 @@ PHASE_NOTE_CODES: tuple[str, ...] = (
     "early-phase-water-glycogen",  # under 21 days: glycogen and water dominate
     "expected-lower-confidence",  # expected TDEE from a resting equation x activity factor
     "baseline-first-weeks",  # baseline from the first weeks of data, not a maintenance phase
+    "baseline-phase",  # this phase is the baseline: expected TDEE = its observed TDEE
     "implausible-adaptation",  # |adaptation| > 20 % of expected: more likely logging/data
     "composition-change-from-skinfolds",  # fat/lean change from two skinfold sessions
     "composition-change-from-forbes",  # fat/lean change from the Forbes partition

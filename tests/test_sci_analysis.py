@@ -68,6 +68,11 @@ def test_chain_identities(sim_analysis: tuple[object, ClientAnalysis]) -> None:
         assert p.observed_tdee_kcal.value == pytest.approx(
             p.mean_intake_kcal + p.realised_deficit_kcal.value, abs=1e-9
         )
+        if "baseline-phase" in p.notes:
+            # the reference itself: expected = observed, no adaptation of its own
+            assert p.expected_tdee_kcal.value == pytest.approx(p.observed_tdee_kcal.value)
+            assert p.adaptation_kcal.reason == "baseline-phase"
+            continue
         assert p.adaptation_kcal.value == pytest.approx(
             p.observed_tdee_kcal.value - p.expected_tdee_kcal.value, abs=1e-9
         )

@@ -14,6 +14,7 @@ activity factor, which is much less certain and is labelled so.
 
 from __future__ import annotations
 
+import datetime as dt
 import math
 from dataclasses import dataclass
 
@@ -66,6 +67,7 @@ class Baseline:
     fat_rate_kg_per_day: float = 0.0
     lean_rate_kg_per_day: float = 0.0
     source: str = "maintenance-phase"  # or "first-weeks"
+    phase_start: dt.date | None = None  # start of the baseline phase, if it is one
 
     @property
     def lean_kg(self) -> float:
