@@ -1,4 +1,4 @@
-"""Shared test fixtures (kept small: each area keeps its own helpers in tests/_<area>_helpers.py)."""
+"""Shared test fixtures; each area keeps its own helpers in tests/_<area>_helpers.py."""
 
 from __future__ import annotations
 

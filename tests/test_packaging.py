@@ -11,7 +11,9 @@ REPO = Path(__file__).resolve().parent.parent
 
 
 def test_every_subpackage_is_listed_in_pyproject() -> None:
-    listed = set(tomllib.loads((REPO / "pyproject.toml").read_text())["tool"]["setuptools"]["packages"])
+    listed = set(
+        tomllib.loads((REPO / "pyproject.toml").read_text())["tool"]["setuptools"]["packages"]
+    )
     found = {
         ".".join(p.parent.relative_to(REPO).parts)
         for p in (REPO / "reportgen").rglob("__init__.py")
