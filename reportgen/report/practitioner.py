@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime as dt
+import time
 from dataclasses import dataclass
 
 from reportlab.lib import colors
@@ -13,6 +14,7 @@ from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate
 
 from . import theme as T
+from .client import Timing
 from .layout import data_table
 from .pdfbuild import Document, build, mark_heading
 from .theme import Theme, page_size, theme_for
@@ -245,8 +247,11 @@ def _signature(words: Wording, theme: Theme, width: float) -> Table:
     )
 
 
-def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> bytes:
-    """The one-page practitioner summary as PDF bytes."""
+def render_practitioner_summary(
+    analysis: ClientAnalysis, config: Config, *, timing: Timing | None = None
+) -> bytes:
+    """The one-page practitioner summary as PDF bytes (no charts: all of it is layout)."""
+    t0 = time.perf_counter()
     theme = theme_for(config.report.accent_colour)
     words = Wording(config, "report/practitioner.j2")
     sv = summary_view(analysis, config, words)
@@ -359,4 +364,7 @@ def render_practitioner_summary(analysis: ClientAnalysis, config: Config) -> byt
         page_label=lambda n: f"{L['page']} {n} {L['of']}",
         margin=margin,
     )
-    return build(story, doc, theme)
+    data = build(story, doc, theme)
+    if timing is not None:
+        timing.layout_s += time.perf_counter() - t0
+    return data
