@@ -76,6 +76,14 @@ def practitioner_name(client_id: str) -> str:
     return f"{client_id}-practitioner.pdf"
 
 
+def usable_cores() -> int:
+    """Cores this process may run on (CPU affinity / container limits), at least 1."""
+    try:
+        return max(len(os.sched_getaffinity(0)), 1)
+    except (AttributeError, OSError):  # pragma: no cover - not Linux
+        return os.cpu_count() or 1
+
+
 def parse_month(month: str) -> dt.date:
     """Last day of a ``YYYY-MM`` month; :class:`BatchUsageError` for anything else."""
     if not _MONTH.match(month):
@@ -539,7 +547,7 @@ def run_batch(
     parse_month(month)
     config = config if config is not None else Config()
     book_dir = Path(book_dir).resolve()
-    workers = workers if workers is not None else (os.cpu_count() or 1)
+    workers = workers if workers is not None else usable_cores()
     if workers < 1:
         raise BatchUsageError("--workers must be at least 1")
 
