@@ -159,14 +159,51 @@ def rms(x: list[float]) -> float:
     return float(math.sqrt(np.mean(np.square(x)))) if x else math.nan
 
 
-def run(n_clients: int, seed: int, min_weeks: int) -> Scores:
+def run(n_clients: int, seed: int, min_weeks: int, maintenance_first: bool = True) -> Scores:
+    """Score ``n_clients`` simulated clients.
+
+    With ``maintenance_first`` False the clients have no maintenance phase: the log
+    starts 0-7 days before the first deficit (days that belong to no phase), so the
+    expected TDEE comes from the first weeks of data, glycogen loss and all.
+    """
     rng = np.random.default_rng(seed)
+    lead = np.random.default_rng([seed, 1])
     s = Scores()
     settings = AnalysisSettings()
     for i in range(n_clients):
-        sim = simulate_client(rng, f"b{i:04d}", future_days=84)
+        if maintenance_first:
+            sim = simulate_client(rng, f"b{i:04d}", future_days=84)
+        else:
+            sim = simulate_client(
+                rng,
+                f"n{i:04d}",
+                future_days=84,
+                maintenance_first=False,
+                lead_in_days=int(lead.integers(0, 8)),
+            )
         score_client(sim, s, 7 * min_weeks, settings)
     return s
+
+
+def short_table(s: Scores) -> str:
+    """Expenditure and adaptation rows only (the clients without a maintenance baseline)."""
+    rows = [
+        ("realised deficit RMSE [kcal/d]", rms(s.deficit_err)),
+        ("  80 % interval coverage", float(np.mean(s.deficit_cover))),
+        ("expenditure RMSE, honest logs [kcal/d]", rms(s.tdee_err)),
+        ("  80 % interval coverage", float(np.mean(s.tdee_cover))),
+        ("adaptation RMSE, honest logs [kcal/d]", rms(s.adapt_err)),
+        ("  mean error (bias) [kcal/d]", float(np.mean(s.adapt_err))),
+        ("  80 % interval coverage", float(np.mean(s.adapt_cover))),
+        ("adaptation RMSE, all logs [kcal/d]", rms(s.adapt_all_err)),
+        ("  mean error (bias) [kcal/d]", float(np.mean(s.adapt_all_err))),
+    ]
+    out = [f"{name:44s} {v:10.3f}" for name, v in rows]
+    out.append(
+        f"phases scored: deficit {len(s.deficit_err)}, expenditure {len(s.tdee_err)}, "
+        f"adaptation {len(s.adapt_err)}"
+    )
+    return "\n".join(out)
 
 
 def table(s: Scores) -> str:
@@ -252,10 +289,24 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--clients", type=int, default=200)
     ap.add_argument("--seed", type=int, default=1)
     ap.add_argument("--min-weeks", type=int, default=4)
+    ap.add_argument(
+        "--no-baseline-clients",
+        type=int,
+        default=100,
+        help="also score this many clients without a maintenance phase",
+    )
     args = ap.parse_args(argv)
     s = run(args.clients, args.seed, args.min_weeks)
     print(f"{args.clients} simulated clients, seed {args.seed}, phases >= {args.min_weeks} weeks")
     print(table(s))
+    if args.no_baseline_clients > 0:
+        nb = run(args.no_baseline_clients, args.seed, args.min_weeks, maintenance_first=False)
+        print()
+        print(
+            f"{args.no_baseline_clients} clients without a maintenance phase "
+            "(baseline from the first weeks of a deficit)"
+        )
+        print(short_table(nb))
     return 0
 
 

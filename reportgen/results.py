@@ -31,13 +31,15 @@ REASON_CODES: tuple[str, ...] = (
     "no-expected",  # adaptation without an expected TDEE
     "no-data-in-month",  # no trend data inside the report month
     "baseline-phase",  # adaptation of the baseline phase itself (it is the reference)
+    "early-phase",  # under 14 usable days after the first 7 of a phase that changed intake
     "not-estimable",  # the computation gave no finite value
 )
 # PhaseResult.status:
 PHASE_STATUSES: tuple[str, ...] = ("ok", "running", "too-few-days", "special-handling")
 # PhaseResult.notes:
 PHASE_NOTE_CODES: tuple[str, ...] = (
-    "early-phase-water-glycogen",  # under 21 days: glycogen and water dominate
+    "early-phase-water-glycogen",  # under 21 days: glycogen and water dominate (deficit and
+    # rate shown; no observed TDEE or adaptation when the phase changed intake)
     "expected-lower-confidence",  # expected TDEE from a resting equation x activity factor
     "baseline-first-weeks",  # baseline from the first weeks of data, not a maintenance phase
     "baseline-phase",  # this phase is the baseline: expected TDEE = its observed TDEE

@@ -69,8 +69,13 @@ def test_chain_identities(sim_analysis: tuple[object, ClientAnalysis]) -> None:
             p.mean_intake_kcal + p.realised_deficit_kcal.value, abs=1e-9
         )
         if "baseline-phase" in p.notes:
-            # the reference itself: expected = observed, no adaptation of its own
-            assert p.expected_tdee_kcal.value == pytest.approx(p.observed_tdee_kcal.value)
+            # the reference itself, no adaptation of its own; its expected TDEE is the
+            # mean intake plus the realised deficit pulled towards the planned balance
+            # (conjugate-normal update, expected.maintenance_deficit_posterior), so it
+            # lies between the mean intake and the observed TDEE
+            e = p.expected_tdee_kcal.value
+            lo_, hi_ = sorted((p.mean_intake_kcal, p.observed_tdee_kcal.value))
+            assert lo_ - 1e-9 <= e <= hi_ + 1e-9
             assert p.adaptation_kcal.reason == "baseline-phase"
             continue
         assert p.adaptation_kcal.value == pytest.approx(
@@ -83,7 +88,7 @@ def test_chain_identities(sim_analysis: tuple[object, ClientAnalysis]) -> None:
             assert e.low is not None and e.high is not None
             assert e.low <= e.value <= e.high
         checked += 1
-    assert checked >= 3
+    assert checked >= 2  # the two cuts (the 14-day break has no TDEE: early-phase)
 
 
 def test_days_in_deficit_counts_consecutive_deficit_phases(

@@ -54,6 +54,51 @@ IMPLAUSIBLE_ADAPTATION_PCT = 20.0
 FALLBACK_REL_SD = 0.15
 
 
+# A maintenance phase is planned as energy balance, but clients are seldom exactly in balance:
+# prior SD of the true deficit during a planned maintenance phase (judgment, common practice:
+# a plan at maintenance lands within about +/- 250 kcal/day for most clients).
+MAINTENANCE_BALANCE_PRIOR_SD_KCAL = 250.0
+
+
+def maintenance_deficit_posterior(
+    deficit_kcal: float,
+    deficit_se_kcal: float,
+    prior_sd_kcal: float = MAINTENANCE_BALANCE_PRIOR_SD_KCAL,
+) -> tuple[float, float, float]:
+    """Realised deficit of a planned maintenance phase, combined with the plan's balance.
+
+    Parameters
+    ----------
+    deficit_kcal, deficit_se_kcal : float
+        Realised deficit measured from the weight trend and its standard error. [kcal/day]
+    prior_sd_kcal : float, default 250
+        SD of the true deficit of a planned maintenance phase, centred on zero
+        (judgment). [kcal/day]
+
+    Returns
+    -------
+    tuple of float
+        (posterior mean [kcal/day], posterior SD [kcal/day], shrinkage factor k
+        [unitless]) with k = prior^2 / (prior^2 + SE^2): the normal-normal
+        conjugate posterior.
+
+    Notes
+    -----
+    A three-week weight trend is noisy (water swings persist for days), so a
+    measured "deficit" of a few hundred kcal/day in a maintenance phase is often
+    water.  The plan itself is evidence that the client was near balance; the
+    posterior weighs the two by their precisions, so a clear imbalance (small SE)
+    is kept almost whole and a noisy one is pulled towards zero, and the
+    posterior SD is never larger than either.  Standard Bayesian updating
+    (e.g. Gelman et al., Bayesian Data Analysis, 3rd ed., 2013, §2.5).
+    """
+    if deficit_se_kcal <= 0 or prior_sd_kcal <= 0:
+        return deficit_kcal, max(deficit_se_kcal, 0.0), 1.0
+    p2 = prior_sd_kcal * prior_sd_kcal
+    k = p2 / (p2 + deficit_se_kcal * deficit_se_kcal)
+    return k * deficit_kcal, math.sqrt(k) * deficit_se_kcal, k
+
+
 @dataclass(frozen=True)
 class Baseline:
     """The client's own reference period (first maintenance phase or first weeks)."""

@@ -311,6 +311,9 @@ SEGMENT_MARGIN_DAYS = 56  # neighbouring days used on each side (judgment, tuned
 # N(0, 1 kg^2) prior (judgment), so a shift is absorbed without being mistaken for tissue.
 SHIFT_TAU_DAYS = 4.0
 SHIFT_PRIOR_SD_KG = 1.0
+# A step that started this long before the first weigh-in is over (1 - exp(-3) = 95 %):
+# nothing of it is left to separate from tissue.
+START_SHIFT_SPAN_DAYS = 3 * SHIFT_TAU_DAYS
 
 
 def segment_rate(
@@ -323,6 +326,7 @@ def segment_rate(
     margin_days: int = SEGMENT_MARGIN_DAYS,
     shift_prior_sd_kg: float | None = SHIFT_PRIOR_SD_KG,
     edge_knots: bool = True,
+    start_shift_at: int | None = None,
 ) -> WindowRate | None:
     """Rate over a window from a piecewise-linear GLS fit that spans its edges.
 
@@ -346,6 +350,12 @@ def segment_rate(
     shift_prior_sd_kg : float or None, default 1.0
         Prior SD of the glycogen-and-water shift at each knot; None fits no shift
         (body mass continuous and piecewise linear). [kg]
+    start_shift_at : int or None
+        Index (may be negative) where the intake changed at or before the first
+        weigh-in, e.g. a deficit that starts with the log: a glycogen-and-water
+        step starts there too, without a change of slope (there is no earlier
+        segment).  Ignored when the step would be over before the first weigh-in
+        (more than ``START_SHIFT_SPAN_DAYS`` earlier) or with no shift prior.
 
     Returns
     -------
@@ -385,15 +395,22 @@ def segment_rate(
     kn = sorted({k for k in (*knots, *edges) if t[0] < k <= t[-1]})
     cols = [np.ones_like(t), t - t[0]] + [np.maximum(t - k, 0.0) for k in kn]
     n_lin = len(cols)
+    sk = list(kn)  # where a glycogen-and-water step starts
+    if (
+        shift_prior_sd_kg is not None
+        and start_shift_at is not None
+        and t[0] - START_SHIFT_SPAN_DAYS <= start_shift_at <= t[0]
+    ):
+        sk.insert(0, start_shift_at)
     if shift_prior_sd_kg is not None:
-        cols += [np.where(t >= k, 1.0 - np.exp(-(t - k) / SHIFT_TAU_DAYS), 0.0) for k in kn]
+        cols += [np.where(t >= k, 1.0 - np.exp(-(t - k) / SHIFT_TAU_DAYS), 0.0) for k in sk]
     x = np.column_stack(cols)
 
     def row(day: float) -> FloatArray:
         """Design row at a (possibly unobserved) day, for linear functionals of beta."""
         r = [1.0, day - t[0]] + [max(day - k, 0.0) for k in kn]
         if shift_prior_sd_kg is not None:
-            r += [1.0 - math.exp(-(day - k) / SHIFT_TAU_DAYS) if day >= k else 0.0 for k in kn]
+            r += [1.0 - math.exp(-(day - k) / SHIFT_TAU_DAYS) if day >= k else 0.0 for k in sk]
         return np.asarray(r)
 
     # Mean tissue rate over the window = (tissue at i1 + 1 - tissue at i0) / days, and

@@ -108,6 +108,8 @@ def simulate_client(
     two_deficits: bool | None = None,
     glycogen: bool = True,
     future_days: int = 0,
+    maintenance_first: bool = True,
+    lead_in_days: int = 0,
 ) -> SimulatedClient:
     """One simulated client with known truth (see the module docstring).
 
@@ -125,6 +127,12 @@ def simulate_client(
     future_days : int, default 0
         Also simulate this many days after the report month at the last phase's
         plan (``future_weight_kg``), to check projections.
+    maintenance_first : bool, default True
+        Start with a maintenance phase; False starts the log with the first
+        deficit (no measured baseline), after ``lead_in_days`` days at maintenance
+        intake that belong to no phase.  The random draws are the same either way.
+    lead_in_days : int, default 0
+        Logged days before the first deficit when ``maintenance_first`` is False. [day]
 
     Returns
     -------
@@ -150,9 +158,12 @@ def simulate_client(
     # Phases: maintenance 3-6 weeks, deficit 8-16 weeks, optional break + second deficit.
     two = bool(rng.random() < 0.4) if two_deficits is None else two_deficits
     d_kcal = float(rng.uniform(350, 850)) if deficit_kcal is None else deficit_kcal
-    plan: list[tuple[str, str, int, float]] = [
-        ("Baseline", "maintenance", int(rng.integers(21, 43)), ei0)
-    ]
+    base_days = int(rng.integers(21, 43))
+    plan: list[tuple[str, str, int, float]] = (
+        [("Baseline", "maintenance", base_days, ei0)]
+        if maintenance_first
+        else ([("Lead-in", "", lead_in_days, ei0)] if lead_in_days > 0 else [])
+    )
     plan.append(("Cut 1", "deficit", int(rng.integers(8, 17)) * 7, ei0 - d_kcal))
     if two:
         plan.append(("Diet break", "maintenance", 14, ei0 - 100))
@@ -175,7 +186,8 @@ def simulate_client(
             length = n_days - idx
         stop = min(idx + length, n_days)
         target[idx:stop] = kcal
-        phases.append(Phase(name, p_start, end_field, kind, round(kcal, -1)))  # type: ignore[arg-type]
+        if kind:  # the lead-in belongs to no phase
+            phases.append(Phase(name, p_start, end_field, kind, round(kcal, -1)))  # type: ignore[arg-type]
         idx = stop
         if idx >= n_days:
             break

@@ -1,0 +1,113 @@
+"""The baseline behind expected TDEE, and short windows (simulated clients, truth known).
+
+Records are simulated by reportgen.science.simulate (invented data with known
+truth).  The checks compare estimates with that truth, and the conjugate-normal
+update with its closed form (standard Bayesian result, e.g. Gelman et al.,
+Bayesian Data Analysis, 3rd ed., 2013, §2.5).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from _sci_helpers import simulated
+
+from reportgen.analysis import EARLY_PHASE_DAYS, analyse_client
+from reportgen.config import AnalysisSettings
+from reportgen.science.expected import maintenance_deficit_posterior
+from reportgen.science.simulate import simulate_client
+
+SETTINGS = AnalysisSettings()
+
+
+def _adaptation_errors(n: int, **kwargs: object) -> list[float]:
+    """Adaptation error (estimate - truth) of the deficit phases of n simulated clients."""
+    rng = np.random.default_rng(20261201)
+    out = []
+    for i in range(n):
+        sim = simulate_client(rng, f"t{i:03d}", under_report=0.0, **kwargs)  # type: ignore[arg-type]
+        a = analyse_client(sim.record, sim.month, SETTINGS)
+        for p, tr in zip(a.phases, sim.phases, strict=True):
+            if p.kind == "deficit" and p.days >= 28 and p.adaptation_kcal.known:
+                assert p.adaptation_kcal.value is not None
+                out.append(p.adaptation_kcal.value - tr.adaptation_kcal)
+    return out
+
+
+def test_first_weeks_baseline_does_not_count_glycogen_loss_as_tissue() -> None:
+    """Data that begin with a deficit: the early glycogen/water drop (about 1 kg in the
+    simulator, with a 4-day time constant) must not inflate the baseline expenditure.
+
+    Without adaptation in the simulated clients (beta_AT = 0), the only true
+    adaptation is the small drift of activity, so the estimates must centre on the
+    truth.  Counted as tissue at about 7000 kcal/kg, a 1 kg drop in a 28-day
+    baseline would inflate it by about 250 kcal/day and pull every later
+    adaptation that far below the truth.
+    """
+    err = _adaptation_errors(16, maintenance_first=False, beta_at=0.0, deficit_kcal=700.0)
+    assert len(err) >= 12
+    assert abs(float(np.mean(err))) < 50.0, np.mean(err)
+    assert math.sqrt(float(np.mean(np.square(err)))) < 100.0
+
+
+def test_start_of_data_step_is_fitted_only_for_an_intake_change() -> None:
+    """A first phase at maintenance gets no glycogen step at the start of the data."""
+    from reportgen.analysis import _start_shift_index
+
+    sim = simulated(5)
+    log = sim.record.log
+    first = sorted(sim.record.phases, key=lambda p: p.start)[0]
+    assert first.kind == "maintenance"
+    assert _start_shift_index(sim.record.phases, log, sim.record.phases[-1].start) is None
+    nb = simulated(5, maintenance_first=False)
+    assert _start_shift_index(nb.record.phases, nb.record.log, nb.record.phases[-1].start) == 0
+
+
+def test_short_phase_after_an_intake_change_has_no_expenditure_estimate() -> None:
+    """A 14-day diet break (science notes §4.4, §8 short-window rule): the realised deficit
+    and rate are shown, observed TDEE and adaptation are not ("early-phase")."""
+    sim = simulated(11, two_deficits=True)
+    a = analyse_client(sim.record, sim.month, SETTINGS)
+    brk = [p for p in a.phases if p.name == "Diet break"]
+    assert brk and brk[0].days < EARLY_PHASE_DAYS
+    p = brk[0]
+    assert p.realised_deficit_kcal.known
+    assert p.rate_pct_per_week.known
+    assert not p.observed_tdee_kcal.known and p.observed_tdee_kcal.reason == "early-phase"
+    assert not p.adaptation_kcal.known and p.adaptation_kcal.reason == "early-phase"
+    assert "early-phase-water-glycogen" in p.notes
+    # the long phases around it keep their estimates
+    assert all(q.observed_tdee_kcal.known for q in a.phases if q.days >= 28)
+
+
+def test_maintenance_posterior_closed_form() -> None:
+    """Normal-normal update: k = p^2/(p^2 + s^2), mean k d, SD sqrt(k) s (Gelman 2013, §2.5)."""
+    d, sd, k = maintenance_deficit_posterior(400.0, 250.0, 250.0)
+    assert k == pytest.approx(0.5)
+    assert d == pytest.approx(200.0)
+    assert sd == pytest.approx(250.0 / math.sqrt(2.0))
+    # a precise measurement is kept almost whole
+    d2, sd2, _ = maintenance_deficit_posterior(400.0, 25.0, 250.0)
+    assert d2 == pytest.approx(400.0 * 62500.0 / (62500.0 + 625.0))
+    assert sd2 < 25.0
+
+
+def test_expected_interval_carries_the_baseline_uncertainty() -> None:
+    """Expected TDEE's 80 % interval is at least as wide as the baseline's own part."""
+    sim = simulated(11)
+    a = analyse_client(sim.record, sim.month, SETTINGS)
+    base = a.phases[0]
+    later = [p for p in a.phases[1:] if p.expected_tdee_kcal.known and p.adaptation_kcal.known]
+    assert base.observed_tdee_kcal.known and later
+    for p in later:
+        e = p.expected_tdee_kcal
+        assert e.low is not None and e.high is not None
+        assert e.high - e.low > 0.0
+        ad = p.adaptation_kcal
+        ob = p.observed_tdee_kcal
+        assert ad.low is not None and ad.high is not None
+        assert ob.low is not None and ob.high is not None
+        # adaptation interval = observed and expected combined
+        assert ad.high - ad.low >= max(e.high - e.low, ob.high - ob.low) - 1e-6
