@@ -10,7 +10,11 @@ shifts at phase changes, 7700 kcal per kg of tissue) observed through the
 noise a coach sees in real logs: day-to-day water swings with a weekly rhythm,
 the odd salty-meal spike, missed days, under-logged intake, rounded scales and
 calipers.  Exactly one client (c007) carries deliberate data problems, listed in
-``sample_inputs/EXPECTED_PROBLEMS.md``, which this script also writes.
+``sample_inputs/EXPECTED_PROBLEMS.md``, which this script also writes.  One clean
+client (c003) steepens her deficit in November until her logged intake is under
+the 1,200 kcal/day floor for women, so the demo shows a safety flag; her data are
+otherwise clean (no reader warning).  The simulation's own expenditure and
+adaptation are kept in ``Simulated`` (never written) to check the analysis.
 
 Every client draws from its own seeded ``numpy.random.Generator``, and XLSX
 files are saved with fixed timestamps, so running the script twice gives
@@ -142,7 +146,12 @@ CLIENTS: tuple[ClientSpec, ...] = (
     ClientSpec(
         "c003", "Priya Raman", "female", "F", D(1997, 9, 25), 162.0,
         "priya.raman@example.org", 71.2, 34.0, 1.45, D(2026, 8, 1), D(2026, 11, 29),
-        (PhaseSpec("Fat-loss phase", D(2026, 8, 1), None, "deficit", 0.20, False),),
+        (
+            PhaseSpec("Fat-loss phase", D(2026, 8, 1), D(2026, 11, 1), "deficit", 0.20, False),
+            # a steeper push for November: logged intake ends up under the 1,200 kcal/day
+            # floor for women, so the demo shows a flag page (a clean client's flag)
+            PhaseSpec("Pre-holiday push", D(2026, 11, 2), None, "deficit", 0.34, True),
+        ),
         missing_frac=0.18, underlog=0.15, water_sd_kg=0.5, steps_base=6200,
         sleep_step_h=0.5, referral_email="referrals.harbour-gp@example.org",
     ),
@@ -260,6 +269,9 @@ class Simulated:
     mood: np.ndarray
     tissue_kg: np.ndarray
     logged: np.ndarray  # row present
+    # truth, for checking the analysis (not written to the book)
+    tdee_kcal: np.ndarray  # true expenditure
+    adapt_frac: np.ndarray  # adaptive fall in expenditure as a fraction of the body-size TDEE
 
 
 WEEKDAY_WATER_KG = np.array([0.22, 0.08, 0.0, -0.08, -0.14, -0.12, 0.06])  # Mon..Sun
@@ -286,12 +298,14 @@ def simulate(spec: ClientSpec, rng: np.random.Generator) -> Simulated:
     hunger_base = rng.uniform(2.6, 3.8)
     energy_base = rng.uniform(6.6, 7.8)
 
-    out = {k: np.full(n, np.nan) for k in ("w", "i", "s", "h", "e", "sl", "m", "t")}
+    out = {k: np.full(n, np.nan) for k in ("w", "i", "s", "h", "e", "sl", "m", "t", "x", "a")}
     for k, day in enumerate(days):
         phase = phase_on(spec, day)
         kind = phase.kind if phase else "maintenance"
         tdee = resting_kcal(tissue + glyco, spec.height_cm, age, spec.sex) * spec.pal
         tdee *= 1.0 - adapt
+        out["x"][k] = tdee
+        out["a"][k] = adapt
         if phase is not current_phase:
             current_phase = phase
             if kind == "deficit":
@@ -365,6 +379,8 @@ def simulate(spec: ClientSpec, rng: np.random.Generator) -> Simulated:
         mood=out["m"],
         tissue_kg=out["t"],
         logged=logged,
+        tdee_kcal=out["x"],
+        adapt_frac=out["a"],
     )
 
 
