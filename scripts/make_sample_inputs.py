@@ -11,8 +11,8 @@ noise a coach sees in real logs: day-to-day water swings with a weekly rhythm,
 the odd salty-meal spike, missed days, under-logged intake, rounded scales and
 calipers.  Exactly one client (c007) carries deliberate data problems, listed in
 ``sample_inputs/EXPECTED_PROBLEMS.md``, which this script also writes.  One clean
-client (c003) steepens her deficit in November until her logged intake is under
-the 1,200 kcal/day floor for women, so the demo shows a safety flag; her data are
+client (c008) comes back from a diet break with a steeper deficit, and her logged
+intake in November is under the 1,200 kcal/day floor for women, so the demo shows a safety flag; her data are
 otherwise clean (no reader warning).  The simulation's own expenditure and
 adaptation are kept in ``Simulated`` (never written) to check the analysis.
 
@@ -146,12 +146,7 @@ CLIENTS: tuple[ClientSpec, ...] = (
     ClientSpec(
         "c003", "Priya Raman", "female", "F", D(1997, 9, 25), 162.0,
         "priya.raman@example.org", 71.2, 34.0, 1.45, D(2026, 8, 1), D(2026, 11, 29),
-        (
-            PhaseSpec("Fat-loss phase", D(2026, 8, 1), D(2026, 11, 1), "deficit", 0.20, False),
-            # a steeper push for November: logged intake ends up under the 1,200 kcal/day
-            # floor for women, so the demo shows a flag page (a clean client's flag)
-            PhaseSpec("Pre-holiday push", D(2026, 11, 2), None, "deficit", 0.34, True),
-        ),
+        (PhaseSpec("Fat-loss phase", D(2026, 8, 1), None, "deficit", 0.20, False),),
         missing_frac=0.18, underlog=0.15, water_sd_kg=0.5, steps_base=6200,
         sleep_step_h=0.5, referral_email="referrals.harbour-gp@example.org",
     ),
@@ -198,7 +193,9 @@ CLIENTS: tuple[ClientSpec, ...] = (
         (
             PhaseSpec("Phase A", D(2026, 8, 10), D(2026, 9, 27), "deficit", 0.28, True),
             PhaseSpec("Diet break", D(2026, 9, 28), D(2026, 10, 11), "break"),
-            PhaseSpec("Phase B", D(2026, 10, 12), None, "deficit", 0.26, True),
+            # back from the break harder: logged intake ends up under the 1,200 kcal/day
+            # floor for women, so the demo shows a flag page (a clean client's flag)
+            PhaseSpec("Phase B", D(2026, 10, 12), None, "deficit", 0.39, True),
         ),
         energy_unit="kJ", missing_frac=0.22, underlog=0.18, water_sd_kg=0.6, readings=3,
         steps_base=9000, sleep_step_h=0.1, bom=True, goal_weight_kg=65.0,
