@@ -12,8 +12,9 @@ the odd salty-meal spike, missed days, under-logged intake, rounded scales and
 calipers.  Exactly one client (c007) carries deliberate data problems, listed in
 ``sample_inputs/EXPECTED_PROBLEMS.md``, which this script also writes.  One clean
 client (c008) comes back from a diet break with a steeper deficit, and her logged
-intake in November is under the 1,200 kcal/day floor for women, so the demo shows a safety flag; her data are
-otherwise clean (no reader warning).  The simulation's own expenditure and
+intake in November is under the 1,200 kcal/day floor for women, so the demo shows
+a safety flag; her data are otherwise clean (no reader warning).  Weigh-ins are
+morning weights, before the day's eating.  The simulation's own expenditure and
 adaptation are kept in ``Simulated`` (never written) to check the analysis.
 
 Every client draws from its own seeded ``numpy.random.Generator``, and XLSX
@@ -299,7 +300,8 @@ def simulate(spec: ClientSpec, rng: np.random.Generator) -> Simulated:
     for k, day in enumerate(days):
         phase = phase_on(spec, day)
         kind = phase.kind if phase else "maintenance"
-        tdee = resting_kcal(tissue + glyco, spec.height_cm, age, spec.sex) * spec.pal
+        mass = tissue + glyco  # the morning weigh-in, before the day's eating
+        tdee = resting_kcal(mass, spec.height_cm, age, spec.sex) * spec.pal
         tdee *= 1.0 - adapt
         out["x"][k] = tdee
         out["a"][k] = adapt
@@ -333,8 +335,8 @@ def simulate(spec: ClientSpec, rng: np.random.Generator) -> Simulated:
         water = ar + rhythm * WEEKDAY_WATER_KG[wd] + 0.0004 * prev_excess + spike
         water = 1.4 * math.tanh(water / 1.4)  # moderate days unchanged, never beyond 1.4 kg
         prev_excess = eaten - plan
-        out["t"][k] = tissue + glyco
-        out["w"][k] = tissue + glyco + water
+        out["t"][k] = mass
+        out["w"][k] = mass + water
 
         under = spec.underlog + (0.05 if wd >= 5 else 0.0)
         out["i"][k] = eaten * (1.0 - under) * math.exp(rng.normal(0.0, 0.04))
