@@ -216,7 +216,7 @@ def safety_flags(inputs: FlagInputs) -> tuple[Flag, ...]:
                 "caution",
                 {
                     "weeks": float(weeks),
-                    "mean_rate_pct_per_week": math.fsum(run) / weeks,
+                    "mean_rate_pct_per_week": math.fsum(r / weeks for r in run),  # no overflow
                     "fastest_rate_pct_per_week": min(run),
                     "threshold_pct_per_week": -RAPID_LOSS_PCT_PER_WEEK,
                 },
