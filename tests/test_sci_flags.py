@@ -170,3 +170,11 @@ def test_any_input_gives_ordered_unique_codes(
     for f in flags:
         assert f.severity in ("info", "caution", "urgent")
         assert all(isinstance(v, float) and math.isfinite(v) for v in f.values.values())
+
+
+def test_rapid_loss_with_absurd_rates_does_not_raise() -> None:
+    """Rates near the float limit (garbage in) still give a flag, not an OverflowError
+    (found by the property test above: math.fsum raised on an intermediate overflow)."""
+    huge = (-8.988465674311579e307, -8.98846567431158e307)
+    flags = safety_flags(FlagInputs(sex="male", weekly_rates_pct=huge))
+    assert [f.code for f in flags] == ["rapid-loss"]

@@ -51,7 +51,6 @@ References
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 from reportgen.io.model import Sex
@@ -216,7 +215,9 @@ def safety_flags(inputs: FlagInputs) -> tuple[Flag, ...]:
                 "caution",
                 {
                     "weeks": float(weeks),
-                    "mean_rate_pct_per_week": math.fsum(r / weeks for r in run),  # no overflow
+                    # plain sum: an absurd rate saturates to -inf instead of raising
+                    # (math.fsum raises OverflowError on an intermediate overflow)
+                    "mean_rate_pct_per_week": sum(r / weeks for r in run),
                     "fastest_rate_pct_per_week": min(run),
                     "threshold_pct_per_week": -RAPID_LOSS_PCT_PER_WEEK,
                 },
