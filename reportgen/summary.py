@@ -4,7 +4,7 @@ Values come straight from :class:`reportgen.results.PhaseResult`, always in kg,
 kcal/day and %, whatever the report's display units.  A value the analysis
 could not estimate is written blank, never as zero.  Numbers have a fixed
 number of decimals per column so that reruns are byte-identical; every column
-is described in ``docs/summary_columns.md``.
+is described in the README (section "summary.csv columns").
 """
 
 from __future__ import annotations

@@ -13,7 +13,7 @@ For each such key the ledger says one of:
 * ``delivered``: some ``sent`` line exists;
 * ``unconfirmed``: the last line is an ``attempt`` with no outcome after it, i.e.
   the program stopped while the server had the message.  It may or may not have
-  gone out, so it is *not* sent again automatically (see docs/sending.md);
+  gone out, so it is *not* sent again automatically (see the README, "Sending reports by e-mail");
 * ``pending``: anything else (never tried, refused, failed, skipped).
 
 No password of any kind is ever written here.

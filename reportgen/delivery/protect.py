@@ -13,7 +13,7 @@ A practitioner summary is always derived, over "<client_id>:<YYYY-MM>:practition
 The secret is the file's bytes with surrounding white space removed. Base32 uses
 only A-Z and 2-7, so there is no 0/O or 1/I/l to confuse when the password is read
 out over the phone. 12 characters carry 60 bits: far beyond guessing by hand,
-short enough to type.  docs/sending.md explains this to the clinic.
+short enough to type.  The README ("Sending reports by e-mail") explains this to the clinic.
 """
 
 from __future__ import annotations
@@ -56,7 +56,7 @@ def read_practice_secret(path: Path, book_dir: Path | None = None) -> bytes:
     if len(secret) < MIN_SECRET_BYTES:
         raise SecretError(
             f"{path}: the practice secret is shorter than {MIN_SECRET_BYTES} characters; "
-            "make a longer one (docs/sending.md shows how)"
+            "make a longer one (the README's sending section shows how)"
         )
     return secret
 
