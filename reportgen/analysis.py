@@ -9,6 +9,7 @@ adaptation, then the signals, the projection and the flags.
 from __future__ import annotations
 
 import calendar
+import dataclasses
 import datetime as dt
 import itertools
 import math
@@ -45,10 +46,12 @@ MIN_ANALYSIS_DAYS = bal.MIN_DAYS
 # Baseline when there is no maintenance phase: the first 28 days of data (judgment; the
 # notes ask for 2-3 weeks at least).  When the data begin with a deficit, its glycogen-and-
 # water step is fitted at the start of the data (``_start_shift_index``) instead of being
-# read as tissue, and the window is offset BASELINE_SKIP_DAYS into that deficit.  Measured on
-# the accuracy benchmark (clients without a maintenance phase): an offset of 0 days gives an
-# adaptation RMSE of 101 kcal/day, 14 days 132 kcal/day, because a later window already holds
-# more of the early adaptation that the later phases are compared against; hence 0.
+# read as tissue, the adaptation the window already holds is added back with its own size as
+# uncertainty (``expected.early_adaptation_kcal``), and the window is offset
+# BASELINE_SKIP_DAYS into that deficit.  Measured on the accuracy benchmark (100 clients
+# without a maintenance phase, seed 1): an offset of 0 days gives an adaptation RMSE of
+# 82 kcal/day, 7 days 94, 14 days 103 (a later window holds more of the early adaptation,
+# and the model's correction for it is uncertain); hence 0.
 BASELINE_FIRST_WEEKS_DAYS = 28
 BASELINE_SKIP_DAYS = 0
 RECENT_DAYS = 28  # window of the current weekly rate and current intake (judgment)
@@ -414,7 +417,29 @@ def _baseline(
         noise,
         rate,
     )
-    return make(b, mean_w, "first-weeks")
+    got = make(b, mean_w, "first-weeks")
+    d0 = _first_change_index(windows)
+    if got is None or d0 is None or d0 > hi or not b.deficit_kcal.known:
+        return got
+    # Inside a deficit the window already holds its first weeks of adaptation: expected
+    # TDEE without adaptation is that much higher.  Model-based (Hall 2011 AT term), so
+    # its whole size is also carried as uncertainty (judgment: individual AT varies
+    # from about none to twice the model's).
+    assert b.deficit_kcal.value is not None
+    at = exp_.early_adaptation_kcal(b.deficit_kcal.value, lo - d0, hi - lo + 1)
+    return dataclasses.replace(
+        got,
+        tdee_kcal=got.tdee_kcal - at,
+        tdee_se_kcal=math.hypot(got.tdee_se_kcal, at),
+    )
+
+
+def _first_change_index(windows: list[_Window]) -> int | None:
+    """Log index of the first phase that changed intake (deficit or surplus), if any."""
+    for w in windows:
+        if w.phase.kind in INTAKE_CHANGE_KINDS and w.i1 >= w.i0:
+            return w.i0
+    return None
 
 
 def _first_weeks_window(windows: list[_Window], n_days: int) -> tuple[int, int]:

@@ -37,19 +37,20 @@ def _adaptation_errors(n: int, **kwargs: object) -> list[float]:
 
 
 def test_first_weeks_baseline_does_not_count_glycogen_loss_as_tissue() -> None:
-    """Data that begin with a deficit: the early glycogen/water drop (about 1 kg in the
-    simulator, with a 4-day time constant) must not inflate the baseline expenditure.
+    """Data that begin with a deficit: the early glycogen/water drop (about 1.3 kg in the
+    simulator at this deficit, with a 4-day time constant) must not inflate the baseline
+    expenditure.
 
-    Without adaptation in the simulated clients (beta_AT = 0), the only true
-    adaptation is the small drift of activity, so the estimates must centre on the
-    truth.  Counted as tissue at about 7000 kcal/kg, a 1 kg drop in a 28-day
-    baseline would inflate it by about 250 kcal/day and pull every later
-    adaptation that far below the truth.
+    Counted as tissue at about 7000 kcal/kg, a 1.3 kg drop in a 28-day baseline
+    inflates it by about 300 kcal/day and pulls every later adaptation far below the
+    truth: before the step was fitted at the start of the data these clients came
+    out at a mean error of -141 and an RMS error of 175 kcal/day.  The simulated
+    truth includes the clients' adaptive thermogenesis (betaAT drawn from 0-0.3).
     """
-    err = _adaptation_errors(16, maintenance_first=False, beta_at=0.0, deficit_kcal=700.0)
+    err = _adaptation_errors(16, maintenance_first=False, deficit_kcal=700.0)
     assert len(err) >= 12
-    assert abs(float(np.mean(err))) < 50.0, np.mean(err)
-    assert math.sqrt(float(np.mean(np.square(err)))) < 100.0
+    assert abs(float(np.mean(err))) < 75.0, np.mean(err)
+    assert math.sqrt(float(np.mean(np.square(err)))) < 120.0
 
 
 def test_start_of_data_step_is_fitted_only_for_an_intake_change() -> None:
@@ -111,3 +112,18 @@ def test_expected_interval_carries_the_baseline_uncertainty() -> None:
         assert ob.low is not None and ob.high is not None
         # adaptation interval = observed and expected combined
         assert ad.high - ad.low >= max(e.high - e.low, ob.high - ob.low) - 1e-6
+
+
+def test_early_adaptation_of_a_deficit_baseline() -> None:
+    """Mean of -betaAT D (1 - exp(-t/tauAT)) over days 0-27 with betaAT 0.14, tauAT 14 days
+    (Hall et al. 2011 model terms, from memory, science notes §5), computed here by a
+    direct sum: -38.6 kcal/day for D = 500, about 0.077 of the deficit (Muller et al.
+    2015, AJCN 102:807-19, abstract: 108 kcal/day after 3 weeks at -50 %, about 0.07)."""
+    from reportgen.science.expected import early_adaptation_kcal
+
+    direct = -0.14 * 500.0 * sum(1.0 - math.exp(-t / 14.0) for t in range(28)) / 28
+    assert early_adaptation_kcal(500.0, 0, 28) == pytest.approx(direct)
+    assert direct == pytest.approx(-38.64, abs=0.01)
+    assert early_adaptation_kcal(-100.0, 0, 28) == 0.0  # no deficit, no adaptation
+    # later windows hold more of it
+    assert early_adaptation_kcal(500.0, 14, 28) < early_adaptation_kcal(500.0, 0, 28)

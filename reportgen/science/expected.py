@@ -99,6 +99,48 @@ def maintenance_deficit_posterior(
     return k * deficit_kcal, math.sqrt(k) * deficit_se_kcal, k
 
 
+def early_adaptation_kcal(
+    deficit_kcal: float,
+    first_day: int,
+    days: int,
+    params: HallParams = HALL_2011,
+) -> float:
+    """Adaptive thermogenesis already present in a baseline window taken inside a deficit.
+
+    Parameters
+    ----------
+    deficit_kcal : float
+        Realised deficit of the window (positive = deficit), standing in for the
+        intake cut. [kcal/day]
+    first_day : int
+        Day of the window's first day counted from the deficit's start (0 = its
+        first day). [day]
+    days : int
+        Length of the window. [day]
+    params : HallParams
+        betaAT and tauAT of the adaptive-thermogenesis term.
+
+    Returns
+    -------
+    float
+        Mean adaptation over the window, <= 0 (0 without a deficit). [kcal/day]
+
+    Notes
+    -----
+    The Hall et al. 2011 model's tauAT dAT/dt = betaAT dEI - AT (betaAT 0.14,
+    tauAT 14 days; from memory, science notes §5) after a step dEI = -deficit at
+    day 0: AT(t) = -betaAT deficit (1 - exp(-t/tauAT)), averaged over the window.
+    For a 28-day window from the first day that is 0.077 x the deficit; for
+    comparison Muller et al. 2015 (AJCN 102:807-19, abstract) measured 108
+    kcal/day after 3 weeks at -50 % intake, about 0.07 of the cut.
+    """
+    if deficit_kcal <= 0 or days <= 0:
+        return 0.0
+    t = [max(first_day + i, 0) for i in range(days)]
+    share = sum(1.0 - math.exp(-ti / params.tau_at_days) for ti in t) / days
+    return -params.beta_at * deficit_kcal * share
+
+
 @dataclass(frozen=True)
 class Baseline:
     """The client's own reference period (first maintenance phase or first weeks)."""
