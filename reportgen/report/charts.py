@@ -17,7 +17,7 @@ import hashlib
 import io
 import os
 import tempfile
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from functools import cache
 from pathlib import Path
@@ -26,6 +26,7 @@ import matplotlib
 import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.backends.backend_pdf import PdfPages
 from matplotlib.figure import Figure
 from matplotlib.transforms import ScaledTranslation
 
@@ -204,11 +205,13 @@ def _figure(ctx: ChartContext, height_mm: float, margins: tuple[float, float, fl
     return fig
 
 
+# no dates or versions: the same chart gives the same bytes on every run and machine
+_PDF_METADATA = {"CreationDate": None, "Creator": None, "Producer": None}
+
+
 def _save(fig: Figure) -> bytes:
     buf = io.BytesIO()
-    fig.savefig(
-        buf, format="pdf", metadata={"CreationDate": None, "Creator": None, "Producer": None}
-    )
+    fig.savefig(buf, format="pdf", metadata=_PDF_METADATA)
     return buf.getvalue()
 
 
@@ -347,7 +350,7 @@ def _window(a: ClientAnalysis, dates: np.ndarray, ctx: ChartContext) -> np.ndarr
 
 
 # ---------------------------------------------------------------------------------------------
-def weight_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 78) -> bytes | None:
+def _weight_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 78) -> Figure | None:
     log, u, L = a.log, ctx.units, ctx.labels
     sel = _window(a, log.dates, ctx)
     w = log.weight_kg[sel]
@@ -412,10 +415,10 @@ def weight_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 78) ->
     _y_ticks(ax, float(u.weight(lo_all)), float(u.weight(hi_all)), min_span=float(u.weight(2.0)))
     ax.set_ylabel(u.weight_unit)
     _time_ticks(ax, ctx.start, ctx.end, u)
-    return _save(fig)
+    return fig
 
 
-def energy_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 66) -> bytes | None:
+def _energy_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 66) -> Figure | None:
     log, u, L = a.log, ctx.units, ctx.labels
     sel = _window(a, log.dates, ctx)
     intake = log.intake_kcal[sel]
@@ -484,10 +487,10 @@ def energy_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 66) ->
     _y_ticks(ax, float(u.energy(lo_all)), float(u.energy(hi_all)), min_span=float(u.energy(600)))
     ax.set_ylabel(u.energy_label)
     _time_ticks(ax, ctx.start, ctx.end, u)
-    return _save(fig)
+    return fig
 
 
-def signals_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -> bytes | None:
+def _signals_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -> Figure | None:
     log, u, L = a.log, ctx.units, ctx.labels
     sel = _window(a, log.dates, ctx)
     series = [("steps", log.steps[sel]), ("hunger", log.hunger[sel]), ("energy", log.energy[sel])]
@@ -544,10 +547,10 @@ def signals_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -
                 mid = (r0 + r1) // 2
                 _y_labels(ax, [r0, mid, r1], [f"{r0:.0f}", f"{mid:.0f}", f"{r1:.0f}"])
         _time_ticks(ax, ctx.start, ctx.end, u, label=(i == 2))
-    return _save(fig)
+    return fig
 
 
-def bodycomp_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) -> bytes | None:
+def _bodycomp_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) -> Figure | None:
     """Fat and lean mass as change since the first session (one scale), and the skinfold sum."""
     sessions = [s for s in a.bodycomp if not s.rough]
     if not sessions:
@@ -612,14 +615,16 @@ def bodycomp_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) 
     else:
         right.set_yticks([])
     _time_ticks(right, first, last, u, max_ticks=3)
-    return _save(fig)
+    return fig
 
 
 def _date_of(day_number: float) -> dt.date:
     return dt.date(1970, 1, 1) + dt.timedelta(days=round(day_number))
 
 
-def projection_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 58) -> bytes | None:
+def _projection_figure(
+    a: ClientAnalysis, ctx: ChartContext, height_mm: float = 58
+) -> Figure | None:
     p = a.projection
     if p is None or len(p.dates) == 0:
         return None
@@ -676,7 +681,7 @@ def projection_chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 58
     _y_ticks(ax, float(u.weight(lo_all)), float(u.weight(hi_all)))
     ax.set_ylabel(u.weight_unit)
     _time_ticks(ax, start, end, u)
-    return _save(fig)
+    return fig
 
 
 # ---------------------------------------------------------------------------------------------
@@ -731,6 +736,36 @@ def legend(key: str, a: ClientAnalysis, ctx: ChartContext) -> list[LegendEntry]:
     return []
 
 
+ChartFn = Callable[[ClientAnalysis, ChartContext, float], "Figure | None"]
+
+#: The charts in report order, each as a function drawing its figure (or None: nothing to draw).
+FIGURES: dict[str, ChartFn] = {
+    "weight": _weight_figure,
+    "energy": _energy_figure,
+    "signals": _signals_figure,
+    "bodycomp": _bodycomp_figure,
+    "projection": _projection_figure,
+}
+
+
+def _one(key: str) -> Callable[..., bytes | None]:
+    def chart(a: ClientAnalysis, ctx: ChartContext, height_mm: float | None = None) -> bytes | None:
+        fn = FIGURES[key]
+        fig = fn(a, ctx) if height_mm is None else fn(a, ctx, height_mm)
+        return None if fig is None else _save(fig)
+
+    chart.__name__ = f"{key}_chart"
+    chart.__doc__ = f"The {key} chart alone as PDF bytes (its own file, its own fonts)."
+    return chart
+
+
+weight_chart = _one("weight")
+energy_chart = _one("energy")
+signals_chart = _one("signals")
+bodycomp_chart = _one("bodycomp")
+projection_chart = _one("projection")
+
+#: Each chart as its own file (PDF bytes, or another format where ``_save`` is replaced).
 CHARTS = {
     "weight": weight_chart,
     "energy": energy_chart,
@@ -738,3 +773,37 @@ CHARTS = {
     "bodycomp": bodycomp_chart,
     "projection": projection_chart,
 }
+
+
+@dataclass(frozen=True)
+class ChartPages:
+    """Several charts in one PDF, one page each, so their fonts are embedded once.
+
+    ``pages`` maps a chart key to its 0-based page in ``pdf``.
+    """
+
+    pdf: bytes
+    pages: Mapping[str, int]
+
+
+def chart_pages(
+    figures: Iterable[tuple[str, Callable[[], Figure | None]]],
+    on_chart: Callable[[str], None] | None = None,
+) -> ChartPages | None:
+    """Draw each chart and save it as one page of a single PDF (None when none has data).
+
+    matplotlib subsets and embeds the fonts when the file is closed, once for all pages,
+    instead of once per chart: with five charts this was about a sixth of the chart time.
+    ``on_chart(key)`` is called after each chart is drawn and saved (for timings).
+    """
+    buf = io.BytesIO()
+    pages: dict[str, int] = {}
+    with PdfPages(buf, metadata=_PDF_METADATA) as pdf:
+        for key, draw in figures:
+            fig = draw()
+            if fig is not None:
+                pdf.savefig(fig)
+                pages[key] = len(pages)
+            if on_chart is not None:
+                on_chart(key)
+    return ChartPages(buf.getvalue(), pages) if pages else None

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime as dt
+import functools
 import time
 from dataclasses import dataclass, field
 
@@ -12,7 +13,7 @@ from reportlab.platypus import Flowable, PageBreak, Paragraph, Spacer
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis
 
-from .charts import CHARTS, ChartContext, legend
+from .charts import CHARTS, FIGURES, ChartContext, ChartPages, chart_pages, legend
 from .layout import card_grid, chart_block, data_table, practice_header, section_break
 from .pdfbuild import ChartSlot, Document, build, mark_heading
 from .theme import page_size, theme_for
@@ -68,6 +69,34 @@ def draw_charts(
     return out
 
 
+def draw_chart_pages(
+    a: ClientAnalysis,
+    config: Config,
+    width_mm: float,
+    labels: dict[str, str],
+    timing: Timing | None = None,
+) -> ChartPages | None:
+    """Every chart with data, drawn into one PDF (one page each, fonts embedded once)."""
+    ctx = chart_context(a, config, width_mm, labels)
+    figures = [
+        (key, functools.partial(fn, a, ctx, CHART_HEIGHTS_MM[key]))
+        for key, fn in FIGURES.items()
+        if not (key == "projection" and a.special_handling)
+    ]
+    clock = [time.perf_counter()]
+
+    def lap(key: str) -> None:
+        now = time.perf_counter()
+        if timing is not None:
+            timing.per_chart_s[key] = now - clock[0]
+        clock[0] = now
+
+    pages = chart_pages(figures, lap)
+    if timing is not None and figures:  # the fonts are embedded when the file is closed
+        timing.per_chart_s["fonts+file"] = time.perf_counter() - clock[0]
+    return pages
+
+
 def _figure_items(vm: ClientView, words: Wording) -> list[tuple[str, str, bool, str]]:
     labels = words.labels["figures"]
     items = []
@@ -99,9 +128,9 @@ def render_client_report(
     sections = set(config.report.sections)
 
     t0 = time.perf_counter()
-    charts: dict[str, bytes | None] = {}
+    charts: ChartPages | None = None
     if "charts" in sections:
-        charts = draw_charts(analysis, config, width / mm, words.labels["chart"], timing)
+        charts = draw_chart_pages(analysis, config, width / mm, words.labels["chart"], timing)
     t1 = time.perf_counter()
 
     story: list[Flowable] = []
@@ -124,7 +153,7 @@ def render_client_report(
         ctx = chart_context(analysis, config, width / mm, words.labels["chart"])
         for key in CHARTS:
             slot = None
-            if charts.get(key):
+            if charts is not None and key in charts.pages:
                 slot = ChartSlot(key, width, CHART_HEIGHTS_MM[key] * mm)
                 slots.append(slot)
             story.append(

@@ -13,6 +13,7 @@ from __future__ import annotations
 import io
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import pikepdf
 from reportlab.lib import colors
@@ -20,6 +21,9 @@ from reportlab.pdfgen.canvas import Canvas
 from reportlab.platypus import BaseDocTemplate, Flowable, Frame, PageTemplate, Paragraph
 
 from .theme import FONT, FONT_BOLD, MARGIN, RULE, SIZE_SMALL, Theme, register_fonts
+
+if TYPE_CHECKING:
+    from .charts import ChartPages
 
 
 @dataclass
@@ -174,41 +178,42 @@ def build(
     story: Sequence[Flowable],
     doc: Document,
     theme: Theme,
-    charts: dict[str, bytes | None] | None = None,
+    charts: ChartPages | None = None,
     slots: Sequence[ChartSlot] = (),
 ) -> bytes:
-    """Lay out the story, then place each chart PDF into its slot."""
+    """Lay out the story, then place each chart (a page of ``charts``) into its slot."""
     register_fonts()
     buf = io.BytesIO()
     template = _DocTemplate(buf, doc, theme)
     template.build(list(story), canvasmaker=_Canvas)
     data = buf.getvalue()
-    placed = [s for s in slots if charts and charts.get(s.key) and s.page > 0]
-    if not placed:
+    placed = [s for s in slots if charts is not None and s.key in charts.pages and s.page > 0]
+    if charts is None or not placed:
         return data
-    return _embed(data, charts or {}, placed)
+    return _embed(data, charts, placed)
 
 
-def _embed(report: bytes, charts: dict[str, bytes | None], slots: Sequence[ChartSlot]) -> bytes:
-    pdf = pikepdf.open(io.BytesIO(report))
-    sources = []
-    for i, slot in enumerate(slots):
-        chart = charts[slot.key]
-        assert chart is not None
-        src = pikepdf.open(io.BytesIO(chart))
-        sources.append(src)
-        form = pdf.copy_foreign(src.pages[0].as_form_xobject())
-        page = pdf.pages[slot.page - 1]
-        name = pikepdf.Name(f"/Chart{i}")
-        page.add_resource(form, pikepdf.Name.XObject, name)
-        box = src.pages[0].mediabox
-        cw, ch = float(box[2]) - float(box[0]), float(box[3]) - float(box[1])
-        sx, sy = slot.width / cw, slot.height / ch
-        ops = f"q {sx:.5f} 0 0 {sy:.5f} {slot.x:.3f} {slot.y:.3f} cm {name} Do Q".encode()
-        page.contents_add(pikepdf.Stream(pdf, ops), prepend=False)
-    out = io.BytesIO()
-    pdf.save(out, deterministic_id=True, compress_streams=True)
-    for src in sources:
-        src.close()
-    pdf.close()
+def _embed(report: bytes, charts: ChartPages, slots: Sequence[ChartSlot]) -> bytes:
+    """Each chart page becomes a form XObject ``/Chart<i>`` drawn into its slot.
+
+    All charts come from one source file, so objects they share (the embedded fonts) are
+    copied into the report once.
+    """
+    with (
+        pikepdf.open(io.BytesIO(report)) as pdf,
+        pikepdf.open(io.BytesIO(charts.pdf)) as src,
+    ):
+        for i, slot in enumerate(slots):
+            source_page = src.pages[charts.pages[slot.key]]
+            form = pdf.copy_foreign(source_page.as_form_xobject())
+            page = pdf.pages[slot.page - 1]
+            name = pikepdf.Name(f"/Chart{i}")
+            page.add_resource(form, pikepdf.Name.XObject, name)
+            box = source_page.mediabox
+            cw, ch = float(box[2]) - float(box[0]), float(box[3]) - float(box[1])
+            sx, sy = slot.width / cw, slot.height / ch
+            ops = f"q {sx:.5f} 0 0 {sy:.5f} {slot.x:.3f} {slot.y:.3f} cm {name} Do Q".encode()
+            page.contents_add(pikepdf.Stream(pdf, ops), prepend=False)
+        out = io.BytesIO()
+        pdf.save(out, deterministic_id=True, compress_streams=True)
     return out.getvalue()
