@@ -168,7 +168,8 @@ def read_client(
     if (book / PHASES_FILE).is_file():  # it decides this client's phases, even if none
         sources.append(PHASES_FILE)
 
-    log, outliers = DailyLog.empty(), ()
+    log = DailyLog.empty()
+    outliers: tuple[tuple[dt.date, float], ...] = ()
     skinfolds: tuple[SkinfoldSession, ...] = ()
     sheet_phases: list[tuple[int, Phase]] = []
     sheet_file = None

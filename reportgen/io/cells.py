@@ -12,6 +12,7 @@ import datetime as dt
 import math
 import re
 
+from reportgen.io.model import Sex
 from reportgen.io.tables import Cell, cell_text, is_blank
 from reportgen.io.units import UNIT_MAP
 
@@ -30,7 +31,7 @@ _DATE_HINT = "write dates as YYYY-MM-DD (e.g. 2026-11-03) or format the cell as 
 
 _YES = frozenset({"yes", "y", "true", "1", "ja", "oui", "si", "sí"})
 _NO = frozenset({"no", "n", "false", "0", "nein", "non"})
-_SEX = {"female": "female", "f": "female", "male": "male", "m": "male"}
+_SEX: dict[str, Sex] = {"female": "female", "f": "female", "male": "male", "m": "male"}
 
 
 def shown(cell: Cell) -> str:
@@ -127,7 +128,7 @@ def parse_yes_no(cell: Cell, column: str) -> bool:
     raise CellError("bad-value", f'{column} {shown(cell)} is not yes or no; write "yes" or "no"')
 
 
-def parse_sex(cell: Cell, column: str) -> str | None:
+def parse_sex(cell: Cell, column: str) -> Sex | None:
     """female/male (also F/M), or None for a blank cell."""
     if is_blank(cell):
         return None

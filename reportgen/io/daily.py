@@ -92,7 +92,7 @@ def number_column(
                 import pandas as pd
 
                 # pandas returns a read-only view (copy-on-write): take a writable copy
-                num = pd.to_numeric(pd.Series(cells, dtype=object), errors="coerce")
+                num = pd.to_numeric(pd.Series(texts, dtype=object), errors="coerce")
                 out = np.array(num, dtype=np.float64)
         if out is not None:
             todo = np.flatnonzero(~np.isfinite(out)).tolist()
@@ -176,8 +176,8 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
                 continue
             raw = table.raw_columns[pos]
             x, bad = number_column(columns[pos], raw)
-            for i, e in bad:
-                err(e.code, e.message, i, raw, columns[pos][i])
+            for i, cell_error in bad:
+                err(cell_error.code, cell_error.message, i, raw, columns[pos][i])
             srcs.append((pos, raw, x * (UNIT_MAP[name][1] if name in UNIT_MAP else 1.0)))
         if not srcs:
             continue
@@ -187,7 +187,7 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
         if len(srcs) > 1:
             pos_b, raw_b, b = srcs[1]
             both = np.isfinite(a) & np.isfinite(b)
-            for i in np.flatnonzero(both & (np.abs(a - b) > UNIT_AGREEMENT[canonical])):
+            for i in np.flatnonzero(both & (np.abs(a - b) > UNIT_AGREEMENT[canonical])).tolist():
                 when = f"on {dt.date.fromordinal(ords[i])}" if ords[i] > 0 else f"in row {rows[i]}"
                 ca, cb = columns[pos_a][i], columns[pos_b][i]
                 err(
@@ -206,7 +206,7 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
         if canonical == "weight_kg":
             weight_from = used
         else:
-            for i in np.flatnonzero(np.isfinite(v) & ((v < lims[0]) | (v > lims[1]))):
+            for i in np.flatnonzero(np.isfinite(v) & ((v < lims[0]) | (v > lims[1]))).tolist():
                 cell = columns[int(used[i])][i]
                 try:
                     check_range(float(v[i]), lims, table.raw_columns[int(used[i])], cell, unit, why)
@@ -216,7 +216,7 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
         values[k] = v
 
     has_value = np.isfinite(values).any(axis=0)
-    for i in np.flatnonzero((ords == -1) & has_value):
+    for i in np.flatnonzero((ords == -1) & has_value).tolist():
         err(
             "missing-value",
             f"row {rows[i]} has values but no {date_raw}; add the date",
@@ -230,7 +230,7 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
     cut_rows = {rows[i] for i in np.flatnonzero((ords > end_o) | (ords > today_o))}
     if cut_rows:
         problems = [p for p in problems if p.row not in cut_rows]
-    for i in np.flatnonzero(ords > today_o):
+    for i in np.flatnonzero(ords > today_o).tolist():
         problems.append(
             _warn(
                 "future-date",
@@ -330,8 +330,8 @@ def _drop_duplicates(
     same = np.flatnonzero(ords[keep][1:] == ords[keep][:-1]) + 1
     if same.size == 0:
         return keep
-    drop = set()
-    first_of = {}
+    drop: set[int] = set()
+    first_of: dict[int, int] = {}
     for j in range(keep.size):
         o = int(ords[keep[j]])
         first_of.setdefault(o, j)

@@ -226,7 +226,7 @@ def read_csv_table(
 
 def read_xlsx_sheets(
     book_dir: Path, rel: str, wanted: tuple[str, ...], client_id: str | None = None
-) -> tuple[dict[str, tuple[str, list[list[Cell]]]] | None, tuple[str, ...], list[Problem]]:
+) -> tuple[dict[str, tuple[str, Sequence[Sequence[Cell]]]] | None, tuple[str, ...], list[Problem]]:
     """Read the ``wanted`` sheets of a workbook with calamine (never modifies the file).
 
     Returns ``{normalised name: (name as written, rows)}``, all sheet names, and problems.
@@ -239,7 +239,7 @@ def read_xlsx_sheets(
         wb = CalamineWorkbook.from_path(str(book_dir / rel))
         try:
             names = tuple(wb.sheet_names)
-            found: dict[str, tuple[str, list[list[Cell]]]] = {}
+            found: dict[str, tuple[str, Sequence[Sequence[Cell]]]] = {}
             for name in names:
                 key = name.strip().lower()
                 if key in wanted and key not in found:
