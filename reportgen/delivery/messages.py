@@ -80,7 +80,7 @@ def mail_environment(config: Config) -> jinja2.Environment:
     search.append(str(templates_dir() / "mail"))
     return jinja2.Environment(
         loader=jinja2.FileSystemLoader(search),
-        autoescape=lambda name: bool(name) and name.endswith(".html.j2"),
+        autoescape=lambda name: name is not None and name.endswith(".html.j2"),
         undefined=jinja2.StrictUndefined,
         keep_trailing_newline=True,
     )

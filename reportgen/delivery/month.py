@@ -86,12 +86,12 @@ def read_manifest(month_dir: Path) -> Manifest:
             name=str(entry.get("name") or cid),
             files=files,
         )
-    cfg_file = data.get("config_file")
+    cfg_file, cfg = data.get("config_file"), data.get("config")
     return Manifest(
         month=month,
         book=Path(book),
         config_file=Path(cfg_file) if isinstance(cfg_file, str) and cfg_file else None,
-        config=data.get("config") if isinstance(data.get("config"), dict) else {},
+        config=cfg if isinstance(cfg, dict) else {},
         clients=clients,
     )
 

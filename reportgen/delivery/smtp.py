@@ -233,7 +233,7 @@ class SMTPConnection:
                 return SendResult("failed-temporary", "no answer from the server (time-out)")
             return SendResult("failed-temporary", f"connection closed by the server ({exc})")
         if isinstance(exc, smtplib.SMTPResponseException):  # e.g. a 421/554 greeting
-            outcome = "refused" if exc.smtp_code >= 500 else "failed-temporary"
+            outcome: Outcome = "refused" if exc.smtp_code >= 500 else "failed-temporary"
             return SendResult(outcome, _reply(exc.smtp_code, exc.smtp_error))
         if isinstance(exc, TimeoutError):
             return SendResult("failed-temporary", "no answer from the server (time-out)")
