@@ -22,7 +22,7 @@ import zipfile
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Literal
+from typing import Literal, TypedDict
 
 from openpyxl import Workbook
 from openpyxl.comments import Comment
@@ -315,8 +315,18 @@ def roster_columns(units: Units = "metric") -> tuple[Column, ...]:
     )
 
 
+class _CommonValidation(TypedDict):
+    allow_blank: bool
+    showErrorMessage: bool
+    showInputMessage: bool
+
+
 def _validation(col: Column) -> DataValidation | None:
-    common = {"allow_blank": True, "showErrorMessage": True, "showInputMessage": False}
+    common: _CommonValidation = {
+        "allow_blank": True,
+        "showErrorMessage": True,
+        "showInputMessage": False,
+    }
     if col.kind == "date":
         dv = DataValidation(
             type="date",
@@ -353,7 +363,7 @@ def _validation(col: Column) -> DataValidation | None:
 
 def add_sheet(wb: Workbook, title: str, columns: Sequence[Column]) -> Worksheet:
     """A sheet with commented headers, validation, date-formatted columns and a frozen header."""
-    ws = wb.create_sheet(title)
+    ws: Worksheet = wb.create_sheet(title)  # typed Any: only write-only books differ
     for j, col in enumerate(columns, start=1):
         cell = ws.cell(row=1, column=j, value=col.name)
         cell.font = _HEADER_FONT
@@ -375,10 +385,18 @@ def add_sheet(wb: Workbook, title: str, columns: Sequence[Column]) -> Worksheet:
     return ws
 
 
+def _empty_workbook() -> Workbook:
+    """A workbook without the sheet openpyxl starts every new workbook with."""
+    wb = Workbook()
+    first = wb.active
+    assert first is not None  # a new workbook always has that one sheet
+    wb.remove(first)
+    return wb
+
+
 def client_workbook(units: Units = "metric", energy: Energy = "kcal") -> Workbook:
     """An empty client log: sheets ``daily``, ``skinfolds`` and ``phases``."""
-    wb = Workbook()
-    wb.remove(wb.active)
+    wb = _empty_workbook()
     add_sheet(wb, "daily", daily_columns(units, energy))
     add_sheet(wb, "skinfolds", skinfold_columns())
     add_sheet(wb, "phases", phase_columns(with_client_id=False))
@@ -387,8 +405,7 @@ def client_workbook(units: Units = "metric", energy: Energy = "kcal") -> Workboo
 
 def roster_workbook(client_ids: Sequence[str], units: Units = "metric") -> Workbook:
     """The ``clients.xlsx`` roster, with one row started for each client id."""
-    wb = Workbook()
-    wb.remove(wb.active)
+    wb = _empty_workbook()
     ws = add_sheet(wb, "clients", roster_columns(units))
     for i, cid in enumerate(client_ids, start=2):
         ws.cell(row=i, column=1, value=cid)
