@@ -33,7 +33,7 @@ from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wai
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING
 
 from reportgen.analysis import analyse_client
 from reportgen.atomic import remove_temp_files, write_bytes_atomic
@@ -57,6 +57,10 @@ from reportgen.report import (
 from reportgen.report.overview_model import OverviewLine
 from reportgen.results import ClientAnalysis
 from reportgen.summary import SummaryRow, month_bounds, summary_csv, summary_rows
+
+if TYPE_CHECKING:  # the cluster extra is optional at run time
+    from dask.typing import Key
+    from distributed import Client as DaskClient
 
 OVERVIEW_NAME = "overview.pdf"
 SUMMARY_NAME = "summary.csv"
@@ -429,7 +433,7 @@ def _isolated(task: ClientTask) -> ClientOutcome:
             )
 
 
-def connect_scheduler(address: str) -> Any:
+def connect_scheduler(address: str) -> DaskClient:
     """A Dask distributed client for ``address``; :class:`BatchUsageError` if unreachable."""
     try:
         from distributed import Client as DaskClient
@@ -443,11 +447,11 @@ def connect_scheduler(address: str) -> Any:
         raise BatchUsageError(f"cannot reach the Dask scheduler at {address}: {exc}") from exc
 
 
-def _dask(tasks: list[ClientTask], dask: Any) -> Iterator[ClientOutcome]:
+def _dask(tasks: list[ClientTask], dask: DaskClient) -> Iterator[ClientOutcome]:
     """Send the same task function to a Dask cluster, yielding outcomes as they arrive."""
     from distributed import as_completed
 
-    by_key: dict[str, ClientTask] = {}
+    by_key: dict[Key, ClientTask] = {}
     futures = []
     for task in tasks:
         fut = dask.submit(process_client, task, pure=False)
