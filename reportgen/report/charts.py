@@ -28,6 +28,7 @@ from matplotlib.axes import Axes
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.backends.backend_pdf import PdfPages
 from matplotlib.figure import Figure
+from matplotlib.lines import TICKDOWN
 from matplotlib.transforms import ScaledTranslation
 
 from reportgen.io.limits import RATING
@@ -257,8 +258,43 @@ def _time_ticks(
             d += dt.timedelta(days=step)
     while len(ticks) > max_ticks:
         ticks, names = ticks[::2], names[::2]
-    ax.set_xticks(ticks)
-    ax.set_xticklabels(names)
+    _x_labels(ax, ticks, names)
+
+
+def _x_labels(ax: Axes, ticks: Sequence[float], labels: Sequence[str]) -> None:
+    """Tick marks below the axis and their labels, drawn as one line of markers and texts.
+
+    They look like matplotlib's own ticks (marker, length, width, the 3.5 pt pad) but cost
+    a few artists instead of a handful per tick, as the value labels (:func:`_y_labels`).
+    """
+    ax.set_xticks([])
+    rc = matplotlib.rcParams
+    size, pad = rc["xtick.major.size"], rc["xtick.major.pad"]
+    ax.plot(
+        ticks,
+        [0.0] * len(ticks),
+        transform=ax.get_xaxis_transform(),
+        ls="none",
+        marker=TICKDOWN,
+        ms=size,
+        mew=rc["xtick.major.width"],
+        color=rc["xtick.color"],
+        clip_on=False,
+        zorder=2.01,
+    )
+    where, va, ha = ax.get_xaxis_text1_transform(size + pad)
+    for t, label in zip(ticks, labels, strict=True):
+        ax.text(
+            t,
+            0,
+            label,
+            transform=where,
+            ha=ha,
+            va=va,
+            fontsize=rc["xtick.labelsize"],
+            color=rc["xtick.color"],
+            clip_on=False,
+        )
 
 
 def _y_ticks(ax: Axes, lo: float, hi: float, n: int = 4, min_span: float = 0.0) -> None:
