@@ -46,7 +46,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 import numpy as np
 
 from reportgen.batch import ClientOutcome, run_batch
-from reportgen.io.model import SKINFOLD_SITES
+from reportgen.io.limits import SKINFOLD_MM
+from reportgen.io.model import SKINFOLD_SITES, SkinfoldSession
 from reportgen.science.simulate import SimulatedClient, simulate_client
 
 MONTH = "2026-11"
@@ -68,23 +69,56 @@ def _write_csv(path: Path, header: list[str], rows: list[list[str]]) -> None:
         w.writerows(rows)
 
 
+YEAR_DAYS = 365
+
+
+def _simulate_year(seed: int, k: int, cid: str, month_end: dt.date) -> SimulatedClient:
+    """Simulated client ``k`` with about a year of daily logs.
+
+    The simulator's longest plan (two deficits with a break between) is 5-9 months; the
+    rest of the year is logged before the first deficit as days at maintenance intake that
+    belong to no phase (the simulator's ``lead_in_days``).  The plan's length is drawn from
+    the client's own seed, so a first draw without lead-in gives it, and the second draw
+    (same seed, so the same person and plan) adds the lead-in that makes up the year.
+    """
+
+    def draw(lead_in_days: int) -> SimulatedClient:
+        rng = np.random.default_rng([seed, k])
+        return simulate_client(
+            rng,
+            cid,
+            month_end,
+            two_deficits=True,
+            maintenance_first=False,
+            lead_in_days=lead_in_days,
+        )
+
+    plan_days = draw(0).record.log.n_days
+    return draw(max(YEAR_DAYS - plan_days, 0))
+
+
+def _caliper_can_take(sessions: tuple[SkinfoldSession, ...]) -> bool:
+    lo, hi = SKINFOLD_MM
+    return all(lo <= v <= hi for s in sessions for vs in s.readings_mm.values() for v in vs)
+
+
 def simulate_book(
     book: Path, n_clients: int, month_end: dt.date = MONTH_END, seed: int = 20261130
 ) -> dict[str, float]:
     """Write ``n_clients`` simulated clients into ``book``; returns size figures.
 
     Client ``k`` always gets the same simulated person (seeded per client), so the first ten
-    clients of the 500-client book are the ten of the 10-client book.  Every client gets the
-    longest plan the simulator offers (baseline, two deficits and a break between) so the
-    logs are as long as the simulator makes them.
+    clients of the 500-client book are the ten of the 10-client book.  Every client has
+    about a year of daily logs (:func:`_simulate_year`): a lead-in at maintenance intake,
+    then two deficits with a break between.
     """
     roster: list[list[str]] = []
     phases: list[list[str]] = []
     days: list[int] = []
+    no_skinfolds = 0
     for k in range(n_clients):
         cid = f"s{k + 1:04d}"
-        rng = np.random.default_rng([seed, k])
-        sim: SimulatedClient = simulate_client(rng, cid, month_end, two_deficits=True)
+        sim = _simulate_year(seed, k, cid, month_end)
         rec = sim.record
         c = rec.client
         roster.append(
@@ -126,7 +160,11 @@ def simulate_book(
         rows = [r for r in rows if any(r[1:])]
         _write_csv(book / "logs" / f"{cid}.csv", list(LOG_COLUMNS), rows)
         days.append(log.n_days)
-        if rec.skinfolds:
+        # a caliper opens to about 80 mm: where a simulated reading is beyond what one can
+        # take, a coach would not take skinfolds at all, so that client has no skinfold file
+        if rec.skinfolds and not _caliper_can_take(rec.skinfolds):
+            no_skinfolds += 1
+        elif rec.skinfolds:
             sites = [s for s in SKINFOLD_SITES if any(s in x.readings_mm for x in rec.skinfolds)]
             srows = []
             for session in rec.skinfolds:
@@ -155,6 +193,7 @@ def simulate_book(
         "mean_days": float(np.mean(days)) if days else 0.0,
         "min_days": float(np.min(days)) if days else 0.0,
         "max_days": float(np.max(days)) if days else 0.0,
+        "without_skinfolds": float(no_skinfolds),
     }
 
 
@@ -231,6 +270,7 @@ def run_size(n: int, workers: int, root: Path) -> dict[str, object]:
     row: dict[str, object] = {
         "clients": n,
         "mean_log_days": size["mean_days"],
+        "without_skinfolds": size["without_skinfolds"],
         "generate_s": gen_s,
         "wall_s": wall,
         "ok": ok,
@@ -364,6 +404,12 @@ def _print_sizes(rows: list[dict[str, object]], workers: int) -> None:
             f"{r['task_wall_s_per_client']:>11.3f} {r['load_avg_1min']:>8.1f} "
             f"{r['cpu_bound_reports_per_s']:>19.2f}"
         )
+    for r in rows:
+        if r["without_skinfolds"]:
+            print(
+                f"  {r['clients']} clients: {r['without_skinfolds']:.0f} without a skinfold file "
+                "(simulated readings beyond a caliper's 80 mm)"
+            )
     for r in rows:
         if r["failures"]:
             print(f"  failures at {r['clients']}: {r['failures']}")
