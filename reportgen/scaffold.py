@@ -338,8 +338,9 @@ def _validation(col: Column) -> DataValidation | None:
             **common,
         )
     elif col.kind in ("decimal", "whole") and col.low is not None and col.high is not None:
+        number: Literal["decimal", "whole"] = "whole" if col.kind == "whole" else "decimal"
         dv = DataValidation(
-            type=col.kind,
+            type=number,
             operator="between",
             formula1=f"{col.low:g}",
             formula2=f"{col.high:g}",

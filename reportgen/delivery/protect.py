@@ -98,7 +98,7 @@ def encrypt_pdf(pdf: bytes, user_password: str) -> bytes:
     )
     # R6 encryption belongs to PDF 1.7 extension level 8 / PDF 2.0; pypdf would keep
     # the source's lower header, which strict readers frown on.
-    writer.pdf_header = b"%PDF-1.7"
+    writer.pdf_header = "%PDF-1.7"  # the property reads and writes str (bytes also taken)
     out = io.BytesIO()
     writer.write(out)
     return out.getvalue()
