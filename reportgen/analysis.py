@@ -677,16 +677,16 @@ def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings)
         if np.isfinite(log.intake_kcal).sum() < bal.MIN_INTAKE_DAYS:
             notes.append("expenditure-too-few-intake-days")
         else:
-            starts = tuple(i0 for _, i0, _, _ in raw_windows if i0 > 0)
+            shift_starts = tuple(i0 for _, i0, _, _ in raw_windows if i0 > 0)
             if start_shift is not None:
-                starts = (start_shift, *starts)
+                shift_starts = (start_shift, *shift_starts)
             path = bal.expenditure_path(
                 weights_used,
                 log.intake_kcal,
                 rho,
                 fit.noise_sd_kg,
                 fit.weights,
-                shift_days=starts,
+                shift_days=shift_starts,
             )
             expenditure = ExpenditureSeries(
                 dates=log.dates,
