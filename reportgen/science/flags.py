@@ -121,7 +121,7 @@ class FlagInputs:
 
 def _value(x: float | None) -> float | None:
     """A known number, or None for missing/NaN."""
-    if not finite(x):
+    if x is None or not finite(x):
         return None
     return float(x)
 

@@ -114,7 +114,7 @@ def _positive(name: str, value: float) -> None:
 def _sex(sex: object) -> Sex:
     if sex not in ("male", "female"):
         raise ValueError(f"sex must be 'male' or 'female', got {sex!r}")
-    return sex  # type: ignore[return-value]
+    return sex
 
 
 def _whs(sex: object, weight_kg: float, height_cm: float, age_years: float) -> Sex:

@@ -151,7 +151,7 @@ def summarise_signal(
         in_base[idx] = True
         after_base = d > d[idx[-1]]
     else:
-        end = np.datetime64(baseline_end, "D")
+        end = baseline_end.astype("datetime64[D]")
         in_base = logged & (d < end)
         after_base = d >= end
 

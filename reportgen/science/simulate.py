@@ -291,7 +291,9 @@ def simulate_client(
         total = _jp3_sum_mm(sex, a, bf)
         share = rng.dirichlet([20, 20, 20])
         sites = {s: round(float(total * sh), 1) for s, sh in zip(site_names, share, strict=True)}
-        readings = {s: (v, round(v + float(rng.normal(0, 0.3)), 1)) for s, v in sites.items()}
+        readings: dict[str, tuple[float, ...]] = {
+            s: (v, round(v + float(rng.normal(0, 0.3)), 1)) for s, v in sites.items()
+        }
         sites = {s: float(np.mean(r)) for s, r in readings.items()}
         sessions.append(SkinfoldSession(d, sites, readings))
 

@@ -435,7 +435,7 @@ def body_density_durnin_womersley(sum4_mm: float, age_years: float, sex: Sex) ->
 def _sex_check(sex: object) -> Sex:
     if sex not in ("male", "female"):
         raise ValueError(f"sex must be 'male' or 'female', got {sex!r}")
-    return sex  # type: ignore[return-value]
+    return sex
 
 
 def _present(sites_mm: Mapping[str, float]) -> dict[str, float]:
