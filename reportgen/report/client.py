@@ -8,13 +8,14 @@ import time
 from dataclasses import dataclass, field
 
 from reportlab.lib.units import mm
-from reportlab.platypus import Flowable, PageBreak, Paragraph, Spacer
+from reportlab.platypus import Flowable, PageBreak, Spacer
 
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis
 
 from .charts import CHARTS, FIGURES, ChartContext, ChartPages, chart_pages, legend
 from .layout import card_grid, chart_block, data_table, practice_header, section_break
+from .para import Paragraph
 from .pdfbuild import ChartSlot, Document, build, mark_heading
 from .theme import page_size, theme_for
 from .units import Units

@@ -13,7 +13,6 @@ from reportlab.platypus import (
     Flowable,
     Image,
     KeepTogether,
-    Paragraph,
     Spacer,
     Table,
     TableStyle,
@@ -22,6 +21,7 @@ from reportlab.platypus import (
 from reportgen.config import Config
 
 from . import theme as T
+from .para import Paragraph
 from .pdfbuild import ChartBox, ChartSlot, mark_heading
 from .theme import Theme
 from .wording import blocks, esc

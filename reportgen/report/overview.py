@@ -7,13 +7,14 @@ from types import SimpleNamespace
 
 import numpy as np
 from reportlab.lib.units import mm
-from reportlab.platypus import Flowable, Paragraph, Spacer
+from reportlab.platypus import Flowable, Spacer
 
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis
 
 from .layout import data_table, practice_header
 from .overview_model import OverviewLine
+from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
 from .theme import page_size, theme_for
 from .units import DASH, Units

@@ -8,7 +8,7 @@ from dataclasses import dataclass
 
 from reportlab.lib import colors
 from reportlab.lib.units import mm
-from reportlab.platypus import Flowable, KeepInFrame, Paragraph, Spacer, Table, TableStyle
+from reportlab.platypus import Flowable, KeepInFrame, Spacer, Table, TableStyle
 
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate
@@ -16,6 +16,7 @@ from reportgen.results import ClientAnalysis, Estimate
 from . import theme as T
 from .client import Timing
 from .layout import data_table
+from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
 from .theme import Theme, page_size, theme_for
 from .units import DASH, Units

@@ -23,11 +23,12 @@ from typing import Any
 
 import jinja2
 from markupsafe import Markup, escape
-from reportlab.platypus import Flowable, Paragraph
+from reportlab.platypus import Flowable
 
 from reportgen.config import Config
 from reportgen.resources import templates_dir
 
+from .para import Paragraph
 from .theme import Theme
 
 
