@@ -140,7 +140,8 @@ def _index(log: DailyLog, day: dt.date) -> int:
 
 
 def _date(d: np.datetime64) -> dt.date:
-    return d.astype("datetime64[D]").item()
+    day: dt.date = d.astype("datetime64[D]").item()
+    return day
 
 
 def _est(value: float | None, sd: float | None) -> Estimate:
