@@ -28,7 +28,7 @@ from matplotlib.axes import Axes
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.backends.backend_pdf import PdfPages
 from matplotlib.figure import Figure
-from matplotlib.lines import TICKDOWN
+from matplotlib.markers import TICKDOWN
 from matplotlib.transforms import ScaledTranslation
 
 from reportgen.io.limits import RATING
@@ -772,7 +772,7 @@ def legend(key: str, a: ClientAnalysis, ctx: ChartContext) -> list[LegendEntry]:
     return []
 
 
-ChartFn = Callable[[ClientAnalysis, ChartContext, float], "Figure | None"]
+ChartFn = Callable[..., "Figure | None"]  # (analysis, context[, height_mm])
 
 #: The charts in report order, each as a function drawing its figure (or None: nothing to draw).
 FIGURES: dict[str, ChartFn] = {

@@ -190,7 +190,7 @@ def _method_name(a: ClientAnalysis, code: str) -> str:
 def _ident_table(sv: SummaryView, words: Wording, theme: Theme, width: float) -> Table:
     """Identification in three label/value column pairs."""
     L = words.labels["ident"]
-    cells = [
+    cells: list[list[object]] = [
         [Paragraph(esc(L[k]), theme["cell_head"]), Paragraph(esc(v), theme["cell"])]
         for k, v in sv.ident
     ]
