@@ -5,9 +5,12 @@ per chart with an Agg canvas (never pyplot, so nothing lingers), fixed margins i
 layout engine, every daily series as one artist, few hand-placed ticks, and PDF output with
 no creation date and TrueType (Type 42) fonts so text stays selectable and the bytes repeat.
 
-Each function returns the chart's PDF bytes, or ``None`` when there is nothing to draw (the
-layout then prints one line saying what to log).  Axis labels and legend entries come from
-the template label table; units are converted here for display only.
+Each chart is a function drawing its ``Figure`` (:data:`FIGURES`), or returning ``None``
+when there is nothing to draw (the layout then prints one line saying what to log).  A
+report saves all of its charts as pages of one PDF (:func:`chart_pages`), so the fonts are
+subset and embedded once per report rather than once per chart; :data:`CHARTS` gives each
+chart as a PDF of its own.  Axis labels and legend entries come from the template label
+table; units are converted here for display only.
 """
 
 from __future__ import annotations
