@@ -145,6 +145,12 @@ def _phase_row(u: Units, p: PhaseResult) -> dict[str, str]:
         "adaptation": est(p.adaptation_kcal, "e_change"),
         "bodyfat": bf.replace(" points", ""),
         "status": p.status,
+        # why expenditure/adaptation are blank, so the table can say it under a dash
+        "blank_reason": (
+            p.observed_tdee_kcal.reason or p.adaptation_kcal.reason or ""
+            if not (p.observed_tdee_kcal.known and p.adaptation_kcal.known)
+            else ""
+        ),
     }
 
 
