@@ -18,7 +18,7 @@ from reportgen.io.cells import CellError, check_range, parse_date, parse_number,
 from reportgen.io.columns import check_columns
 from reportgen.io.model import BoolArray, DailyLog, FloatArray, Problem
 from reportgen.io.outliers import weight_outliers
-from reportgen.io.tables import Cell, Table, cell_text
+from reportgen.io.tables import Cell, Table, cell_problem, cell_text
 from reportgen.io.units import UNIT_AGREEMENT, UNIT_MAP, alternatives
 
 #: Canonical value column -> (limits, unit, why the limits).  Weight is range-checked after
@@ -44,31 +44,13 @@ class DailyResult:
 
 
 def _err(code: str, msg: str, t: Table, cid: str, row: int, col: str | None, val: Cell) -> Problem:
-    return Problem(
-        "error",
-        code,
-        msg,
-        file=t.file,
-        row=row,
-        column=col,
-        value=None if val is None else cell_text(val),
-        client_id=cid,
-    )
+    return cell_problem("error", code, msg, t, row, col, val, cid)
 
 
 def _warn(
     code: str, msg: str, t: Table, cid: str, row: int | None, col: str | None, val: Cell = None
 ) -> Problem:
-    return Problem(
-        "warning",
-        code,
-        msg,
-        file=t.file,
-        row=row,
-        column=col,
-        value=None if val is None else cell_text(val),
-        client_id=cid,
-    )
+    return cell_problem("warning", code, msg, t, row, col, val, cid)
 
 
 def number_column(

@@ -9,7 +9,7 @@ from reportgen.io import limits
 from reportgen.io.cells import CellError, check_range, parse_date, parse_number, parse_text
 from reportgen.io.columns import check_columns
 from reportgen.io.model import PHASE_KINDS, Phase, PhaseKind, Problem
-from reportgen.io.tables import Cell, Table, cell_text
+from reportgen.io.tables import Cell, Table, cell_problem
 
 PHASE_COLUMNS: Final = ("client_id", "name", "start", "end", "kind", "target_kcal")
 
@@ -49,19 +49,8 @@ def parse_phases(
             cid: str = cid,
             bad: list[Problem] = bad,
         ) -> None:
-            v = cell(c) if c else None
-            bad.append(
-                Problem(
-                    "error",
-                    code,
-                    msg,
-                    file=table.file,
-                    row=row,
-                    column=raw.get(c) if c else None,
-                    value=None if v is None else cell_text(v),
-                    client_id=cid or None,
-                )
-            )
+            col, v = (raw.get(c), cell(c)) if c else (None, None)
+            bad.append(cell_problem("error", code, msg, table, row, col, v, cid or None))
 
         if not cid:
             err("missing-value", f"row {row} has no client_id; add it", "client_id")

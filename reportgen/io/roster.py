@@ -19,7 +19,7 @@ from reportgen.io.cells import (
 )
 from reportgen.io.columns import check_columns
 from reportgen.io.model import Client, Problem
-from reportgen.io.tables import Cell, Table, cell_text
+from reportgen.io.tables import Cell, Table, cell_problem
 from reportgen.io.units import UNIT_AGREEMENT, UNIT_MAP, alternatives
 
 T = TypeVar("T")
@@ -86,19 +86,8 @@ def parse_roster(table: Table, today: dt.date) -> tuple[tuple[Client, ...], list
             row: int = row,
             bad: list[Problem] = bad,
         ) -> None:
-            v = cell(c) if c else None
-            bad.append(
-                Problem(
-                    "error",
-                    code,
-                    msg,
-                    file=table.file,
-                    row=row,
-                    column=raw.get(c) if c else None,
-                    value=None if v is None else cell_text(v),
-                    client_id=cid,
-                )
-            )
+            col, v = (raw.get(c), cell(c)) if c else (None, None)
+            bad.append(cell_problem("error", code, msg, table, row, col, v, cid))
 
         cid = parse_text(cell("client_id"))
         if not cid:

@@ -10,7 +10,7 @@ from reportgen.io import limits
 from reportgen.io.cells import CellError, check_range, parse_date, parse_number
 from reportgen.io.columns import missing_column
 from reportgen.io.model import SKINFOLD_SITES, Problem, SkinfoldSession
-from reportgen.io.tables import Cell, Table, cell_text
+from reportgen.io.tables import Cell, Table, cell_problem, cell_text
 
 #: Repeated readings at one site may differ by at most 5 % (ISAK protocol: take a third
 #: reading when the first two differ by more than 5 %, then use the mean of two or the median
@@ -79,16 +79,7 @@ def parse_skinfolds(
 
         def err(e: CellError, col: str, cell: Cell, row: int = row) -> None:
             problems.append(
-                Problem(
-                    "error",
-                    e.code,
-                    e.message,
-                    file=table.file,
-                    row=row,
-                    column=col,
-                    value=None if cell is None else cell_text(cell),
-                    client_id=client_id,
-                )
+                cell_problem("error", e.code, e.message, table, row, col, cell, client_id)
             )
 
         try:

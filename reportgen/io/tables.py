@@ -17,7 +17,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import cast
 
-from reportgen.io.model import Problem
+from reportgen.io.model import Problem, Severity
 
 #: A cell as the readers deliver it: text from CSV; text, number, bool or date/time from XLSX.
 Cell = str | float | int | bool | dt.date | dt.datetime | dt.time | dt.timedelta | None
@@ -66,6 +66,29 @@ def cell_text(cell: Cell) -> str:
 
 def is_blank(cell: Cell) -> bool:
     return cell is None or (isinstance(cell, str) and not cell.strip())
+
+
+def cell_problem(
+    severity: Severity,
+    code: str,
+    message: str,
+    table: Table,
+    row: int | None,
+    column: str | None,
+    cell: Cell,
+    client_id: str | None,
+) -> Problem:
+    """A problem found in one cell of ``table``, carrying the cell's text as its value."""
+    return Problem(
+        severity,
+        code,
+        message,
+        file=table.file,
+        row=row,
+        column=column,
+        value=None if cell is None else cell_text(cell),
+        client_id=client_id,
+    )
 
 
 def _problem(
