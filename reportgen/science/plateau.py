@@ -1,0 +1,744 @@
+"""Plateaus: has progress stalled, why did the deficit shrink, and what could change.
+
+Three pure steps, each over plain numbers:
+
+* :func:`progress_status` - the recent trend rate and its interval against the
+  planned rate: ``on-track``, ``slower``, ``stalled``, ``gaining``, or
+  ``likely-water`` when a glycogen-and-water shift explains the stall
+  (:func:`water_explanation`), or ``too-early`` / ``too-few-data`` with a reason;
+* :func:`deficit_change_causes` - the change in realised deficit between the
+  phase's first weeks (after its glycogen weeks) and the recent window, split
+  into intake drift, the smaller body, activity (steps), a metabolic remainder
+  and logging, each in kcal/day with an 80 % interval; the parts add up to the
+  change, and what the split cannot place is stated as the leftover;
+* :func:`discussion_options` - options to discuss (never prescriptions): the
+  intake for the planned rate, extra steps a day to close the gap, and a planned
+  break at maintenance after a long and deep deficit, with flag-gated cautions.
+
+Why a plateau happens: as a diet goes on, expenditure falls with the smaller
+body and beyond it (less spontaneous movement, adaptive thermogenesis), and
+intake tends to creep up as adherence declines; weight plateaus at six to eight
+months are mostly explained by declining adherence rather than by adaptation
+alone (Thomas et al. 2014 [3]_).  Weight from water and glycogen can hide fat
+loss for one to two weeks after an intake change (science notes §4.4), so a
+flat scale after high-intake days is named as such rather than as a stall.
+
+Sign convention: every part is its effect on the realised deficit in kcal/day;
+negative means it closed the deficit.
+
+References
+----------
+.. [1] Hall KD, Sacks G, Chandramohan D, et al. Quantification of the effect of
+   energy imbalance on bodyweight. Lancet 2011;378:826-37.
+   doi:10.1016/S0140-6736(11)60812-X
+.. [2] Hall KD, Chow CC. Estimating changes in free-living energy intake and its
+   confidence interval. Am J Clin Nutr 2011;94:66-74 (from memory).
+.. [3] Thomas DM, Martin CK, Redman LM, et al. Effect of dietary adherence on the
+   body weight plateau: a mathematical model incorporating intermittent
+   compliance with energy intake prescription. Am J Clin Nutr
+   2014;100:787-95 (from memory).
+.. [4] Byrne NM, Sainsbury A, King NA, Hills AP, Wood RE. Intermittent energy
+   restriction improves weight loss efficiency in obese men: the MATADOR study.
+   Int J Obes 2018;42:129-38 (from memory).
+.. [5] Lichtman SW, Pisarska K, Berman ER, et al. Discrepancy between
+   self-reported and actual caloric intake and exercise in obese subjects.
+   N Engl J Med 1992;327:1893-8 (from memory).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from reportgen.io.model import FloatArray
+from reportgen.results import Estimate
+from reportgen.science.expected import activity_coefficient_kcal_per_kg_day, early_adaptation_kcal
+from reportgen.science.flags import (
+    BMI_UNDERWEIGHT,
+    INTAKE_FLOOR_MEN_KCAL,
+    INTAKE_FLOOR_WOMEN_KCAL,
+)
+from reportgen.science.hall import HALL_2011, HallParams
+from reportgen.science.trend import Z80
+
+PROGRESS_STATUSES: tuple[str, ...] = (
+    "on-track",  # the rate reaches at least ON_TRACK_SHARE of the planned rate
+    "slower",  # losing, but clearly slower than planned
+    "stalled",  # the rate's interval includes zero and excludes the planned rate
+    "gaining",  # the rate's interval lies above zero
+    "likely-water",  # would read stalled/slower/gaining, but water and glycogen explain it
+    "too-early",  # the deficit phase is younger than MIN_PHASE_DAYS
+    "too-few-data",  # see ProgressStatus.reason
+    "not-in-deficit",  # the phase is not a deficit: no planned loss to compare with
+)
+STATUS_REASONS: tuple[str, ...] = (
+    "phase-under-3-weeks",
+    "recent-window-under-3-weeks",
+    "too-few-weigh-ins",
+    "no-rate",
+    "no-planned-rate",
+    "interval-too-wide",  # the interval holds both zero and the planned rate
+)
+WATER_REASONS: tuple[str, ...] = (
+    "high-intake-days",  # high logged intake in the last days of the window
+    "break-before",  # a diet break or maintenance phase ended shortly before or inside it
+    "intake-rise-inside",  # intake stepped up inside the window
+)
+CAUSE_CODES: tuple[str, ...] = ("intake", "body-size", "activity", "metabolic", "logging")
+
+# The recent window: the last four weeks, at least three (the issue's "last 3-4 weeks").
+RECENT_WINDOW_DAYS = 28
+MIN_RECENT_DAYS = 21
+MIN_RECENT_WEIGH_INS = 10  # judgment: fewer cannot pin a three-week rate
+# The first two weeks after an intake change are dominated by glycogen and water (science
+# notes §4.4 and §8, common practice): the comparison window starts after them, and a phase
+# needs a week of data beyond them for a status.
+GLYCOGEN_WEEKS_DAYS = 14
+MIN_PHASE_DAYS = GLYCOGEN_WEEKS_DAYS + 7
+EARLY_WINDOW_DAYS = 28  # the phase's "first weeks": days 15-42 of the deficit
+# A rate at three quarters of the planned one or faster is on track (common practice, no
+# single source: coaches accept a week-to-week shortfall of about a quarter).
+ON_TRACK_SHARE = 0.75
+# The status is a yes/no call on the rate, so it uses a 90 % interval (judgment: an 80 %
+# interval would leave one truly flat client in five outside "stalled" by chance alone).
+STATUS_Z = 1.6448536269514722  # scipy.stats.norm.ppf(0.95)
+
+# Water and glycogen: glycogen 17.6 MJ/kg is stored with 2.7-4 g of water per g (science
+# notes §0 and §4.4), so a day 1000 kcal above plan, mostly carbohydrate, can add about
+# 1 kg for several days.  Thresholds are judgment / common practice, no single source.
+HIGH_DAY_LOOKBACK_DAYS = 7  # "just before": the window's last week
+HIGH_DAY_MARGIN_KCAL = 600.0  # a day this far above the window's median is a high day
+HIGH_DAYS_MIN_EXCESS_KCAL = 1000.0  # total excess over those days that can move the scale
+BREAK_WATER_DAYS = GLYCOGEN_WEEKS_DAYS  # glycogen refilled in a break leaves within 2 weeks
+INTAKE_RISE_KCAL = 300.0  # a step up in mean intake inside the window (second vs first half)
+MIN_HALF_LOGGED_DAYS = 5
+
+# Priors of the metabolic / logging split (judgment, stated in the docstring).
+METABOLIC_PRIOR_SD_BASE_KCAL = 50.0
+LOGGING_PRIOR_SD_SHARE = 0.025  # of the early intake: per-entry under-reporting can change
+LOGGING_PRIOR_SD_BASE_KCAL = 25.0
+# Days left unlogged during a diet tend to be the high days (common practice, no single
+# source; Thomas et al. 2014 find declining adherence behind most plateaus): excess intake
+# of an unlogged day over the logged mean, used for the logging prior.
+UNLOGGED_DAY_EXCESS_KCAL = 500.0
+BODY_SIZE_REL_SD = 0.25  # judgment: composition and activity coefficient uncertain
+BODY_SIZE_SD_BASE_KCAL = 10.0
+STEP_COST_REL_SD = 0.20  # judgment: step length, speed and terrain vary
+
+# Options.
+# A break at maintenance is suggested after this long a deficit at this depth (judgment,
+# informed by MATADOR, Byrne et al. 2018 [4]_: 16 weeks of restriction to 67 % of energy
+# requirements; two-week breaks at maintenance between two-week blocks gave more fat loss
+# and a smaller fall in resting expenditure than continuous restriction).
+BREAK_MIN_DAYS_IN_DEFICIT = 84
+BREAK_MIN_DEPTH_PCT = 20.0
+BREAK_WEEKS = 2  # MATADOR's break length
+STEPS_ROUND = 100
+STEPS_LARGE = 5000  # more extra steps than this a day: say so (judgment)
+RECHECK_DAYS = (7, 14)
+
+
+@dataclass(frozen=True)
+class ProgressStatus:
+    """Progress over the recent window against the planned rate."""
+
+    status: str  # one of PROGRESS_STATUSES
+    reason: str | None = None  # one of STATUS_REASONS for too-early / too-few-data
+    rate_pct_per_week: Estimate = field(default_factory=lambda: Estimate.missing("no-rate"))
+    planned_pct_per_week: float | None = None
+    underlying: str | None = None  # the status before the water explanation
+    water_reasons: tuple[str, ...] = ()
+
+
+def planned_rate_pct_per_week(
+    expected_tdee_kcal: float,
+    target_kcal: float,
+    energy_density_kcal_per_kg: float,
+    weight_kg: float,
+) -> float:
+    """Weekly rate a planned intake implies from today's expected expenditure.
+
+    Parameters
+    ----------
+    expected_tdee_kcal : float
+        Expenditure expected today without adaptation (the client's baseline scaled
+        to today's body, ``expected.expected_tdee_from_baseline``). [kcal/day]
+    target_kcal : float
+        The phase's planned intake. [kcal/day]
+    energy_density_kcal_per_kg : float
+        Energy per kg of weight change (Hall 2008 at today's fat mass). [kcal/kg]
+    weight_kg : float
+        Today's trend weight. [kg]
+
+    Returns
+    -------
+    float
+        Planned rate, negative for a loss. [% of body weight/week]
+
+    Notes
+    -----
+    rate = -(E - I) x 7 / rho / W x 100.  Check value (hand-calculated): E 2500,
+    I 2000, rho 7700, W 80 kg gives -0.568 %/week.  The plan's own adaptation is
+    not subtracted, so a client on plan runs a little slower than this (Hall et al.
+    2011 [1]_: about 0.14 of the cut), which ``ON_TRACK_SHARE`` leaves room for.
+    """
+    if energy_density_kcal_per_kg <= 0 or weight_kg <= 0:
+        raise ValueError(
+            "need positive energy density and weight, got "
+            f"{energy_density_kcal_per_kg!r} and {weight_kg!r}"
+        )
+    return -(expected_tdee_kcal - target_kcal) * 7.0 / energy_density_kcal_per_kg / weight_kg * 100
+
+
+def water_explanation(
+    intake_kcal: FloatArray,
+    *,
+    days_since_break_end: int | None = None,
+    high_day_margin_kcal: float = HIGH_DAY_MARGIN_KCAL,
+) -> tuple[str, ...]:
+    """Reasons a glycogen-and-water shift may hide fat loss at the end of a window.
+
+    Parameters
+    ----------
+    intake_kcal : numpy.ndarray
+        Logged intake over the recent window, oldest first, NaN on unlogged days.
+        [kcal/day]
+    days_since_break_end : int or None
+        Days from the end of the latest diet break or maintenance phase to the end
+        of the window (0 = it ended on the last day); None when there was none. [day]
+    high_day_margin_kcal : float, default 600
+        A day at least this far above the window's median intake is a high day.
+        [kcal/day]
+
+    Returns
+    -------
+    tuple of str
+        Codes from ``WATER_REASONS``, empty when none applies.
+
+    Notes
+    -----
+    Glycogen is stored with 2.7-4 g of water per g (science notes §0, §4.4), so
+    refilling it after high-carbohydrate days or a break adds 1-2 kg that leaves
+    over one to two weeks.  Rules (judgment / common practice, no single source):
+
+    * ``high-intake-days``: in the last 7 days, days at least 600 kcal above the
+      window's median whose excess over the median totals 1000 kcal or more;
+    * ``break-before``: a break ended within the last 14 days;
+    * ``intake-rise-inside``: the second half's mean logged intake is at least
+      300 kcal/day above the first half's (each with at least 5 logged days).
+      A fall in intake is not a reason: losing glycogen makes the scale fall
+      faster, it cannot hide a loss.
+    """
+    x = np.asarray(intake_kcal, dtype=float)
+    out: list[str] = []
+    logged = x[np.isfinite(x)]
+    if logged.size >= MIN_HALF_LOGGED_DAYS:
+        med = float(np.median(logged))
+        tail = x[-HIGH_DAY_LOOKBACK_DAYS:]
+        tail = tail[np.isfinite(tail)]
+        high = tail[tail >= med + high_day_margin_kcal]
+        if high.size and float(np.sum(high - med)) >= HIGH_DAYS_MIN_EXCESS_KCAL:
+            out.append("high-intake-days")
+    if days_since_break_end is not None and 0 <= days_since_break_end <= BREAK_WATER_DAYS:
+        out.append("break-before")
+    half = len(x) // 2
+    first, second = x[:half], x[half:]
+    first = first[np.isfinite(first)]
+    second = second[np.isfinite(second)]
+    if (
+        first.size >= MIN_HALF_LOGGED_DAYS
+        and second.size >= MIN_HALF_LOGGED_DAYS
+        and float(second.mean() - first.mean()) >= INTAKE_RISE_KCAL
+    ):
+        out.append("intake-rise-inside")
+    return tuple(out)
+
+
+def _rate_status(rate: float, se: float, planned: float) -> tuple[str, str | None]:
+    lo = rate - STATUS_Z * se
+    hi = rate + STATUS_Z * se
+    bar = ON_TRACK_SHARE * planned  # negative for a planned loss
+    if lo > 0:
+        return "gaining", None
+    reaches_plan = lo <= bar
+    includes_zero = hi >= 0
+    if reaches_plan and includes_zero:
+        return "too-few-data", "interval-too-wide"
+    if reaches_plan:
+        return "on-track", None
+    if includes_zero:
+        return "stalled", None
+    return "slower", None
+
+
+def progress_status(
+    rate_pct_per_week: float | None,
+    rate_se_pct_per_week: float | None,
+    planned_pct_per_week: float | None,
+    *,
+    phase_kind: str = "deficit",
+    phase_days: int,
+    recent_days: int,
+    recent_weigh_ins: int,
+    water_reasons: tuple[str, ...] = (),
+    rate_before_water: tuple[float, float] | None = None,
+) -> ProgressStatus:
+    """Progress status of a deficit phase over its recent window.
+
+    Parameters
+    ----------
+    rate_pct_per_week, rate_se_pct_per_week : float or None
+        Trend rate over the recent window (negative = loss) and its standard error
+        (allowing for autocorrelated water swings, ``rates.segment_rate``).
+        [% of body weight/week]
+    planned_pct_per_week : float or None
+        The planned rate (negative = loss), from ``target_kcal``
+        (:func:`planned_rate_pct_per_week`) or else the phase's own earlier rate.
+        [% of body weight/week]
+    phase_kind : str
+        Only "deficit" phases get a status; others are "not-in-deficit".
+    phase_days : int
+        Days of the phase so far (up to the window end). [day]
+    recent_days, recent_weigh_ins : int
+        Calendar days and weigh-ins of the recent window.
+    water_reasons : tuple of str
+        From :func:`water_explanation`.
+    rate_before_water : (float, float) or None
+        Rate and SE over the window ending before the high-intake days, when that
+        is at least two weeks long. [% of body weight/week]
+
+    Returns
+    -------
+    ProgressStatus
+
+    Notes
+    -----
+    With the 90 % interval [lo, hi] of the rate and the bar b = 0.75 x planned
+    (``ON_TRACK_SHARE``, common practice, no single source):
+
+    * ``gaining``: lo > 0;
+    * ``on-track``: lo <= b (the rate reaches three quarters of the plan) and
+      hi < 0;
+    * ``stalled``: hi >= 0 and lo > b (the interval includes zero and excludes
+      the planned rate, as the issue defines it);
+    * ``slower``: b < lo and hi < 0;
+    * ``too-few-data`` (``interval-too-wide``): lo <= b and hi >= 0.
+
+    A ``stalled``, ``slower`` or ``gaining`` reading with a water reason becomes
+    ``likely-water`` ("recheck in 1-2 weeks"), unless the rate measured before
+    the high-intake days already shows the same shortfall (then the stall was
+    there before the water).
+    """
+    if phase_kind != "deficit":
+        return ProgressStatus("not-in-deficit")
+    if phase_days < MIN_PHASE_DAYS:
+        return ProgressStatus("too-early", "phase-under-3-weeks")
+    if recent_days < MIN_RECENT_DAYS:
+        return ProgressStatus("too-few-data", "recent-window-under-3-weeks")
+    if recent_weigh_ins < MIN_RECENT_WEIGH_INS:
+        return ProgressStatus("too-few-data", "too-few-weigh-ins")
+    if (
+        rate_pct_per_week is None
+        or rate_se_pct_per_week is None
+        or not math.isfinite(rate_pct_per_week)
+        or not math.isfinite(rate_se_pct_per_week)
+    ):
+        return ProgressStatus("too-few-data", "no-rate")
+    half = Z80 * rate_se_pct_per_week
+    rate = Estimate(rate_pct_per_week, rate_pct_per_week - half, rate_pct_per_week + half)
+    if planned_pct_per_week is None or not planned_pct_per_week < 0:
+        return ProgressStatus("too-few-data", "no-planned-rate", rate)
+    status, reason = _rate_status(rate_pct_per_week, rate_se_pct_per_week, planned_pct_per_week)
+    if status in ("stalled", "slower", "gaining") and water_reasons:
+        before_ok = True
+        if rate_before_water is not None and "high-intake-days" in water_reasons:
+            before, _ = _rate_status(*rate_before_water, planned_pct_per_week)
+            before_ok = before == "on-track"
+        if before_ok:
+            return ProgressStatus(
+                "likely-water", None, rate, planned_pct_per_week, status, water_reasons
+            )
+    return ProgressStatus(status, reason, rate, planned_pct_per_week, None, water_reasons)
+
+
+@dataclass(frozen=True)
+class WindowSummary:
+    """What the cause split needs from one window (the phase's first weeks, or recent)."""
+
+    days: int
+    first_day_in_deficit: int  # window's first day counted from the deficit's start (0 = first)
+    mean_weight_kg: float
+    fat_kg: float
+    deficit_kcal: float  # realised deficit (positive = deficit), balance.window_balance
+    deficit_se_kcal: float
+    intake_kcal: float | None  # mean logged intake
+    intake_se_kcal: float | None
+    intake_days: int  # days with a logged intake
+    steps: float | None = None  # mean logged steps
+    steps_se: float | None = None
+    hunger: float | None = None  # mean rating, 1-10
+    energy: float | None = None
+    implied_intake_kcal: float | None = None  # intake implied by weight, when computed
+
+    @property
+    def completeness_pct(self) -> float:
+        """Share of the window's days with a logged intake. [%]"""
+        return 100.0 * self.intake_days / self.days if self.days > 0 else 0.0
+
+
+def signal_mean(values: FloatArray) -> tuple[float | None, float | None]:
+    """Mean of a logged daily signal and its standard error (None with fewer than 5 values).
+
+    SE = s / sqrt(n), the sample standard error of a mean (days taken as
+    independent; judgment).
+    """
+    x = np.asarray(values, dtype=float)
+    x = x[np.isfinite(x)]
+    if x.size < 5:
+        return None, None
+    return float(x.mean()), float(x.std(ddof=1) / math.sqrt(x.size))
+
+
+@dataclass(frozen=True)
+class CausePart:
+    """One cause's effect on the realised deficit (negative = it closed the deficit)."""
+
+    code: str  # one of CAUSE_CODES
+    kcal: Estimate  # 80 % interval; missing with reason "not-measured" when not measured
+
+
+@dataclass(frozen=True)
+class DeficitChangeCauses:
+    """Why the realised deficit changed between the phase's first weeks and now."""
+
+    change_kcal: Estimate  # recent - early realised deficit (negative = shrank)
+    parts: tuple[CausePart, ...]
+    leftover_kcal: float  # change minus the sum of the parts (what noise keeps unplaced)
+    largest: str | None  # code of the part that closed the deficit most, if any did
+    intake_change_kcal: float | None  # logged intake now minus then
+    completeness_change_pct: float  # logged-day share now minus then [percentage points]
+    logging_gap_then_kcal: float | None  # implied minus logged intake, then (when known)
+    logging_gap_now_kcal: float | None
+    metabolic_expected_kcal: float  # the literature expectation used as the prior mean
+
+    def part(self, code: str) -> CausePart:
+        for p in self.parts:
+            if p.code == code:
+                return p
+        raise KeyError(code)
+
+
+def _est(value: float, sd: float) -> Estimate:
+    return Estimate(value, value - Z80 * sd, value + Z80 * sd)
+
+
+def deficit_change_causes(
+    early: WindowSummary,
+    recent: WindowSummary,
+    *,
+    reference_tdee_kcal: float,
+    resting_kcal: float,
+    kcal_per_step_recent: float | None,
+    params: HallParams = HALL_2011,
+) -> DeficitChangeCauses:
+    """Split the change in realised deficit between two windows into its causes.
+
+    Parameters
+    ----------
+    early, recent : WindowSummary
+        The phase's first weeks after its glycogen weeks, and the recent window.
+    reference_tdee_kcal : float
+        Expenditure at the early window (the client's baseline TDEE), which sets
+        the body-weight-proportional activity cost delta. [kcal/day]
+    resting_kcal : float
+        Resting expenditure at the early window's weight (e.g. Mifflin-St Jeor).
+        [kcal/day]
+    kcal_per_step_recent : float or None
+        Net energy cost of one step at the recent weight; None when steps are not
+        logged in both windows (activity is then "not measured" and the
+        remainder includes any change in activity). [kcal/step]
+    params : HallParams
+        The Hall et al. 2011 coefficients (gammaF, gammaL, betaTEF, betaAT, tauAT).
+
+    Returns
+    -------
+    DeficitChangeCauses
+        Parts in kcal/day with 80 % intervals; ``leftover_kcal`` is what is not
+        placed; ``largest`` the part that closed the deficit most.
+
+    Notes
+    -----
+    The realised deficit D = E - I_true, with logged intake I = I_true - U
+    (U the unlogged intake).  Between the windows
+
+        dD = -(1 - betaTEF) dI  +  dE_size  +  dE_act  +  dAT  -  dU
+
+    (eating more also costs betaTEF of it, Hall et al. 2011 [1]_):
+
+    * intake: -(1 - betaTEF) dI from the logged means;
+    * body-size: gammaF dF + gammaL dFFM + delta dBW, the Hall et al. 2011
+      expenditure terms, with delta = ((1 - betaTEF) TDEE - RMR)/BW;
+    * activity: cost per step x change in mean daily steps;
+    * metabolic (dAT) and logging (-dU): weight and logged intake give only
+      their difference R = dD - intake - body-size - activity.  R is split by
+      normal priors (standard normal-normal updating, e.g. Gelman et al. 2013,
+      §2.5): dAT ~ N(m_A, s_A^2), with m_A the change the Hall model's adaptive
+      thermogenesis (betaAT 0.14, tauAT 14 days) makes between the windows at
+      this deficit and s_A = betaAT x deficit + 50 kcal/day (judgment: individual
+      adaptation ranges from about none to twice the model's, and slower
+      components build over months); dU ~ N(m_U, s_U^2) with m_U = 500 kcal x
+      the fall in the share of days logged (unlogged days tend to be the high
+      days; common practice, no single source) and s_U = 2.5 % of intake +
+      25 kcal/day + m_U/2 (judgment; under-reporting can change during a diet,
+      Lichtman et al. 1992 [5]_).  The noise of R (from the deficit, intake,
+      body-size and activity parts) keeps its share of R unplaced: that is the
+      leftover, and the parts plus the leftover equal dD exactly.
+    """
+    d_change = recent.deficit_kcal - early.deficit_kcal
+    d_sd = math.hypot(recent.deficit_se_kcal, early.deficit_se_kcal)
+    parts: dict[str, tuple[float, float] | None] = {}
+    # intake drift
+    intake_change = None
+    if recent.intake_kcal is not None and early.intake_kcal is not None:
+        intake_change = recent.intake_kcal - early.intake_kcal
+        sd = (1 - params.beta_tef) * math.hypot(
+            recent.intake_se_kcal or 0, early.intake_se_kcal or 0
+        )
+        parts["intake"] = (-(1 - params.beta_tef) * intake_change, sd)
+    else:
+        parts["intake"] = None
+    # smaller body (Hall 2011 terms other than adaptive thermogenesis)
+    delta = activity_coefficient_kcal_per_kg_day(
+        reference_tdee_kcal, resting_kcal, early.mean_weight_kg, params
+    )
+    d_bw = recent.mean_weight_kg - early.mean_weight_kg
+    d_fat = recent.fat_kg - early.fat_kg
+    size = (
+        params.gamma_fat_kcal_per_kg_day * d_fat
+        + params.gamma_lean_kcal_per_kg_day * (d_bw - d_fat)
+        + delta * d_bw
+    )
+    parts["body-size"] = (size, BODY_SIZE_REL_SD * abs(size) + BODY_SIZE_SD_BASE_KCAL)
+    # activity from steps
+    if (
+        kcal_per_step_recent is not None
+        and recent.steps is not None
+        and early.steps is not None
+        and recent.steps_se is not None
+        and early.steps_se is not None
+    ):
+        act = kcal_per_step_recent * (recent.steps - early.steps)
+        sd = math.hypot(
+            kcal_per_step_recent * math.hypot(recent.steps_se, early.steps_se),
+            STEP_COST_REL_SD * act,
+        )
+        parts["activity"] = (act, sd)
+    else:
+        parts["activity"] = None
+    measured = [v for v in parts.values() if v is not None]
+    remainder = d_change - sum(v for v, _ in measured)
+    noise_var = d_sd * d_sd + sum(s * s for _, s in measured)
+    # metabolic / logging split of the remainder
+    cut = max(early.deficit_kcal, 0.0)
+    m_a = early_adaptation_kcal(
+        cut, recent.first_day_in_deficit, recent.days, params
+    ) - early_adaptation_kcal(cut, early.first_day_in_deficit, early.days, params)
+    s_a = params.beta_at * cut + METABOLIC_PRIOR_SD_BASE_KCAL
+    completeness_change = recent.completeness_pct - early.completeness_pct
+    m_u = UNLOGGED_DAY_EXCESS_KCAL * max(-completeness_change, 0.0) / 100.0
+    intake_ref = early.intake_kcal if early.intake_kcal is not None else 2000.0
+    s_u = LOGGING_PRIOR_SD_SHARE * intake_ref + LOGGING_PRIOR_SD_BASE_KCAL + m_u / 2
+    total = s_a * s_a + s_u * s_u + noise_var
+    innov = remainder - (m_a - m_u)
+    d_at = m_a + s_a * s_a / total * innov
+    d_u = m_u - s_u * s_u / total * innov
+    sd_at = s_a * math.sqrt(max(1 - s_a * s_a / total, 0.0))
+    sd_u = s_u * math.sqrt(max(1 - s_u * s_u / total, 0.0))
+    leftover = innov * noise_var / total
+    out_parts = []
+    for code in CAUSE_CODES:
+        if code == "metabolic":
+            out_parts.append(CausePart(code, _est(d_at, sd_at)))
+        elif code == "logging":
+            out_parts.append(CausePart(code, _est(-d_u, sd_u)))
+        else:
+            v = parts[code]
+            kcal = Estimate.missing("not-measured") if v is None else _est(*v)
+            out_parts.append(CausePart(code, kcal))
+    closing = [(p.kcal.value, p.code) for p in out_parts if p.kcal.value is not None]
+    worst = min(closing, default=None)
+    largest = worst[1] if worst is not None and worst[0] < 0 else None
+    gap_then = gap_now = None
+    if early.implied_intake_kcal is not None and early.intake_kcal is not None:
+        gap_then = early.implied_intake_kcal - early.intake_kcal
+    if recent.implied_intake_kcal is not None and recent.intake_kcal is not None:
+        gap_now = recent.implied_intake_kcal - recent.intake_kcal
+    return DeficitChangeCauses(
+        change_kcal=_est(d_change, d_sd),
+        parts=tuple(out_parts),
+        leftover_kcal=leftover,
+        largest=largest,
+        intake_change_kcal=intake_change,
+        completeness_change_pct=completeness_change,
+        logging_gap_then_kcal=gap_then,
+        logging_gap_now_kcal=gap_now,
+        metabolic_expected_kcal=m_a,
+    )
+
+
+@dataclass(frozen=True)
+class DiscussionOption:
+    """An option to discuss with the client, with the numbers behind it."""
+
+    code: str  # "intake-for-planned-rate", "extra-steps", "maintenance-break", "recheck"
+    values: dict[str, float] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class PlateauOptions:
+    options: tuple[DiscussionOption, ...]
+    cautions: tuple[str, ...]  # "refer-practitioner", "below-intake-floor", "minor", ...
+
+
+def intake_floor_kcal(sex: str | None) -> float:
+    """Intake floor below which no "eat less" option is offered (flags.py, common practice)."""
+    return INTAKE_FLOOR_MEN_KCAL if sex == "male" else INTAKE_FLOOR_WOMEN_KCAL
+
+
+def steps_to_close_gap(gap_kcal: float, kcal_per_step: float) -> int:
+    """Extra steps a day whose energy cost equals a gap in the deficit.
+
+    Parameters
+    ----------
+    gap_kcal : float
+        Planned minus realised deficit (positive = short of plan). [kcal/day]
+    kcal_per_step : float
+        Net energy cost of one step at the client's weight. [kcal/step]
+
+    Returns
+    -------
+    int
+        gap / cost, rounded up to the next 100 steps; 0 when there is no gap.
+        Check value (hand-calculated): 200 kcal/day at 0.028 kcal/step (the
+        science notes' ACSM-based 28 kcal per 1000 steps at 80 kg) is 7143,
+        shown as 7200.
+    """
+    if kcal_per_step <= 0:
+        raise ValueError(f"kcal_per_step must be positive, got {kcal_per_step!r}")
+    if gap_kcal <= 0:
+        return 0
+    return int(math.ceil(gap_kcal / kcal_per_step / STEPS_ROUND) * STEPS_ROUND)
+
+
+def discussion_options(
+    status: str,
+    *,
+    gap_kcal: float | None,
+    intake_for_planned_rate: Estimate | None,
+    recent_intake_kcal: float | None,
+    kcal_per_step: float | None,
+    days_in_deficit: int | None,
+    deficit_depth_pct: float | None,
+    sex: str | None,
+    minor: bool,
+    pregnant: bool,
+    bmi_kg_m2: float | None,
+) -> PlateauOptions:
+    """Options to discuss for a phase's progress status (never prescriptions).
+
+    Parameters
+    ----------
+    status : str
+        From :func:`progress_status`.
+    gap_kcal : float or None
+        Planned minus recent realised deficit. [kcal/day]
+    intake_for_planned_rate : Estimate or None
+        Intake for the planned rate from today's estimated state, with its interval
+        (``hall.project_weight``'s intake-for-rate). [kcal/day]
+    recent_intake_kcal : float or None
+        Mean logged intake over the recent window. [kcal/day]
+    kcal_per_step : float or None
+        Net energy cost of one step at today's weight. [kcal/step]
+    days_in_deficit : int or None
+        Consecutive days in deficit up to now. [day]
+    deficit_depth_pct : float or None
+        Realised deficit as % of expected maintenance. [%]
+    sex, minor, pregnant, bmi_kg_m2
+        Gate the options (flags.py thresholds).
+
+    Returns
+    -------
+    PlateauOptions
+
+    Notes
+    -----
+    * Minors, pregnancy and BMI below 18.5 (WHO 2000, from memory): no option that
+      deepens a deficit; caution "refer-practitioner".
+    * ``intake-for-planned-rate`` only for ``stalled`` and ``slower``, and never
+      below the intake floor (1200 kcal/day women, 1500 men; common practice,
+      flags.py): then the caution "below-intake-floor" instead.
+    * ``extra-steps``: the gap over the cost per step (:func:`steps_to_close_gap`).
+    * ``maintenance-break``: after at least 12 weeks in deficit at a depth of at
+      least 20 % of maintenance (judgment, informed by Byrne et al. 2018 [4]_,
+      whose two-week breaks at maintenance gave more fat loss than continuous
+      restriction to 67 % of requirements), whatever the status.
+    * ``likely-water``: "recheck" in 7-14 days, nothing else.
+    """
+    cautions: list[str] = []
+    if minor:
+        cautions.append("minor")
+    if pregnant:
+        cautions.append("pregnant")
+    if bmi_kg_m2 is not None and bmi_kg_m2 < BMI_UNDERWEIGHT:
+        cautions.append("low-bmi")
+    if cautions:
+        return PlateauOptions((), ("refer-practitioner", *cautions))
+    opts: list[DiscussionOption] = []
+    if status == "likely-water":
+        return PlateauOptions(
+            (
+                DiscussionOption(
+                    "recheck", {"days_min": RECHECK_DAYS[0], "days_max": RECHECK_DAYS[1]}
+                ),
+            ),
+            (),
+        )
+    if status in ("stalled", "slower"):
+        ifr = intake_for_planned_rate
+        if ifr is not None and ifr.value is not None:
+            floor = intake_floor_kcal(sex)
+            if ifr.value < floor:
+                cautions.append("below-intake-floor")
+            else:
+                vals = {"intake_kcal": ifr.value, "floor_kcal": floor}
+                if ifr.low is not None and ifr.high is not None:
+                    vals |= {"low_kcal": ifr.low, "high_kcal": ifr.high}
+                if recent_intake_kcal is not None:
+                    vals["change_kcal"] = ifr.value - recent_intake_kcal
+                opts.append(DiscussionOption("intake-for-planned-rate", vals))
+        if gap_kcal is not None and gap_kcal > 0 and kcal_per_step is not None:
+            steps = steps_to_close_gap(gap_kcal, kcal_per_step)
+            vals = {"steps": float(steps), "gap_kcal": gap_kcal}
+            if steps > STEPS_LARGE:
+                vals["large"] = 1.0
+            opts.append(DiscussionOption("extra-steps", vals))
+    if (
+        status not in ("too-early", "not-in-deficit")
+        and days_in_deficit is not None
+        and deficit_depth_pct is not None
+        and days_in_deficit >= BREAK_MIN_DAYS_IN_DEFICIT
+        and deficit_depth_pct >= BREAK_MIN_DEPTH_PCT
+    ):
+        opts.append(
+            DiscussionOption(
+                "maintenance-break",
+                {
+                    "weeks": float(BREAK_WEEKS),
+                    "days_in_deficit": float(days_in_deficit),
+                    "depth_pct": deficit_depth_pct,
+                },
+            )
+        )
+    return PlateauOptions(tuple(opts), tuple(cautions))
