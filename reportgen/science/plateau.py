@@ -43,6 +43,8 @@ References
 .. [5] Lichtman SW, Pisarska K, Berman ER, et al. Discrepancy between
    self-reported and actual caloric intake and exercise in obese subjects.
    N Engl J Med 1992;327:1893-8 (from memory).
+.. [6] Leibel RL, Rosenbaum M, Hirsch J. Changes in energy expenditure resulting
+   from altered body weight. N Engl J Med 1995;332:621-8.
 """
 
 from __future__ import annotations
@@ -54,13 +56,20 @@ import numpy as np
 
 from reportgen.io.model import FloatArray
 from reportgen.results import Estimate
-from reportgen.science.expected import activity_coefficient_kcal_per_kg_day, early_adaptation_kcal
+from reportgen.science.adaptation import (
+    ExpenditureChange,
+    body_size_change_kcal,
+    decompose_expenditure_change,
+    literature_adaptation_kcal,
+    logging_drift_sd_kcal,
+)
 from reportgen.science.flags import (
     BMI_UNDERWEIGHT,
     INTAKE_FLOOR_MEN_KCAL,
     INTAKE_FLOOR_WOMEN_KCAL,
 )
 from reportgen.science.hall import HALL_2011, HallParams
+from reportgen.science.implied_intake import implied_intake
 from reportgen.science.trend import Z80
 
 PROGRESS_STATUSES: tuple[str, ...] = (
@@ -101,8 +110,11 @@ EARLY_WINDOW_DAYS = 28  # the phase's "first weeks": days 15-42 of the deficit
 # A rate at three quarters of the planned one or faster is on track (common practice, no
 # single source: coaches accept a week-to-week shortfall of about a quarter).
 ON_TRACK_SHARE = 0.75
-# The status is a yes/no call on the rate, so it uses a 90 % interval (judgment: an 80 %
-# interval would leave one truly flat client in five outside "stalled" by chance alone).
+# The status is a yes/no call on the rate, so it uses wider intervals than the report's
+# 80 % (judgment: an 80 % interval would leave one truly flat client in five outside
+# "stalled" by chance alone): whether the rate is distinguishable from zero is judged on
+# its 95 % interval, whether it reaches the plan on its 90 % interval.
+ZERO_Z = 1.959963984540054  # scipy.stats.norm.ppf(0.975)
 STATUS_Z = 1.6448536269514722  # scipy.stats.norm.ppf(0.95)
 
 # Water and glycogen: glycogen 17.6 MJ/kg is stored with 2.7-4 g of water per g (science
@@ -116,16 +128,17 @@ INTAKE_RISE_KCAL = 300.0  # a step up in mean intake inside the window (second v
 MIN_HALF_LOGGED_DAYS = 5
 
 # Priors of the metabolic / logging split (judgment, stated in the docstring).
-METABOLIC_PRIOR_SD_BASE_KCAL = 50.0
 LOGGING_PRIOR_SD_SHARE = 0.025  # of the early intake: per-entry under-reporting can change
 LOGGING_PRIOR_SD_BASE_KCAL = 25.0
 # Days left unlogged during a diet tend to be the high days (common practice, no single
 # source; Thomas et al. 2014 find declining adherence behind most plateaus): excess intake
 # of an unlogged day over the logged mean, used for the logging prior.
 UNLOGGED_DAY_EXCESS_KCAL = 500.0
+# Leibel et al. 1995 (NEJM 332:621-8, abstract, published): TEE fell 6 +/- 3 kcal/kg FFM/day
+# (never obese) after holding weight >= 10 % below usual; the scale of the slow part's spread.
+LEIBEL_TEE_KCAL_PER_KG_FFM_PER_10PCT = 6.0
 BODY_SIZE_REL_SD = 0.25  # judgment: composition and activity coefficient uncertain
 BODY_SIZE_SD_BASE_KCAL = 10.0
-STEP_COST_REL_SD = 0.20  # judgment: step length, speed and terrain vary
 
 # Options.
 # A break at maintenance is suggested after this long a deficit at this depth (judgment,
@@ -192,6 +205,39 @@ def planned_rate_pct_per_week(
     return -(expected_tdee_kcal - target_kcal) * 7.0 / energy_density_kcal_per_kg / weight_kg * 100
 
 
+def first_high_day(
+    intake_kcal: FloatArray, high_day_margin_kcal: float = HIGH_DAY_MARGIN_KCAL
+) -> int | None:
+    """Index of the first high-intake day in the window's last week, if they count.
+
+    Parameters
+    ----------
+    intake_kcal : numpy.ndarray
+        Logged intake over the window, oldest first, NaN on unlogged days. [kcal/day]
+    high_day_margin_kcal : float, default 600
+        A day at least this far above the window's median is a high day. [kcal/day]
+
+    Returns
+    -------
+    int or None
+        Index into ``intake_kcal`` of the first high day among the last 7 days,
+        when the high days' excess over the median totals at least 1000 kcal
+        (judgment / common practice, see :func:`water_explanation`); else None.
+        None with fewer than 5 logged days.
+    """
+    x = np.asarray(intake_kcal, dtype=float)
+    logged = x[np.isfinite(x)]
+    if logged.size < MIN_HALF_LOGGED_DAYS:
+        return None
+    med = float(np.median(logged))
+    start = max(len(x) - HIGH_DAY_LOOKBACK_DAYS, 0)
+    tail = x[start:]
+    high = np.isfinite(tail) & (tail >= med + high_day_margin_kcal)
+    if not high.any() or float(np.sum(tail[high] - med)) < HIGH_DAYS_MIN_EXCESS_KCAL:
+        return None
+    return start + int(np.argmax(high))
+
+
 def water_explanation(
     intake_kcal: FloatArray,
     *,
@@ -233,14 +279,8 @@ def water_explanation(
     """
     x = np.asarray(intake_kcal, dtype=float)
     out: list[str] = []
-    logged = x[np.isfinite(x)]
-    if logged.size >= MIN_HALF_LOGGED_DAYS:
-        med = float(np.median(logged))
-        tail = x[-HIGH_DAY_LOOKBACK_DAYS:]
-        tail = tail[np.isfinite(tail)]
-        high = tail[tail >= med + high_day_margin_kcal]
-        if high.size and float(np.sum(high - med)) >= HIGH_DAYS_MIN_EXCESS_KCAL:
-            out.append("high-intake-days")
+    if first_high_day(x, high_day_margin_kcal) is not None:
+        out.append("high-intake-days")
     if days_since_break_end is not None and 0 <= days_since_break_end <= BREAK_WATER_DAYS:
         out.append("break-before")
     half = len(x) // 2
@@ -256,20 +296,20 @@ def water_explanation(
     return tuple(out)
 
 
-def _rate_status(rate: float, se: float, planned: float) -> tuple[str, str | None]:
-    lo = rate - STATUS_Z * se
-    hi = rate + STATUS_Z * se
-    bar = ON_TRACK_SHARE * planned  # negative for a planned loss
+def _rate_status(
+    rate: float, se: float, planned: float, planned_se: float = 0.0
+) -> tuple[str, str | None]:
+    lo = rate - ZERO_Z * se
+    hi = rate + ZERO_Z * se
     if lo > 0:
         return "gaining", None
-    reaches_plan = lo <= bar
-    includes_zero = hi >= 0
-    if reaches_plan and includes_zero:
+    if hi >= 0:  # the interval includes zero
+        if rate - planned > STATUS_Z * math.hypot(se, planned_se):
+            return "stalled", None
         return "too-few-data", "interval-too-wide"
-    if reaches_plan:
+    bar = ON_TRACK_SHARE * planned
+    if rate - bar <= STATUS_Z * math.hypot(se, ON_TRACK_SHARE * planned_se):
         return "on-track", None
-    if includes_zero:
-        return "stalled", None
     return "slower", None
 
 
@@ -284,6 +324,7 @@ def progress_status(
     recent_weigh_ins: int,
     water_reasons: tuple[str, ...] = (),
     rate_before_water: tuple[float, float] | None = None,
+    planned_se_pct_per_week: float = 0.0,
 ) -> ProgressStatus:
     """Progress status of a deficit phase over its recent window.
 
@@ -308,6 +349,9 @@ def progress_status(
     rate_before_water : (float, float) or None
         Rate and SE over the window ending before the high-intake days, when that
         is at least two weeks long. [% of body weight/week]
+    planned_se_pct_per_week : float, default 0
+        Standard error of the planned rate (from the expected expenditure's, which
+        a short baseline dominates). [% of body weight/week]
 
     Returns
     -------
@@ -315,21 +359,25 @@ def progress_status(
 
     Notes
     -----
-    With the 90 % interval [lo, hi] of the rate and the bar b = 0.75 x planned
-    (``ON_TRACK_SHARE``, common practice, no single source):
+    With the 95 % interval [lo, hi] = r -/+ 1.96 s of the rate r for the
+    comparison with zero, z = 1.645 (90 %) for the comparison with the planned
+    rate p and its SE s_p, and the bar b = 0.75 p (``ON_TRACK_SHARE``, common
+    practice, no single source):
 
     * ``gaining``: lo > 0;
-    * ``on-track``: lo <= b (the rate reaches three quarters of the plan) and
-      hi < 0;
-    * ``stalled``: hi >= 0 and lo > b (the interval includes zero and excludes
-      the planned rate, as the issue defines it);
-    * ``slower``: b < lo and hi < 0;
-    * ``too-few-data`` (``interval-too-wide``): lo <= b and hi >= 0.
+    * ``stalled``: lo <= 0 <= hi and r - p > z sqrt(s^2 + s_p^2) (the interval
+      includes zero and excludes the planned rate, allowing for the plan's own
+      uncertainty);
+    * ``too-few-data`` (``interval-too-wide``): hi >= 0 but the planned rate
+      cannot be excluded;
+    * ``on-track``: hi < 0 and r - b <= z sqrt(s^2 + (0.75 s_p)^2) (three
+      quarters of the plan cannot be excluded);
+    * ``slower``: hi < 0 and the bar is excluded.
 
     A ``stalled``, ``slower`` or ``gaining`` reading with a water reason becomes
     ``likely-water`` ("recheck in 1-2 weeks"), unless the rate measured before
-    the high-intake days already shows the same shortfall (then the stall was
-    there before the water).
+    the high-intake days already reads stalled, slower or gaining (then the
+    shortfall was there before the water).
     """
     if phase_kind != "deficit":
         return ProgressStatus("not-in-deficit")
@@ -350,12 +398,16 @@ def progress_status(
     rate = Estimate(rate_pct_per_week, rate_pct_per_week - half, rate_pct_per_week + half)
     if planned_pct_per_week is None or not planned_pct_per_week < 0:
         return ProgressStatus("too-few-data", "no-planned-rate", rate)
-    status, reason = _rate_status(rate_pct_per_week, rate_se_pct_per_week, planned_pct_per_week)
+    status, reason = _rate_status(
+        rate_pct_per_week, rate_se_pct_per_week, planned_pct_per_week, planned_se_pct_per_week
+    )
     if status in ("stalled", "slower", "gaining") and water_reasons:
         before_ok = True
         if rate_before_water is not None and "high-intake-days" in water_reasons:
-            before, _ = _rate_status(*rate_before_water, planned_pct_per_week)
-            before_ok = before == "on-track"
+            before, _ = _rate_status(
+                *rate_before_water, planned_pct_per_week, planned_se_pct_per_week
+            )
+            before_ok = before not in ("stalled", "slower", "gaining")
         if before_ok:
             return ProgressStatus(
                 "likely-water", None, rate, planned_pct_per_week, status, water_reasons
@@ -380,7 +432,6 @@ class WindowSummary:
     steps_se: float | None = None
     hunger: float | None = None  # mean rating, 1-10
     energy: float | None = None
-    implied_intake_kcal: float | None = None  # intake implied by weight, when computed
 
     @property
     def completeness_pct(self) -> float:
@@ -419,9 +470,10 @@ class DeficitChangeCauses:
     largest: str | None  # code of the part that closed the deficit most, if any did
     intake_change_kcal: float | None  # logged intake now minus then
     completeness_change_pct: float  # logged-day share now minus then [percentage points]
-    logging_gap_then_kcal: float | None  # implied minus logged intake, then (when known)
-    logging_gap_now_kcal: float | None
+    implied_intake_kcal: Estimate  # intake implied by weight now (then = logged then)
+    logging_gap_kcal: Estimate  # logged minus implied intake now; negative = less logged
     metabolic_expected_kcal: float  # the literature expectation used as the prior mean
+    expenditure: ExpenditureChange  # the adaptation work's decomposition of the change
 
     def part(self, code: str) -> CausePart:
         for p in self.parts:
@@ -438,9 +490,8 @@ def deficit_change_causes(
     early: WindowSummary,
     recent: WindowSummary,
     *,
-    reference_tdee_kcal: float,
-    resting_kcal: float,
-    kcal_per_step_recent: float | None,
+    activity_coefficient_kcal_per_kg_day: float,
+    activity_change: tuple[float, float] | None,
     params: HallParams = HALL_2011,
 ) -> DeficitChangeCauses:
     """Split the change in realised deficit between two windows into its causes.
@@ -449,16 +500,16 @@ def deficit_change_causes(
     ----------
     early, recent : WindowSummary
         The phase's first weeks after its glycogen weeks, and the recent window.
-    reference_tdee_kcal : float
-        Expenditure at the early window (the client's baseline TDEE), which sets
-        the body-weight-proportional activity cost delta. [kcal/day]
-    resting_kcal : float
-        Resting expenditure at the early window's weight (e.g. Mifflin-St Jeor).
-        [kcal/day]
-    kcal_per_step_recent : float or None
-        Net energy cost of one step at the recent weight; None when steps are not
-        logged in both windows (activity is then "not measured" and the
-        remainder includes any change in activity). [kcal/step]
+        Both need a logged mean intake.
+    activity_coefficient_kcal_per_kg_day : float
+        delta of the Hall model for this client
+        (``expected.activity_coefficient_kcal_per_kg_day`` from the baseline TDEE).
+        [kcal/kg/day]
+    activity_change : (float, float) or None
+        Change in activity expenditure from logged steps and its SD
+        (``activity.step_energy_change_kcal``); None when steps are not logged in
+        both windows: activity is then "not measured" and the metabolic part
+        includes any change in activity. [kcal/day]
     params : HallParams
         The Hall et al. 2011 coefficients (gammaF, gammaL, betaTEF, betaAT, tauAT).
 
@@ -468,88 +519,94 @@ def deficit_change_causes(
         Parts in kcal/day with 80 % intervals; ``leftover_kcal`` is what is not
         placed; ``largest`` the part that closed the deficit most.
 
+    Raises
+    ------
+    ValueError
+        If either window has no logged mean intake.
+
     Notes
     -----
     The realised deficit D = E - I_true, with logged intake I = I_true - U
-    (U the unlogged intake).  Between the windows
+    (U the intake not logged).  Observed expenditure is I + D, and its change
+    between the windows is taken apart by the adaptation work
+    (``adaptation.decompose_expenditure_change``): body size
+    (``adaptation.body_size_change_kcal``: gammaF dF + gammaL dFFM + delta dBW,
+    Hall et al. 2011 [1]_), activity from steps, and a remainder.  Then
 
-        dD = -(1 - betaTEF) dI  +  dE_size  +  dE_act  +  dAT  -  dU
+        dD = -(1 - betaTEF) dI + body size + activity + (remainder - betaTEF dI)
 
-    (eating more also costs betaTEF of it, Hall et al. 2011 [1]_):
+    (eating more also costs betaTEF of it, so that share of the remainder moves to
+    the intake part).  The remainder is dAT - dU: adaptation and a change in the
+    unlogged intake, which weight and logged intake cannot tell apart.  It is
+    split by normal priors (normal-normal updating, Gelman et al. 2013, §2.5):
 
-    * intake: -(1 - betaTEF) dI from the logged means;
-    * body-size: gammaF dF + gammaL dFFM + delta dBW, the Hall et al. 2011
-      expenditure terms, with delta = ((1 - betaTEF) TDEE - RMR)/BW;
-    * activity: cost per step x change in mean daily steps;
-    * metabolic (dAT) and logging (-dU): weight and logged intake give only
-      their difference R = dD - intake - body-size - activity.  R is split by
-      normal priors (standard normal-normal updating, e.g. Gelman et al. 2013,
-      §2.5): dAT ~ N(m_A, s_A^2), with m_A the change the Hall model's adaptive
-      thermogenesis (betaAT 0.14, tauAT 14 days) makes between the windows at
-      this deficit and s_A = betaAT x deficit + 50 kcal/day (judgment: individual
-      adaptation ranges from about none to twice the model's, and slower
-      components build over months); dU ~ N(m_U, s_U^2) with m_U = 500 kcal x
-      the fall in the share of days logged (unlogged days tend to be the high
-      days; common practice, no single source) and s_U = 2.5 % of intake +
-      25 kcal/day + m_U/2 (judgment; under-reporting can change during a diet,
-      Lichtman et al. 1992 [5]_).  The noise of R (from the deficit, intake,
-      body-size and activity parts) keeps its share of R unplaced: that is the
-      leftover, and the parts plus the leftover equal dD exactly.
+    * dAT ~ N(m_A, s_A^2): m_A the change the literature expects between the
+      windows (``adaptation.literature_adaptation_kcal`` at the early window's
+      deficit: Hall et al. 2011's AT term, mostly in place within weeks), and
+      s_A the root sum of squares of its between-person SD at the recent window
+      and of a slower part that grows with the weight lost between the windows:
+      6 kcal/kg FFM/day per 10 % lost (Leibel et al. 1995 [6]_, published: TEE
+      -6 +/- 3 kcal/kg FFM/day in never-obese adults held 10 % below their usual
+      weight; used as a scale of spread, not as a mean, because it was measured
+      at a maintained reduced weight rather than during a deficit; judgment);
+    * dU ~ N(m_U, s_U^2): m_U = 500 kcal x the fall in the share of days logged
+      (unlogged days tend to be the high days; common practice, no single source;
+      Thomas et al. 2014 [3]_ find declining adherence behind most plateaus) and
+      s_U = ``adaptation.logging_drift_sd_kcal`` at 2.5 % of intake + 25 kcal/day
+      + m_U/2 (judgment; under-reporting can change during a diet, Lichtman et al.
+      1992 [5]_; within a phase less than the 15 % the adaptation work allows
+      since the baseline).
+
+    The noise of the remainder (deficit, intake, body-size and activity
+    errors) keeps its share of it unplaced: that is ``leftover_kcal``, so the
+    parts plus the leftover equal the change exactly.  The intake implied by
+    weight now (``implied_intake.implied_intake``, Hall & Chow 2011 [2]_, with the
+    early window as reference and the literature adaptation) is reported beside
+    the logged intake.
     """
+    if early.intake_kcal is None or recent.intake_kcal is None:
+        raise ValueError("both windows need a logged mean intake")
     d_change = recent.deficit_kcal - early.deficit_kcal
     d_sd = math.hypot(recent.deficit_se_kcal, early.deficit_se_kcal)
-    parts: dict[str, tuple[float, float] | None] = {}
-    # intake drift
-    intake_change = None
-    if recent.intake_kcal is not None and early.intake_kcal is not None:
-        intake_change = recent.intake_kcal - early.intake_kcal
-        sd = (1 - params.beta_tef) * math.hypot(
-            recent.intake_se_kcal or 0, early.intake_se_kcal or 0
-        )
-        parts["intake"] = (-(1 - params.beta_tef) * intake_change, sd)
-    else:
-        parts["intake"] = None
-    # smaller body (Hall 2011 terms other than adaptive thermogenesis)
-    delta = activity_coefficient_kcal_per_kg_day(
-        reference_tdee_kcal, resting_kcal, early.mean_weight_kg, params
-    )
+    intake_change = recent.intake_kcal - early.intake_kcal
+    intake_sd = math.hypot(recent.intake_se_kcal or 0.0, early.intake_se_kcal or 0.0)
     d_bw = recent.mean_weight_kg - early.mean_weight_kg
     d_fat = recent.fat_kg - early.fat_kg
-    size = (
-        params.gamma_fat_kcal_per_kg_day * d_fat
-        + params.gamma_lean_kcal_per_kg_day * (d_bw - d_fat)
-        + delta * d_bw
+    size = body_size_change_kcal(
+        d_fat, d_bw - d_fat, d_bw, activity_coefficient_kcal_per_kg_day, params
     )
-    parts["body-size"] = (size, BODY_SIZE_REL_SD * abs(size) + BODY_SIZE_SD_BASE_KCAL)
-    # activity from steps
-    if (
-        kcal_per_step_recent is not None
-        and recent.steps is not None
-        and early.steps is not None
-        and recent.steps_se is not None
-        and early.steps_se is not None
-    ):
-        act = kcal_per_step_recent * (recent.steps - early.steps)
-        sd = math.hypot(
-            kcal_per_step_recent * math.hypot(recent.steps_se, early.steps_se),
-            STEP_COST_REL_SD * act,
-        )
-        parts["activity"] = (act, sd)
-    else:
-        parts["activity"] = None
-    measured = [v for v in parts.values() if v is not None]
-    remainder = d_change - sum(v for v, _ in measured)
-    noise_var = d_sd * d_sd + sum(s * s for _, s in measured)
+    size_sd = BODY_SIZE_REL_SD * abs(size) + BODY_SIZE_SD_BASE_KCAL
+    act, act_sd = activity_change if activity_change is not None else (None, None)
+    expenditure = decompose_expenditure_change(
+        d_change + intake_change,
+        math.hypot(d_sd, intake_sd),
+        size,
+        size_sd,
+        act,
+        act_sd,
+    )
+    tef = params.beta_tef * intake_change
+    remainder = d_change + intake_change - size - (act or 0.0) - tef
+    intake_part = (-(intake_change - tef), (1 - params.beta_tef) * intake_sd)
+    noise_var = d_sd**2 + intake_part[1] ** 2 + size_sd**2 + (act_sd or 0.0) ** 2
     # metabolic / logging split of the remainder
     cut = max(early.deficit_kcal, 0.0)
-    m_a = early_adaptation_kcal(
-        cut, recent.first_day_in_deficit, recent.days, params
-    ) - early_adaptation_kcal(cut, early.first_day_in_deficit, early.days, params)
-    s_a = params.beta_at * cut + METABOLIC_PRIOR_SD_BASE_KCAL
+    lit_e, _ = literature_adaptation_kcal(-cut, early.first_day_in_deficit, early.days, params)
+    lit_r, s_lit = literature_adaptation_kcal(
+        -cut, recent.first_day_in_deficit, recent.days, params
+    )
+    m_a = lit_r - lit_e
+    loss_pct = max(-d_bw, 0.0) / early.mean_weight_kg * 100.0
+    ffm = recent.mean_weight_kg - recent.fat_kg
+    s_slow = LEIBEL_TEE_KCAL_PER_KG_FFM_PER_10PCT * ffm * loss_pct / 10.0
+    s_a = math.hypot(s_lit, s_slow)
     completeness_change = recent.completeness_pct - early.completeness_pct
     m_u = UNLOGGED_DAY_EXCESS_KCAL * max(-completeness_change, 0.0) / 100.0
-    intake_ref = early.intake_kcal if early.intake_kcal is not None else 2000.0
-    s_u = LOGGING_PRIOR_SD_SHARE * intake_ref + LOGGING_PRIOR_SD_BASE_KCAL + m_u / 2
+    s_u = (
+        logging_drift_sd_kcal(early.intake_kcal, LOGGING_PRIOR_SD_SHARE)
+        + LOGGING_PRIOR_SD_BASE_KCAL
+        + m_u / 2
+    )
     total = s_a * s_a + s_u * s_u + noise_var
     innov = remainder - (m_a - m_u)
     d_at = m_a + s_a * s_a / total * innov
@@ -557,34 +614,40 @@ def deficit_change_causes(
     sd_at = s_a * math.sqrt(max(1 - s_a * s_a / total, 0.0))
     sd_u = s_u * math.sqrt(max(1 - s_u * s_u / total, 0.0))
     leftover = innov * noise_var / total
-    out_parts = []
-    for code in CAUSE_CODES:
-        if code == "metabolic":
-            out_parts.append(CausePart(code, _est(d_at, sd_at)))
-        elif code == "logging":
-            out_parts.append(CausePart(code, _est(-d_u, sd_u)))
-        else:
-            v = parts[code]
-            kcal = Estimate.missing("not-measured") if v is None else _est(*v)
-            out_parts.append(CausePart(code, kcal))
+    values: dict[str, Estimate] = {
+        "intake": _est(*intake_part),
+        "body-size": _est(size, size_sd),
+        "activity": expenditure.activity,
+        "metabolic": _est(d_at, sd_at),
+        "logging": _est(-d_u, sd_u),
+    }
+    out_parts = tuple(CausePart(code, values[code]) for code in CAUSE_CODES)
     closing = [(p.kcal.value, p.code) for p in out_parts if p.kcal.value is not None]
     worst = min(closing, default=None)
     largest = worst[1] if worst is not None and worst[0] < 0 else None
-    gap_then = gap_now = None
-    if early.implied_intake_kcal is not None and early.intake_kcal is not None:
-        gap_then = early.implied_intake_kcal - early.intake_kcal
-    if recent.implied_intake_kcal is not None and recent.intake_kcal is not None:
-        gap_now = recent.implied_intake_kcal - recent.intake_kcal
+    implied = implied_intake(
+        early.intake_kcal,
+        early.intake_se_kcal or 0.0,
+        d_change,
+        d_sd,
+        size + (act or 0.0),
+        m_a,
+        s_a,
+        recent.intake_kcal,
+        recent.intake_se_kcal or 0.0,
+        params=params,
+    )
     return DeficitChangeCauses(
         change_kcal=_est(d_change, d_sd),
-        parts=tuple(out_parts),
+        parts=out_parts,
         leftover_kcal=leftover,
         largest=largest,
         intake_change_kcal=intake_change,
         completeness_change_pct=completeness_change,
-        logging_gap_then_kcal=gap_then,
-        logging_gap_now_kcal=gap_now,
+        implied_intake_kcal=implied.implied,
+        logging_gap_kcal=implied.gap,
         metabolic_expected_kcal=m_a,
+        expenditure=expenditure,
     )
 
 
