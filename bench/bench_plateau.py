@@ -42,7 +42,7 @@ from reportgen.science import expected as exp_
 from reportgen.science import plateau as pl
 from reportgen.science.activity import step_energy_change_kcal
 from reportgen.science.composition import energy_density_kcal_per_kg
-from reportgen.science.rates import NoiseModel, WindowRate, fit_noise_model, segment_rate
+from reportgen.science.rates import WindowRate, fit_noise_model, segment_rate
 from reportgen.science.resting import resting_kcal_mifflin_st_jeor
 from reportgen.science.trend import Z80, local_linear_trend
 
@@ -57,15 +57,6 @@ class Outcome:
     causes: pl.DeficitChangeCauses | None
 
 
-def recent_rate(
-    w: np.ndarray, lo: int, hi: int, weights: np.ndarray, noise: NoiseModel | None
-) -> WindowRate | None:
-    """Slope over [lo, hi], a linear spline with a knot at lo and 28 days before it."""
-    return segment_rate(
-        w, lo, hi, (lo,), weights, noise, margin_days=28, shift_prior_sd_kg=None, edge_knots=False
-    )
-
-
 def analyse(sim: PlateauSim) -> Outcome:
     """The plateau estimate from the simulated client's logs alone."""
     w = sim.weight_kg
@@ -76,9 +67,7 @@ def analyse(sim: PlateauSim) -> Outcome:
     fit = local_linear_trend(w)
     # noise about straight lines over four-week pieces (a whole phase is not a straight
     # line when it stalls, and the curvature would pass for water swings)
-    pieces = [(0, d0 - 1)] + [
-        (a, min(a + 27, last)) for a in range(d0 + EARLY_FIRST, n, 28) if last - a >= 13
-    ]
+    pieces = [(0, d0 - 1), *pl.noise_pieces(d0 + EARLY_FIRST, last)]
     noise = fit_noise_model(w, pieces, fit.weights)
     knots = (d0,)
     level = fit.level_kg
@@ -92,7 +81,7 @@ def analyse(sim: PlateauSim) -> Outcome:
     # the window's own slope, continuous with the four weeks before it (a spline with
     # one slope over the whole phase would average the recent weeks with the earlier
     # ones, which is what a plateau breaks)
-    wr = recent_rate(w, lo, last, fit.weights, noise)
+    wr = pl.recent_window_rate(w, lo, last, fit.weights, noise)
     cur_w = float(level[last])
     rate_pct = se_pct = None
     if wr is not None:
@@ -132,7 +121,7 @@ def analyse(sim: PlateauSim) -> Outcome:
     j = pl.first_high_day(recent_intake)
     if j is not None and j >= bal.MIN_DAYS:
         # cut the series at the first high day, so the fit cannot see the water after it
-        wb = recent_rate(w[: lo + j], lo, lo + j - 1, fit.weights[: lo + j], noise)
+        wb = pl.recent_window_rate(w[: lo + j], lo, lo + j - 1, fit.weights[: lo + j], noise)
         if wb is not None:
             before = (700.0 * wb.rate_kg_per_day / cur_w, 700.0 * wb.se_kg_per_day / cur_w)
     status = pl.progress_status(

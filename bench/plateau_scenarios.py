@@ -229,7 +229,15 @@ def simulate_plateau(
     w0 = p.fat_kg + p.lean_kg + p.other_kg
     base = _expenditure_wo_tef(p, p.fat_kg, p.lean_kg, w0, p.steps0)
     maint = base / (1 - p.tef)
-    cut = float(rng.uniform(350, 500) if scenario == "activity-drop" else rng.uniform(450, 750))
+    # activity: a smaller cut, or closing it would take implausibly many steps; no stall:
+    # deeper, so that the false-stall check has clients losing 0.5 %/week or more
+    cut = float(
+        rng.uniform(350, 500)
+        if scenario == "activity-drop"
+        else rng.uniform(550, 900)
+        if scenario == "no-stall"
+        else rng.uniform(450, 750)
+    )
     # constant under-reporting in 40 % of clients; the plan is met in the log's terms
     u0 = 0.0 if rng.random() < 0.6 else float(rng.uniform(0.05, 0.2))
     target = round((maint - cut) * (1 - u0), -1)

@@ -427,3 +427,24 @@ def test_likely_water_means_recheck() -> None:
     got = _opts("likely-water", days_in_deficit=120, deficit_depth_pct=30.0)
     assert [o.code for o in got.options] == ["recheck"]
     assert got.options[0].values == {"days_min": 7, "days_max": 14}
+
+
+# ---------------------------------------------------------------- recent rate
+
+
+def test_recent_rate_follows_a_bend_in_the_trend() -> None:
+    # a noiseless broken line: -0.1 kg/day for 56 days, then flat for 28 (a stall)
+    t = np.arange(84, dtype=float)
+    w = 90.0 - 0.1 * np.minimum(t, 56.0)
+    got = pl.recent_window_rate(w, 56, 83, None, None)
+    assert got is not None
+    assert got.rate_kg_per_day == pytest.approx(0.0, abs=1e-9)  # exact for a noiseless line
+    # one straight line over window and margin would average the two slopes
+    assert np.polyfit(t[28:], w[28:], 1)[0] == pytest.approx(-0.0513, abs=1e-3)  # hand: OLS
+
+
+def test_noise_pieces_cover_the_span() -> None:
+    assert pl.noise_pieces(14, 97) == [(14, 41), (42, 69), (70, 97)]
+    # a last piece shorter than two weeks is left out
+    assert pl.noise_pieces(0, 40) == [(0, 27)]
+    assert pl.noise_pieces(0, 5) == []

@@ -70,6 +70,7 @@ from reportgen.science.flags import (
 )
 from reportgen.science.hall import HALL_2011, HallParams
 from reportgen.science.implied_intake import implied_intake
+from reportgen.science.rates import NoiseModel, WindowRate, segment_rate
 from reportgen.science.trend import Z80
 
 PROGRESS_STATUSES: tuple[str, ...] = (
@@ -163,6 +164,78 @@ class ProgressStatus:
     planned_pct_per_week: float | None = None
     underlying: str | None = None  # the status before the water explanation
     water_reasons: tuple[str, ...] = ()
+
+
+RECENT_MARGIN_DAYS = 28  # weeks before the recent window that pin its starting level
+
+
+def recent_window_rate(
+    weight_kg: FloatArray,
+    i0: int,
+    i1: int,
+    robust_weights: FloatArray | None,
+    noise: NoiseModel | None,
+    margin_days: int = RECENT_MARGIN_DAYS,
+) -> WindowRate | None:
+    """Rate of weight change over a recent window, continuous with the weeks before it.
+
+    Parameters
+    ----------
+    weight_kg : numpy.ndarray
+        Daily weights on the calendar grid, NaN on missing days; the series must
+        end where the fit should stop seeing data (cut it before high-intake days
+        to measure the rate before them). [kg]
+    i0, i1 : int
+        First and last index of the window (inclusive).
+    robust_weights : numpy.ndarray or None
+        Weigh-in precision weights from the robust trend fit.
+    noise : NoiseModel or None
+        AR(1)-plus-white weigh-in noise (:func:`noise_pieces` for where to fit it).
+    margin_days : int, default 28
+        Days before the window in the fit. [day]
+
+    Returns
+    -------
+    WindowRate or None
+        ``rates.segment_rate`` with a knot at ``i0`` and no glycogen step there.
+
+    Notes
+    -----
+    A linear spline with one knot at the window's start, fitted by generalised
+    least squares over the window and the ``margin_days`` before it: the window
+    has its own slope, and its starting level is pinned by the weeks before
+    (tissue mass is continuous).  One slope over the whole phase would average
+    the recent weeks with the earlier ones, which is exactly what a plateau
+    breaks.  Keep the margin inside the phase's weeks after its glycogen weeks.
+    """
+    return segment_rate(
+        weight_kg,
+        i0,
+        i1,
+        (i0,),
+        robust_weights,
+        noise,
+        margin_days=margin_days,
+        shift_prior_sd_kg=None,
+        edge_knots=False,
+    )
+
+
+def noise_pieces(i0: int, i1: int, length_days: int = RECENT_WINDOW_DAYS) -> list[tuple[int, int]]:
+    """Consecutive pieces of a span over which the trend is taken as a straight line.
+
+    The weigh-in noise model (``rates.fit_noise_model``) is fitted to residuals
+    about straight lines; over a whole phase that stalls the trend is not
+    straight and its curvature would pass for water swings (widening every
+    interval).  Pieces of ``length_days`` (the last one at least half as long)
+    from ``i0`` to ``i1`` inclusive.
+    """
+    out = []
+    for a in range(i0, i1 + 1, length_days):
+        b = min(a + length_days - 1, i1)
+        if b - a + 1 >= length_days // 2:
+            out.append((a, b))
+    return out
 
 
 def planned_rate_pct_per_week(
