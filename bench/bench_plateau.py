@@ -40,6 +40,7 @@ from reportgen.results import Estimate
 from reportgen.science import balance as bal
 from reportgen.science import expected as exp_
 from reportgen.science import plateau as pl
+from reportgen.science import plateau_causes as pc
 from reportgen.science.activity import step_energy_change_kcal
 from reportgen.science.composition import energy_density_kcal_per_kg
 from reportgen.science.rates import WindowRate, fit_noise_model, segment_rate
@@ -47,14 +48,14 @@ from reportgen.science.resting import resting_kcal_mifflin_st_jeor
 from reportgen.science.trend import Z80, local_linear_trend
 
 PLANNED_SE_FACTOR = 1.0  # --planned-se-factor: 0 ignores the plan's own uncertainty
-FAT_SE_KG = 2.5  # skinfold equation error as fat mass (science notes §2.4, about 3.5 %BF)
+FAT_SE_KG = 2.5  # skinfold equation error as fat mass (about 3.5 %BF: Jackson & Pollock 1978 SEE)
 
 
 @dataclass
 class Outcome:
     sim: PlateauSim
     status: pl.ProgressStatus
-    causes: pl.DeficitChangeCauses | None
+    causes: pc.DeficitChangeCauses | None
 
 
 def analyse(sim: PlateauSim) -> Outcome:
@@ -136,7 +137,7 @@ def analyse(sim: PlateauSim) -> Outcome:
         planned_se_pct_per_week=planned_se * PLANNED_SE_FACTOR,
     )
 
-    def summary(i0: int, i1: int, rate: WindowRate | None) -> pl.WindowSummary | None:
+    def summary(i0: int, i1: int, rate: WindowRate | None) -> pc.WindowSummary | None:
         b = bal.window_balance(
             w[i0 : i1 + 1],
             intake[i0 : i1 + 1],
@@ -149,8 +150,8 @@ def analyse(sim: PlateauSim) -> Outcome:
         if b.deficit_kcal.value is None or b.deficit_se_kcal is None:
             return None
         mean_w = float(level[i0 : i1 + 1].mean())
-        steps, steps_se = pl.signal_mean(sim.steps[i0 : i1 + 1])
-        return pl.WindowSummary(
+        steps, steps_se = pc.signal_mean(sim.steps[i0 : i1 + 1])
+        return pc.WindowSummary(
             days=i1 - i0 + 1,
             first_day_in_deficit=i0 - d0,
             mean_weight_kg=mean_w,
@@ -176,7 +177,7 @@ def analyse(sim: PlateauSim) -> Outcome:
             sim.height_cm,
             sim.sex,
         )
-        causes = pl.deficit_change_causes(
+        causes = pc.deficit_change_causes(
             early, recent, activity_coefficient_kcal_per_kg_day=delta, activity_change=act
         )
     return Outcome(sim, status, causes)

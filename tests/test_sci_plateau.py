@@ -16,6 +16,7 @@ from hypothesis import strategies as st
 
 from reportgen.results import Estimate
 from reportgen.science import plateau as pl
+from reportgen.science import plateau_causes as pc
 from reportgen.science.activity import kcal_per_1000_steps
 from reportgen.science.adaptation import literature_adaptation_kcal
 from reportgen.science.hall import HALL_2011
@@ -191,7 +192,7 @@ def test_break_before_and_missing_logs() -> None:
 # ---------------------------------------------------------------- causes
 
 
-def _window(first_day: int, **kw: float) -> pl.WindowSummary:
+def _window(first_day: int, **kw: float) -> pc.WindowSummary:
     vals: dict[str, float] = {
         "mean_weight_kg": 90.0,
         "fat_kg": 30.0,
@@ -202,7 +203,7 @@ def _window(first_day: int, **kw: float) -> pl.WindowSummary:
         "intake_days": 28,
     }
     vals.update(kw)
-    return pl.WindowSummary(
+    return pc.WindowSummary(
         days=28,
         first_day_in_deficit=first_day,
         mean_weight_kg=vals["mean_weight_kg"],
@@ -220,7 +221,7 @@ RECENT = _window(70, mean_weight_kg=86.0, fat_kg=27.0, deficit_kcal=200.0, intak
 
 
 def test_cause_parts_hand_calculation() -> None:
-    got = pl.deficit_change_causes(
+    got = pc.deficit_change_causes(
         EARLY, RECENT, activity_coefficient_kcal_per_kg_day=8.0, activity_change=(-50.0, 10.0)
     )
     assert got.change_kcal.value == pytest.approx(-300.0, abs=1e-9)
@@ -244,7 +245,7 @@ def test_cause_parts_hand_calculation() -> None:
 
 
 def test_metabolic_prior_is_the_literature_expectation() -> None:
-    got = pl.deficit_change_causes(
+    got = pc.deficit_change_causes(
         EARLY, RECENT, activity_coefficient_kcal_per_kg_day=8.0, activity_change=None
     )
     lit_r, _ = literature_adaptation_kcal(-500.0, 70, 28, HALL_2011)
@@ -256,7 +257,7 @@ def test_metabolic_prior_is_the_literature_expectation() -> None:
 
 
 def test_activity_not_measured() -> None:
-    got = pl.deficit_change_causes(
+    got = pc.deficit_change_causes(
         EARLY, RECENT, activity_coefficient_kcal_per_kg_day=8.0, activity_change=None
     )
     assert got.part("activity").kcal.reason == "not-measured"
@@ -265,7 +266,7 @@ def test_activity_not_measured() -> None:
 
 def test_unexplained_fall_goes_to_metabolism_when_logging_is_steady() -> None:
     recent = _window(70, mean_weight_kg=86.0, fat_kg=27.0, deficit_kcal=150.0)
-    got = pl.deficit_change_causes(
+    got = pc.deficit_change_causes(
         EARLY, recent, activity_coefficient_kcal_per_kg_day=8.0, activity_change=(0.0, 10.0)
     )
     assert got.largest == "metabolic"
@@ -278,10 +279,10 @@ def test_unexplained_fall_goes_to_metabolism_when_logging_is_steady() -> None:
 def test_fewer_logged_days_shift_the_remainder_to_logging() -> None:
     steady = _window(70, mean_weight_kg=86.0, fat_kg=27.0, deficit_kcal=150.0)
     patchy = _window(70, mean_weight_kg=86.0, fat_kg=27.0, deficit_kcal=150.0, intake_days=17)
-    a = pl.deficit_change_causes(
+    a = pc.deficit_change_causes(
         EARLY, steady, activity_coefficient_kcal_per_kg_day=8.0, activity_change=None
     )
-    b = pl.deficit_change_causes(
+    b = pc.deficit_change_causes(
         EARLY, patchy, activity_coefficient_kcal_per_kg_day=8.0, activity_change=None
     )
     # share of days logged 100 % -> 60.7 %: prior unlogged intake 500 x 0.393 = 196 (rule)
@@ -293,7 +294,7 @@ def test_fewer_logged_days_shift_the_remainder_to_logging() -> None:
 def test_implied_intake_gap_points_at_unlogged_food() -> None:
     # the deficit closed by 350 with logged intake unchanged: weight implies more eaten
     recent = _window(70, mean_weight_kg=86.0, fat_kg=27.0, deficit_kcal=150.0)
-    got = pl.deficit_change_causes(
+    got = pc.deficit_change_causes(
         EARLY, recent, activity_coefficient_kcal_per_kg_day=8.0, activity_change=None
     )
     assert got.logging_gap_kcal.value is not None
@@ -303,9 +304,9 @@ def test_implied_intake_gap_points_at_unlogged_food() -> None:
 
 
 def test_causes_need_logged_intake() -> None:
-    no_intake = pl.WindowSummary(28, 70, 86.0, 27.0, 200.0, 60.0, None, None, 0)
+    no_intake = pc.WindowSummary(28, 70, 86.0, 27.0, 200.0, 60.0, None, None, 0)
     with pytest.raises(ValueError, match="logged mean intake"):
-        pl.deficit_change_causes(
+        pc.deficit_change_causes(
             EARLY, no_intake, activity_coefficient_kcal_per_kg_day=8.0, activity_change=None
         )
 
@@ -335,7 +336,7 @@ def test_parts_and_leftover_add_up_to_the_change(
         intake_kcal=i_r,
         intake_days=days_logged,
     )
-    got = pl.deficit_change_causes(
+    got = pc.deficit_change_causes(
         EARLY, recent, activity_coefficient_kcal_per_kg_day=7.0, activity_change=act
     )
     total = sum(p.kcal.value for p in got.parts if p.kcal.value is not None) + got.leftover_kcal
@@ -350,8 +351,8 @@ def test_parts_and_leftover_add_up_to_the_change(
 
 
 def test_steps_to_close_gap() -> None:
-    # ACSM level walking at 80 kg and 0.7 m steps: 28 kcal per 1000 steps (science notes §0,
-    # computed there); 200 / 0.028 = 7142.9, rounded up to 7200 (hand)
+    # ACSM walking equation, level term 0.1 ml O2/kg/m x 5 kcal/L, at 80 kg and 0.7 m steps:
+    # 28 kcal per 1000 steps (hand-calculated; equation from memory); 200 / 0.028 = 7142.9, rounded up to 7200 (hand)
     per_step = kcal_per_1000_steps(80.0, 0.7) / 1000.0
     assert per_step == pytest.approx(0.028, abs=1e-12)
     assert pl.steps_to_close_gap(200.0, per_step) == 7200

@@ -6,7 +6,7 @@ Three pure steps, each over plain numbers:
   planned rate: ``on-track``, ``slower``, ``stalled``, ``gaining``, or
   ``likely-water`` when a glycogen-and-water shift explains the stall
   (:func:`water_explanation`), or ``too-early`` / ``too-few-data`` with a reason;
-* :func:`deficit_change_causes` - the change in realised deficit between the
+* ``plateau_causes.deficit_change_causes`` - the change in realised deficit between the
   phase's first weeks (after its glycogen weeks) and the recent window, split
   into intake drift, the smaller body, activity (steps), a metabolic remainder
   and logging, each in kcal/day with an 80 % interval; the parts add up to the
@@ -20,7 +20,8 @@ body and beyond it (less spontaneous movement, adaptive thermogenesis), and
 intake tends to creep up as adherence declines; weight plateaus at six to eight
 months are mostly explained by declining adherence rather than by adaptation
 alone (Thomas et al. 2014 [3]_).  Weight from water and glycogen can hide fat
-loss for one to two weeks after an intake change (science notes §4.4), so a
+loss for one to two weeks after an intake change (glycogen is stored with its
+water: Hall et al. 2011's model uses 2.7 g per g, the literature 3-4 g/g), so a
 flat scale after high-intake days is named as such rather than as a stall.
 
 Sign convention: every part is its effect on the realised deficit in kcal/day;
@@ -56,20 +57,11 @@ import numpy as np
 
 from reportgen.io.model import FloatArray
 from reportgen.results import Estimate
-from reportgen.science.adaptation import (
-    ExpenditureChange,
-    body_size_change_kcal,
-    decompose_expenditure_change,
-    literature_adaptation_kcal,
-    logging_drift_sd_kcal,
-)
 from reportgen.science.flags import (
     BMI_UNDERWEIGHT,
     INTAKE_FLOOR_MEN_KCAL,
     INTAKE_FLOOR_WOMEN_KCAL,
 )
-from reportgen.science.hall import HALL_2011, HallParams
-from reportgen.science.implied_intake import implied_intake
 from reportgen.science.rates import NoiseModel, WindowRate, segment_rate
 from reportgen.science.trend import Z80
 
@@ -96,14 +88,13 @@ WATER_REASONS: tuple[str, ...] = (
     "break-before",  # a diet break or maintenance phase ended shortly before or inside it
     "intake-rise-inside",  # intake stepped up inside the window
 )
-CAUSE_CODES: tuple[str, ...] = ("intake", "body-size", "activity", "metabolic", "logging")
 
 # The recent window: the last four weeks, at least three (the issue's "last 3-4 weeks").
 RECENT_WINDOW_DAYS = 28
 MIN_RECENT_DAYS = 21
 MIN_RECENT_WEIGH_INS = 10  # judgment: fewer cannot pin a three-week rate
-# The first two weeks after an intake change are dominated by glycogen and water (science
-# notes §4.4 and §8, common practice): the comparison window starts after them, and a phase
+# The first two weeks after an intake change are dominated by glycogen and water (common
+# practice, no single source): the comparison window starts after them, and a phase
 # needs a week of data beyond them for a status.
 GLYCOGEN_WEEKS_DAYS = 14
 MIN_PHASE_DAYS = GLYCOGEN_WEEKS_DAYS + 7
@@ -118,8 +109,8 @@ ON_TRACK_SHARE = 0.75
 ZERO_Z = 1.959963984540054  # scipy.stats.norm.ppf(0.975)
 STATUS_Z = 1.6448536269514722  # scipy.stats.norm.ppf(0.95)
 
-# Water and glycogen: glycogen 17.6 MJ/kg is stored with 2.7-4 g of water per g (science
-# notes §0 and §4.4), so a day 1000 kcal above plan, mostly carbohydrate, can add about
+# Water and glycogen: glycogen 17.6 MJ/kg (Hall 2008) is stored with 2.7-4 g of water per g
+# (from memory), so a day 1000 kcal above plan, mostly carbohydrate, can add about
 # 1 kg for several days.  Thresholds are judgment / common practice, no single source.
 HIGH_DAY_LOOKBACK_DAYS = 7  # "just before": the window's last week
 HIGH_DAY_MARGIN_KCAL = 600.0  # a day this far above the window's median is a high day
@@ -127,19 +118,6 @@ HIGH_DAYS_MIN_EXCESS_KCAL = 1000.0  # total excess over those days that can move
 BREAK_WATER_DAYS = GLYCOGEN_WEEKS_DAYS  # glycogen refilled in a break leaves within 2 weeks
 INTAKE_RISE_KCAL = 300.0  # a step up in mean intake inside the window (second vs first half)
 MIN_HALF_LOGGED_DAYS = 5
-
-# Priors of the metabolic / logging split (judgment, stated in the docstring).
-LOGGING_PRIOR_SD_SHARE = 0.025  # of the early intake: per-entry under-reporting can change
-LOGGING_PRIOR_SD_BASE_KCAL = 25.0
-# Days left unlogged during a diet tend to be the high days (common practice, no single
-# source; Thomas et al. 2014 find declining adherence behind most plateaus): excess intake
-# of an unlogged day over the logged mean, used for the logging prior.
-UNLOGGED_DAY_EXCESS_KCAL = 500.0
-# Leibel et al. 1995 (NEJM 332:621-8, abstract, published): TEE fell 6 +/- 3 kcal/kg FFM/day
-# (never obese) after holding weight >= 10 % below usual; the scale of the slow part's spread.
-LEIBEL_TEE_KCAL_PER_KG_FFM_PER_10PCT = 6.0
-BODY_SIZE_REL_SD = 0.25  # judgment: composition and activity coefficient uncertain
-BODY_SIZE_SD_BASE_KCAL = 10.0
 
 # Options.
 # A break at maintenance is suggested after this long a deficit at this depth (judgment,
@@ -338,7 +316,8 @@ def water_explanation(
 
     Notes
     -----
-    Glycogen is stored with 2.7-4 g of water per g (science notes §0, §4.4), so
+    Glycogen is stored with 2.7-4 g of water per g (Hall et al. 2011 [1]_ use 2.7;
+    3-4 g/g elsewhere; from memory), so
     refilling it after high-carbohydrate days or a break adds 1-2 kg that leaves
     over one to two weeks.  Rules (judgment / common practice, no single source):
 
@@ -489,242 +468,6 @@ def progress_status(
 
 
 @dataclass(frozen=True)
-class WindowSummary:
-    """What the cause split needs from one window (the phase's first weeks, or recent)."""
-
-    days: int
-    first_day_in_deficit: int  # window's first day counted from the deficit's start (0 = first)
-    mean_weight_kg: float
-    fat_kg: float
-    deficit_kcal: float  # realised deficit (positive = deficit), balance.window_balance
-    deficit_se_kcal: float
-    intake_kcal: float | None  # mean logged intake
-    intake_se_kcal: float | None
-    intake_days: int  # days with a logged intake
-    steps: float | None = None  # mean logged steps
-    steps_se: float | None = None
-    hunger: float | None = None  # mean rating, 1-10
-    energy: float | None = None
-
-    @property
-    def completeness_pct(self) -> float:
-        """Share of the window's days with a logged intake. [%]"""
-        return 100.0 * self.intake_days / self.days if self.days > 0 else 0.0
-
-
-def signal_mean(values: FloatArray) -> tuple[float | None, float | None]:
-    """Mean of a logged daily signal and its standard error (None with fewer than 5 values).
-
-    SE = s / sqrt(n), the sample standard error of a mean (days taken as
-    independent; judgment).
-    """
-    x = np.asarray(values, dtype=float)
-    x = x[np.isfinite(x)]
-    if x.size < 5:
-        return None, None
-    return float(x.mean()), float(x.std(ddof=1) / math.sqrt(x.size))
-
-
-@dataclass(frozen=True)
-class CausePart:
-    """One cause's effect on the realised deficit (negative = it closed the deficit)."""
-
-    code: str  # one of CAUSE_CODES
-    kcal: Estimate  # 80 % interval; missing with reason "not-measured" when not measured
-
-
-@dataclass(frozen=True)
-class DeficitChangeCauses:
-    """Why the realised deficit changed between the phase's first weeks and now."""
-
-    change_kcal: Estimate  # recent - early realised deficit (negative = shrank)
-    parts: tuple[CausePart, ...]
-    leftover_kcal: float  # change minus the sum of the parts (what noise keeps unplaced)
-    largest: str | None  # code of the part that closed the deficit most, if any did
-    intake_change_kcal: float | None  # logged intake now minus then
-    completeness_change_pct: float  # logged-day share now minus then [percentage points]
-    implied_intake_kcal: Estimate  # intake implied by weight now (then = logged then)
-    logging_gap_kcal: Estimate  # logged minus implied intake now; negative = less logged
-    metabolic_expected_kcal: float  # the literature expectation used as the prior mean
-    expenditure: ExpenditureChange  # the adaptation work's decomposition of the change
-
-    def part(self, code: str) -> CausePart:
-        for p in self.parts:
-            if p.code == code:
-                return p
-        raise KeyError(code)
-
-
-def _est(value: float, sd: float) -> Estimate:
-    return Estimate(value, value - Z80 * sd, value + Z80 * sd)
-
-
-def deficit_change_causes(
-    early: WindowSummary,
-    recent: WindowSummary,
-    *,
-    activity_coefficient_kcal_per_kg_day: float,
-    activity_change: tuple[float, float] | None,
-    params: HallParams = HALL_2011,
-) -> DeficitChangeCauses:
-    """Split the change in realised deficit between two windows into its causes.
-
-    Parameters
-    ----------
-    early, recent : WindowSummary
-        The phase's first weeks after its glycogen weeks, and the recent window.
-        Both need a logged mean intake.
-    activity_coefficient_kcal_per_kg_day : float
-        delta of the Hall model for this client
-        (``expected.activity_coefficient_kcal_per_kg_day`` from the baseline TDEE).
-        [kcal/kg/day]
-    activity_change : (float, float) or None
-        Change in activity expenditure from logged steps and its SD
-        (``activity.step_energy_change_kcal``); None when steps are not logged in
-        both windows: activity is then "not measured" and the metabolic part
-        includes any change in activity. [kcal/day]
-    params : HallParams
-        The Hall et al. 2011 coefficients (gammaF, gammaL, betaTEF, betaAT, tauAT).
-
-    Returns
-    -------
-    DeficitChangeCauses
-        Parts in kcal/day with 80 % intervals; ``leftover_kcal`` is what is not
-        placed; ``largest`` the part that closed the deficit most.
-
-    Raises
-    ------
-    ValueError
-        If either window has no logged mean intake.
-
-    Notes
-    -----
-    The realised deficit D = E - I_true, with logged intake I = I_true - U
-    (U the intake not logged).  Observed expenditure is I + D, and its change
-    between the windows is taken apart by the adaptation work
-    (``adaptation.decompose_expenditure_change``): body size
-    (``adaptation.body_size_change_kcal``: gammaF dF + gammaL dFFM + delta dBW,
-    Hall et al. 2011 [1]_), activity from steps, and a remainder.  Then
-
-        dD = -(1 - betaTEF) dI + body size + activity + (remainder - betaTEF dI)
-
-    (eating more also costs betaTEF of it, so that share of the remainder moves to
-    the intake part).  The remainder is dAT - dU: adaptation and a change in the
-    unlogged intake, which weight and logged intake cannot tell apart.  It is
-    split by normal priors (normal-normal updating, Gelman et al. 2013, §2.5):
-
-    * dAT ~ N(m_A, s_A^2): m_A the change the literature expects between the
-      windows (``adaptation.literature_adaptation_kcal`` at the early window's
-      deficit: Hall et al. 2011's AT term, mostly in place within weeks), and
-      s_A the root sum of squares of its between-person SD at the recent window
-      and of a slower part that grows with the weight lost between the windows:
-      6 kcal/kg FFM/day per 10 % lost (Leibel et al. 1995 [6]_, published: TEE
-      -6 +/- 3 kcal/kg FFM/day in never-obese adults held 10 % below their usual
-      weight; used as a scale of spread, not as a mean, because it was measured
-      at a maintained reduced weight rather than during a deficit; judgment);
-    * dU ~ N(m_U, s_U^2): m_U = 500 kcal x the fall in the share of days logged
-      (unlogged days tend to be the high days; common practice, no single source;
-      Thomas et al. 2014 [3]_ find declining adherence behind most plateaus) and
-      s_U = ``adaptation.logging_drift_sd_kcal`` at 2.5 % of intake + 25 kcal/day
-      + m_U/2 (judgment; under-reporting can change during a diet, Lichtman et al.
-      1992 [5]_; within a phase less than the 15 % the adaptation work allows
-      since the baseline).
-
-    The noise of the remainder (deficit, intake, body-size and activity
-    errors) keeps its share of it unplaced: that is ``leftover_kcal``, so the
-    parts plus the leftover equal the change exactly.  The intake implied by
-    weight now (``implied_intake.implied_intake``, Hall & Chow 2011 [2]_, with the
-    early window as reference and the literature adaptation) is reported beside
-    the logged intake.
-    """
-    if early.intake_kcal is None or recent.intake_kcal is None:
-        raise ValueError("both windows need a logged mean intake")
-    d_change = recent.deficit_kcal - early.deficit_kcal
-    d_sd = math.hypot(recent.deficit_se_kcal, early.deficit_se_kcal)
-    intake_change = recent.intake_kcal - early.intake_kcal
-    intake_sd = math.hypot(recent.intake_se_kcal or 0.0, early.intake_se_kcal or 0.0)
-    d_bw = recent.mean_weight_kg - early.mean_weight_kg
-    d_fat = recent.fat_kg - early.fat_kg
-    size = body_size_change_kcal(
-        d_fat, d_bw - d_fat, d_bw, activity_coefficient_kcal_per_kg_day, params
-    )
-    size_sd = BODY_SIZE_REL_SD * abs(size) + BODY_SIZE_SD_BASE_KCAL
-    act, act_sd = activity_change if activity_change is not None else (None, None)
-    expenditure = decompose_expenditure_change(
-        d_change + intake_change,
-        math.hypot(d_sd, intake_sd),
-        size,
-        size_sd,
-        act,
-        act_sd,
-    )
-    tef = params.beta_tef * intake_change
-    remainder = d_change + intake_change - size - (act or 0.0) - tef
-    intake_part = (-(intake_change - tef), (1 - params.beta_tef) * intake_sd)
-    noise_var = d_sd**2 + intake_part[1] ** 2 + size_sd**2 + (act_sd or 0.0) ** 2
-    # metabolic / logging split of the remainder
-    cut = max(early.deficit_kcal, 0.0)
-    lit_e, _ = literature_adaptation_kcal(-cut, early.first_day_in_deficit, early.days, params)
-    lit_r, s_lit = literature_adaptation_kcal(
-        -cut, recent.first_day_in_deficit, recent.days, params
-    )
-    m_a = lit_r - lit_e
-    loss_pct = max(-d_bw, 0.0) / early.mean_weight_kg * 100.0
-    ffm = recent.mean_weight_kg - recent.fat_kg
-    s_slow = LEIBEL_TEE_KCAL_PER_KG_FFM_PER_10PCT * ffm * loss_pct / 10.0
-    s_a = math.hypot(s_lit, s_slow)
-    completeness_change = recent.completeness_pct - early.completeness_pct
-    m_u = UNLOGGED_DAY_EXCESS_KCAL * max(-completeness_change, 0.0) / 100.0
-    s_u = (
-        logging_drift_sd_kcal(early.intake_kcal, LOGGING_PRIOR_SD_SHARE)
-        + LOGGING_PRIOR_SD_BASE_KCAL
-        + m_u / 2
-    )
-    total = s_a * s_a + s_u * s_u + noise_var
-    innov = remainder - (m_a - m_u)
-    d_at = m_a + s_a * s_a / total * innov
-    d_u = m_u - s_u * s_u / total * innov
-    sd_at = s_a * math.sqrt(max(1 - s_a * s_a / total, 0.0))
-    sd_u = s_u * math.sqrt(max(1 - s_u * s_u / total, 0.0))
-    leftover = innov * noise_var / total
-    values: dict[str, Estimate] = {
-        "intake": _est(*intake_part),
-        "body-size": _est(size, size_sd),
-        "activity": expenditure.activity,
-        "metabolic": _est(d_at, sd_at),
-        "logging": _est(-d_u, sd_u),
-    }
-    out_parts = tuple(CausePart(code, values[code]) for code in CAUSE_CODES)
-    closing = [(p.kcal.value, p.code) for p in out_parts if p.kcal.value is not None]
-    worst = min(closing, default=None)
-    largest = worst[1] if worst is not None and worst[0] < 0 else None
-    implied = implied_intake(
-        early.intake_kcal,
-        early.intake_se_kcal or 0.0,
-        d_change,
-        d_sd,
-        size + (act or 0.0),
-        m_a,
-        s_a,
-        recent.intake_kcal,
-        recent.intake_se_kcal or 0.0,
-        params=params,
-    )
-    return DeficitChangeCauses(
-        change_kcal=_est(d_change, d_sd),
-        parts=out_parts,
-        leftover_kcal=leftover,
-        largest=largest,
-        intake_change_kcal=intake_change,
-        completeness_change_pct=completeness_change,
-        implied_intake_kcal=implied.implied,
-        logging_gap_kcal=implied.gap,
-        metabolic_expected_kcal=m_a,
-        expenditure=expenditure,
-    )
-
-
-@dataclass(frozen=True)
 class DiscussionOption:
     """An option to discuss with the client, with the numbers behind it."""
 
@@ -758,7 +501,7 @@ def steps_to_close_gap(gap_kcal: float, kcal_per_step: float) -> int:
     int
         gap / cost, rounded up to the next 100 steps; 0 when there is no gap.
         Check value (hand-calculated): 200 kcal/day at 0.028 kcal/step (the
-        science notes' ACSM-based 28 kcal per 1000 steps at 80 kg) is 7143,
+        ACSM walking equation's 28 kcal per 1000 steps of 0.7 m at 80 kg) is 7143,
         shown as 7200.
     """
     if kcal_per_step <= 0:
