@@ -352,7 +352,8 @@ def test_parts_and_leftover_add_up_to_the_change(
 
 def test_steps_to_close_gap() -> None:
     # ACSM walking equation, level term 0.1 ml O2/kg/m x 5 kcal/L, at 80 kg and 0.7 m steps:
-    # 28 kcal per 1000 steps (hand-calculated; equation from memory); 200 / 0.028 = 7142.9, rounded up to 7200 (hand)
+    # 28 kcal per 1000 steps (hand-calculated; equation from memory);
+    # 200 / 0.028 = 7142.9, rounded up to 7200 (hand)
     per_step = kcal_per_1000_steps(80.0, 0.7) / 1000.0
     assert per_step == pytest.approx(0.028, abs=1e-12)
     assert pl.steps_to_close_gap(200.0, per_step) == 7200
