@@ -34,20 +34,19 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from plateau_scenarios import EARLY_DAYS, EARLY_FIRST, SCENARIOS, PlateauSim, simulate_plateau
+from plateau_scenarios import SCENARIOS, PlateauSim, simulate_plateau
 
 from reportgen.results import Estimate
 from reportgen.science import balance as bal
 from reportgen.science import expected as exp_
 from reportgen.science import plateau as pl
 from reportgen.science import plateau_causes as pc
-from reportgen.science.activity import step_energy_change_kcal
 from reportgen.science.composition import energy_density_kcal_per_kg
-from reportgen.science.rates import WindowRate, fit_noise_model, segment_rate
+from reportgen.science.plateau_assess import PlateauInputs, assess_plateau
+from reportgen.science.rates import fit_noise_model, segment_rate
 from reportgen.science.resting import resting_kcal_mifflin_st_jeor
-from reportgen.science.trend import Z80, local_linear_trend
+from reportgen.science.trend import local_linear_trend
 
-PLANNED_SE_FACTOR = 1.0  # --planned-se-factor: 0 ignores the plan's own uncertainty
 FAT_SE_KG = 2.5  # skinfold equation error as fat mass (about 3.5 %BF: Jackson & Pollock 1978 SEE)
 
 
@@ -58,129 +57,78 @@ class Outcome:
     causes: pc.DeficitChangeCauses | None
 
 
-def analyse(sim: PlateauSim) -> Outcome:
-    """The plateau estimate from the simulated client's logs alone."""
+def plateau_inputs(sim: PlateauSim) -> PlateauInputs:
+    """What the analysis would hand the assessment, from the simulated logs alone."""
     w = sim.weight_kg
     intake = sim.intake_kcal
-    n = len(w)
     d0 = sim.deficit_start
-    last = n - 1
     fit = local_linear_trend(w)
-    # noise about straight lines over four-week pieces (a whole phase is not a straight
-    # line when it stalls, and the curvature would pass for water swings)
-    pieces = [(0, d0 - 1), *pl.noise_pieces(d0 + EARLY_FIRST, last)]
-    noise = fit_noise_model(w, pieces, fit.weights)
-    knots = (d0,)
     level = fit.level_kg
+    noise = fit_noise_model(w, [(0, d0 - 1)], fit.weights)
     w_ref = float(level[0])
 
     def fat_at(weight: float) -> float:
         return bal.fat_mass_at(sim.fat_start_est_kg, w_ref, weight)
 
-    # recent rate
-    lo = n - pl.RECENT_WINDOW_DAYS
-    # the window's own slope, continuous with the four weeks before it (a spline with
-    # one slope over the whole phase would average the recent weeks with the earlier
-    # ones, which is what a plateau breaks)
-    wr = pl.recent_window_rate(w, lo, last, fit.weights, noise)
-    cur_w = float(level[last])
-    rate_pct = se_pct = None
-    if wr is not None:
-        rate_pct = 700.0 * wr.rate_kg_per_day / cur_w
-        se_pct = 700.0 * wr.se_kg_per_day / cur_w
-    # baseline from the maintenance phase (as the analysis does)
-    mrate = segment_rate(w, 0, d0 - 1, knots, fit.weights, noise)
+    # baseline from the maintenance phase, as the analysis does it
+    mrate = segment_rate(w, 0, d0 - 1, (d0,), fit.weights, noise)
     mb = bal.window_balance(
         w[:d0], intake[:d0], fat_at(float(level[0])), FAT_SE_KG, fit.weights[:d0], noise, mrate
     )
     assert mb.deficit_kcal.value is not None and mb.deficit_se_kcal is not None
     assert mb.mean_intake_kcal is not None
     d, d_sd, _ = exp_.maintenance_deficit_posterior(mb.deficit_kcal.value, mb.deficit_se_kcal)
-    tdee_b = mb.mean_intake_kcal + d
     mean_wb = float(level[:d0].mean())
-    age = sim.age
-    rest_b = resting_kcal_mifflin_st_jeor(sim.sex, mean_wb, sim.height_cm, age)  # type: ignore[arg-type]
+    sex = "male" if sim.sex == "male" else "female"
     baseline = exp_.Baseline(
-        tdee_b,
+        mb.mean_intake_kcal + d,
         math.hypot(d_sd, mb.intake_se_kcal or 0.0),
         mean_wb,
         fat_at(mean_wb),
         mb.mean_intake_kcal,
-        rest_b,
+        resting_kcal_mifflin_st_jeor(sex, mean_wb, sim.height_cm, sim.age),
     )
-    delta = exp_.activity_coefficient_kcal_per_kg_day(tdee_b, rest_b, mean_wb)
-    fat_now = fat_at(cur_w)
-    expected = exp_.expected_tdee_from_baseline(baseline, cur_w, fat_now, sim.target_kcal)
-    assert expected.value is not None and expected.high is not None
-    rho = energy_density_kcal_per_kg(fat_now)
-    planned = pl.planned_rate_pct_per_week(expected.value, sim.target_kcal, rho, cur_w)
-    planned_se = (expected.high - expected.value) / Z80 * 700.0 / rho / cur_w
-    # water
-    recent_intake = intake[lo:]
-    reasons = pl.water_explanation(recent_intake)
-    before = None
-    j = pl.first_high_day(recent_intake)
-    if j is not None and j >= bal.MIN_DAYS:
-        # cut the series at the first high day, so the fit cannot see the water after it
-        wb = pl.recent_window_rate(w[: lo + j], lo, lo + j - 1, fit.weights[: lo + j], noise)
-        if wb is not None:
-            before = (700.0 * wb.rate_kg_per_day / cur_w, 700.0 * wb.se_kg_per_day / cur_w)
-    status = pl.progress_status(
-        rate_pct,
-        se_pct,
-        planned,
-        phase_days=n - d0,
-        recent_days=pl.RECENT_WINDOW_DAYS,
-        recent_weigh_ins=int(np.isfinite(w[lo:]).sum()),
-        water_reasons=reasons,
-        rate_before_water=before,
-        planned_se_pct_per_week=planned_se * PLANNED_SE_FACTOR,
+    cur_w = float(level[-1])
+    path = bal.expenditure_path(
+        w,
+        intake,
+        energy_density_kcal_per_kg(fat_at(cur_w)),
+        fit.noise_sd_kg,
+        fit.weights,
+        shift_days=(d0,),
+    )
+    return PlateauInputs(
+        weight_kg=w,
+        intake_kcal=intake,
+        steps=sim.steps,
+        hunger=np.full(len(w), np.nan),
+        energy=np.full(len(w), np.nan),
+        robust_weights=fit.weights,
+        current_weight_kg=cur_w,
+        phase_kind="deficit",
+        phase_start=d0,
+        deficit_start=d0,
+        target_kcal=sim.target_kcal,
+        days_since_break_end=None,
+        fat_ref_kg=sim.fat_start_est_kg,
+        weight_ref_kg=w_ref,
+        fat_se_kg=FAT_SE_KG,
+        baseline=baseline,
+        tdee_now_kcal=float(path.tdee_kcal[-1]),
+        tdee_now_sd_kcal=float(path.sd_kcal[-1]),
+        resting_now_kcal=resting_kcal_mifflin_st_jeor(sex, cur_w, sim.height_cm, sim.age),
+        sex=sex,
+        height_cm=sim.height_cm,
+        minor=False,
+        pregnant=False,
+        bmi_kg_m2=None,
     )
 
-    def summary(i0: int, i1: int, rate: WindowRate | None) -> pc.WindowSummary | None:
-        b = bal.window_balance(
-            w[i0 : i1 + 1],
-            intake[i0 : i1 + 1],
-            fat_at(float(level[i0])),
-            FAT_SE_KG,
-            fit.weights[i0 : i1 + 1],
-            noise,
-            rate,
-        )
-        if b.deficit_kcal.value is None or b.deficit_se_kcal is None:
-            return None
-        mean_w = float(level[i0 : i1 + 1].mean())
-        steps, steps_se = pc.signal_mean(sim.steps[i0 : i1 + 1])
-        return pc.WindowSummary(
-            days=i1 - i0 + 1,
-            first_day_in_deficit=i0 - d0,
-            mean_weight_kg=mean_w,
-            fat_kg=fat_at(mean_w),
-            deficit_kcal=b.deficit_kcal.value,
-            deficit_se_kcal=b.deficit_se_kcal,
-            intake_kcal=b.mean_intake_kcal,
-            intake_se_kcal=b.intake_se_kcal,
-            intake_days=b.intake_days,
-            steps=steps,
-            steps_se=steps_se,
-        )
 
-    e0 = d0 + EARLY_FIRST
-    early = summary(e0, e0 + EARLY_DAYS - 1, None)  # the window's own GLS slope
-    recent = summary(lo, last, wr)
-    causes = None
-    if early is not None and recent is not None:
-        act = step_energy_change_kcal(
-            sim.steps[e0 : e0 + EARLY_DAYS],
-            sim.steps[lo:],
-            recent.mean_weight_kg,
-            sim.height_cm,
-            sim.sex,
-        )
-        causes = pc.deficit_change_causes(
-            early, recent, activity_coefficient_kcal_per_kg_day=delta, activity_change=act
-        )
-    return Outcome(sim, status, causes)
+def analyse(sim: PlateauSim) -> Outcome:
+    """The plateau assessment from the simulated client's logs alone."""
+    got = assess_plateau(plateau_inputs(sim))
+    return Outcome(sim, got.status, got.causes)
 
 
 def _pct(k: int, n: int) -> str:
@@ -196,10 +144,7 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--per-scenario", type=int, default=12, help="clients per scenario")
     ap.add_argument("--seed", type=int, default=1)
     ap.add_argument("--status-z", type=float, default=None, help="override plateau.STATUS_Z")
-    ap.add_argument("--planned-se-factor", type=float, default=1.0, help="scale the plan's SE")
     args = ap.parse_args(argv)
-    global PLANNED_SE_FACTOR
-    PLANNED_SE_FACTOR = args.planned_se_factor
     if args.status_z is not None:
         pl.STATUS_Z = args.status_z
     rng = np.random.default_rng(args.seed)
@@ -231,10 +176,13 @@ def main(argv: list[str] | None = None) -> int:
             f"{sc:15s} {_pct(ok, len(rows)):>18s} {_pct(sum(cause_rows), len(cause_rows)):>22s}"
             f"  {dict(seen)}"
         )
+    decided = [o for o in outcomes if o.status.status != "too-few-data"]
+    dec_ok = sum(o.status.status in o.sim.accepted for o in decided)
     losing = [o for o in outcomes if o.sim.true_recent_rate_pct <= -0.5]
     false_stall = sum(o.status.status == "stalled" for o in losing)
     print()
     print(f"status accuracy (>= 3 weeks recent data): {_pct(ok_all, n_all)}   target >= 90 %")
+    print(f"  of them decided (not too-few-data):     {_pct(dec_ok, len(decided))}")
     print(f"largest cause where it is >= 150 kcal/day: {_pct(c_ok, c_n)}   target >= 80 %")
     fs = _pct(false_stall, len(losing))
     print(f"false stall, losing >= 0.5 %/week:        {fs}   target <= 5 %")
