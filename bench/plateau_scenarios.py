@@ -319,10 +319,15 @@ def simulate_plateau(
     logged_honest = intake_true * (1 - under)
     d_true_intake = mean(intake_true, r0, n) - mean(intake_true, e0, e1)
     d_logged_mean = mean(logged_honest, r0, n) - mean(logged_honest, e0, e1)
+    # activity: the change in steps at the recent weight; the change in the cost of the
+    # early steps with the lighter body belongs to body size (as in the estimators' split)
+    w_r = mean(run.weight, r0, n)
+    act = p.step_kcal_per_kg * w_r * (mean(steps_true, r0, n) - mean(steps_true, e0, e1))
+    d_steps_cost = mean(run.e_steps, r0, n) - mean(run.e_steps, e0, e1)
     parts = {
         "intake": -(1 - p.tef) * d_logged_mean,
-        "body-size": mean(run.e_size, r0, n) - mean(run.e_size, e0, e1),
-        "activity": mean(run.e_steps, r0, n) - mean(run.e_steps, e0, e1),
+        "body-size": mean(run.e_size, r0, n) - mean(run.e_size, e0, e1) + d_steps_cost - act,
+        "activity": act,
         "metabolic": mean(run.at, r0, n) - mean(run.at, e0, e1),
         "logging": -(1 - p.tef) * (d_true_intake - d_logged_mean),
     }
