@@ -38,27 +38,53 @@ def phase_balance(
     first, last = window.start_index, window.end_index
     if fit is None or last < first:
         return PhaseBalance(window, None, None, None)
-    weights_kg = ctx.weights_kg
     mean_weight_kg = float(np.mean(fit.level_kg[first : last + 1]))
-    rate = segment_rate(
-        weights_kg,
+    rate = window_rate(ctx, trend, first, last, edge_knots=True)
+    if ctx.special_handling:
+        return PhaseBalance(window, None, mean_weight_kg, rate)
+    fat_start_kg = composition.reference.fat_at(float(fit.level_kg[first]))
+    balance = window_energy_balance(ctx, trend, composition, first, last, rate, fat_start_kg)
+    return PhaseBalance(window, balance, mean_weight_kg, rate)
+
+
+def window_rate(
+    ctx: ClientContext, trend: TrendStage, first: int, last: int, *, edge_knots: bool
+) -> WindowRate | None:
+    """Tissue rate over days ``first..last`` (segment fit with the client's knots).
+
+    ``edge_knots`` False for a window that is not a phase (no knot, nor glycogen
+    step, at its own edges).
+    """
+    assert trend.fit is not None
+    return segment_rate(
+        ctx.weights_kg,
         first,
         last,
         ctx.knots,
-        fit.weights,
+        trend.fit.weights,
         trend.noise,
+        edge_knots=edge_knots,
         start_shift_at=ctx.start_shift_index,
     )
-    if ctx.special_handling:
-        return PhaseBalance(window, None, mean_weight_kg, rate)
-    reference = composition.reference
-    balance = energy_balance.window_balance(
-        weights_kg[first : last + 1],
+
+
+def window_energy_balance(
+    ctx: ClientContext,
+    trend: TrendStage,
+    composition: CompositionStage,
+    first: int,
+    last: int,
+    rate: WindowRate | None,
+    fat_start_kg: float | None,
+) -> energy_balance.WindowBalance:
+    """Stored energy and observed TDEE over days ``first..last`` (inclusive)."""
+    assert trend.fit is not None
+    return energy_balance.window_balance(
+        ctx.weights_kg[first : last + 1],
         ctx.log.intake_kcal[first : last + 1],
-        reference.fat_at(float(fit.level_kg[first])),
-        reference.fat_se_kg,
-        fit.weights[first : last + 1],
+        fat_start_kg,
+        composition.reference.fat_se_kg,
+        trend.fit.weights[first : last + 1],
         trend.noise,
         rate,
     )
-    return PhaseBalance(window, balance, mean_weight_kg, rate)

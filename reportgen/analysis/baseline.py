@@ -22,7 +22,7 @@ import math
 
 import numpy as np
 
-from reportgen.analysis.balance import PhaseBalance
+from reportgen.analysis.balance import PhaseBalance, window_energy_balance, window_rate
 from reportgen.analysis.composition import CompositionStage
 from reportgen.analysis.context import (
     INTAKE_CHANGE_KINDS,
@@ -35,7 +35,6 @@ from reportgen.analysis.trend import TrendStage
 from reportgen.science import balance as energy_balance
 from reportgen.science import expected as expected_tdee
 from reportgen.science.expected import Baseline
-from reportgen.science.rates import segment_rate
 
 BASELINE_FIRST_WEEKS_DAYS = 28
 BASELINE_SKIP_DAYS = 0
@@ -140,28 +139,10 @@ def first_weeks_baseline(
     first, last = first_weeks_window(ctx.windows, ctx.log.n_days)
     if fit is None or last - first + 1 < MIN_ANALYSIS_DAYS:
         return None
-    weights_kg = ctx.log.weight_used_kg
     mean_weight_kg = float(np.mean(fit.level_kg[first : last + 1]))
-    # not a phase: no knots (nor glycogen steps) at the window's own edges
-    rate = segment_rate(
-        weights_kg,
-        first,
-        last,
-        ctx.knots,
-        fit.weights,
-        trend.noise,
-        edge_knots=False,
-        start_shift_at=ctx.start_shift_index,
-    )
-    balance = energy_balance.window_balance(
-        weights_kg[first : last + 1],
-        ctx.log.intake_kcal[first : last + 1],
-        composition.reference.fat_at(mean_weight_kg),
-        composition.reference.fat_se_kg,
-        fit.weights[first : last + 1],
-        trend.noise,
-        rate,
-    )
+    rate = window_rate(ctx, trend, first, last, edge_knots=False)
+    fat_kg = composition.reference.fat_at(mean_weight_kg)
+    balance = window_energy_balance(ctx, trend, composition, first, last, rate, fat_kg)
     found = baseline_from_balance(balance, mean_weight_kg, composition, resting_at, "first-weeks")
     change_index = first_change_index(ctx.windows)
     if (
