@@ -219,6 +219,61 @@ class DataQuality:
 
 
 @dataclass(frozen=True)
+class PlateauPart:
+    """One cause of a change in realised deficit (negative = it closed the deficit)."""
+
+    code: str  # "intake", "body-size", "activity", "metabolic", "logging"
+    kcal: Estimate  # 80 % interval; missing with reason "not-measured"
+
+
+@dataclass(frozen=True)
+class PlateauOption:
+    """An option to discuss, never a prescription, with the numbers behind it."""
+
+    code: str  # "intake-for-planned-rate", "extra-steps", "maintenance-break", "recheck"
+    values: dict[str, float] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class PlateauResult:
+    """Is progress stalling in the running deficit phase, why, and what could change.
+
+    Filled by ``reportgen.analysis.plateau`` from ``reportgen.science.plateau*``.
+    """
+
+    phase_name: str
+    status: str  # science.plateau.PROGRESS_STATUSES
+    reason: str | None  # science.plateau.STATUS_REASONS for too-early / too-few-data
+    underlying: str | None  # the reading a water explanation set aside
+    water_reasons: tuple[str, ...]
+    recent_rate_pct_per_week: Estimate
+    planned_rate_pct_per_week: float | None
+    planned_source: str | None  # "target" or "early-rate"
+    recent_days: int
+    change_kcal: Estimate  # realised deficit now minus in the phase's first weeks
+    parts: tuple[PlateauPart, ...]  # empty when the causes cannot be split
+    leftover_kcal: float | None
+    largest: str | None
+    causes_reason: str | None  # why there are no parts
+    intake_change_kcal: float | None  # logged intake now minus then
+    completeness_change_pct: float | None  # share of days logged, now minus then [points]
+    implied_intake_kcal: Estimate  # intake implied by weight now
+    logging_gap_kcal: Estimate  # logged minus implied intake now
+    metabolic_expected_kcal: float | None  # literature expectation of the change
+    hunger_change: float | None  # mean rating now minus then (1-10 scale)
+    energy_change: float | None
+    gap_kcal: float | None  # planned minus recent realised deficit
+    options: tuple[PlateauOption, ...]
+    cautions: tuple[str, ...]
+
+    def part(self, code: str) -> PlateauPart | None:
+        for p in self.parts:
+            if p.code == code:
+                return p
+        return None
+
+
+@dataclass(frozen=True)
 class ClientAnalysis:
     """Everything computed for one client for one report month."""
 
@@ -250,3 +305,4 @@ class ClientAnalysis:
     methods: tuple[MethodUsed, ...]
     quality: DataQuality
     notes: tuple[str, ...] = ()  # reason codes for things not shown
+    plateau: PlateauResult | None = None  # the running deficit phase's progress, if any

@@ -17,6 +17,8 @@ phases          :class:`~reportgen.results.PhaseResult` per phase; the current p
 expenditure     :class:`ExpenditureStage`: the daily expenditure path
 projection      :class:`~reportgen.results.Projection`
 quality         :class:`QualityStage`: signals, flags, gaps
+plateau         :class:`~reportgen.results.PlateauResult`: progress against the plan,
+                causes of a shrinking deficit, options
 stages          :class:`ClientStages`: all of the above, assembled into the result
 ==============  ==================================================================
 
@@ -36,6 +38,7 @@ from reportgen.analysis.expected import EARLY_PHASE_DAYS, expected_stage
 from reportgen.analysis.expenditure import expenditure_stage
 from reportgen.analysis.methods import METHODS
 from reportgen.analysis.phases import phase_results
+from reportgen.analysis.plateau import plateau_stage
 from reportgen.analysis.projection import projection_stage
 from reportgen.analysis.quality import quality_stage
 from reportgen.analysis.resting import resting_stage
@@ -80,6 +83,7 @@ def run_stages(record: ClientRecord, month: str, settings: AnalysisSettings) -> 
     phases = phase_results(ctx, trend, composition, balances, expectations, baseline)
     expenditure = expenditure_stage(ctx, trend, composition)
     projection = projection_stage(ctx, trend, composition, expenditure, baseline, resting.model)
+    quality = quality_stage(ctx, trend, composition, phases)
     return ClientStages(
         context=ctx,
         trend=trend,
@@ -91,5 +95,8 @@ def run_stages(record: ClientRecord, month: str, settings: AnalysisSettings) -> 
         phases=phases,
         expenditure=expenditure,
         projection=projection,
-        quality=quality_stage(ctx, trend, composition, phases),
+        quality=quality,
+        plateau=plateau_stage(
+            ctx, trend, composition, baseline, expenditure, resting.model, quality.bmi_kg_m2
+        ),
     )

@@ -14,7 +14,7 @@ from reportgen.analysis.phases import current_phase
 from reportgen.analysis.quality import QualityStage
 from reportgen.analysis.resting import RestingStage
 from reportgen.analysis.trend import TrendStage
-from reportgen.results import ClientAnalysis, MethodUsed, PhaseResult, Projection
+from reportgen.results import ClientAnalysis, MethodUsed, PhaseResult, PlateauResult, Projection
 from reportgen.science.expected import Baseline
 
 
@@ -33,6 +33,7 @@ class ClientStages:
     expenditure: ExpenditureStage
     projection: Projection | None
     quality: QualityStage
+    plateau: PlateauResult | None = None
 
     def methods(self) -> tuple[MethodUsed, ...]:
         """Methods-page entries in order of first use."""
@@ -84,4 +85,5 @@ class ClientStages:
             methods=self.methods(),
             quality=self.quality.quality,
             notes=self.notes(),
+            plateau=self.plateau,
         )
