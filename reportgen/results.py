@@ -242,6 +242,7 @@ class PlateauResult:
     """
 
     phase_name: str
+    phase_start: dt.date
     status: str  # science.plateau.PROGRESS_STATUSES
     reason: str | None  # science.plateau.STATUS_REASONS for too-early / too-few-data
     underlying: str | None  # the reading a water explanation set aside

@@ -15,7 +15,7 @@ import io
 import math
 from collections.abc import Iterable
 
-from reportgen.results import ClientAnalysis, Estimate, PhaseResult
+from reportgen.results import ClientAnalysis, Estimate, PhaseResult, PlateauResult
 
 SUMMARY_COLUMNS: tuple[str, ...] = (
     "client_id",
@@ -42,7 +42,16 @@ SUMMARY_COLUMNS: tuple[str, ...] = (
     "fat_mass_change_kg",
     "lean_mass_change_kg",
     "status",
+    "progress_status",
+    "recent_rate_pct_per_week",
+    "intake_drift_kcal",
+    "body_size_change_kcal",
+    "activity_change_recent_kcal",
+    "metabolic_change_kcal",
+    "logging_completeness_change_pct",
 )
+# Filled on the row of the running deficit phase only (the plateau assessment's phase).
+PLATEAU_COLUMNS = SUMMARY_COLUMNS[SUMMARY_COLUMNS.index("progress_status") :]
 
 # Decimals per numeric column (the unit is in the column name).
 DECIMALS: dict[str, int] = {
@@ -62,6 +71,12 @@ DECIMALS: dict[str, int] = {
     "bodyfat_end_pct": 1,
     "fat_mass_change_kg": 2,
     "lean_mass_change_kg": 2,
+    "recent_rate_pct_per_week": 2,
+    "intake_drift_kcal": 0,
+    "body_size_change_kcal": 0,
+    "activity_change_recent_kcal": 0,
+    "metabolic_change_kcal": 0,
+    "logging_completeness_change_pct": 1,
 }
 
 SummaryRow = dict[str, str]
@@ -140,7 +155,32 @@ def phase_row(client_id: str, p: PhaseResult) -> SummaryRow:
         "lean_mass_change_kg": num(p.lean_mass_change_kg, "lean_mass_change_kg"),
         "status": p.status,
     }
+    row.update(dict.fromkeys(PLATEAU_COLUMNS, ""))
     return row
+
+
+def plateau_cells(plateau: PlateauResult) -> SummaryRow:
+    """The progress and cause columns of the plateau assessment's phase row."""
+
+    def part(code: str, column: str) -> str:
+        found = plateau.part(code)
+        return "" if found is None else format_number(found.kcal.value, DECIMALS[column])
+
+    return {
+        "progress_status": plateau.status,
+        "recent_rate_pct_per_week": format_number(
+            plateau.recent_rate_pct_per_week.value, DECIMALS["recent_rate_pct_per_week"]
+        ),
+        "intake_drift_kcal": format_number(
+            plateau.intake_change_kcal if plateau.parts else None, DECIMALS["intake_drift_kcal"]
+        ),
+        "body_size_change_kcal": part("body-size", "body_size_change_kcal"),
+        "activity_change_recent_kcal": part("activity", "activity_change_recent_kcal"),
+        "metabolic_change_kcal": part("metabolic", "metabolic_change_kcal"),
+        "logging_completeness_change_pct": format_number(
+            plateau.completeness_change_pct, DECIMALS["logging_completeness_change_pct"]
+        ),
+    }
 
 
 def summary_rows(analysis: ClientAnalysis) -> list[SummaryRow]:
@@ -148,7 +188,14 @@ def summary_rows(analysis: ClientAnalysis) -> list[SummaryRow]:
     cid = analysis.client.client_id
     phases = [p for p in analysis.phases if overlaps_month(p, analysis.month)]
     phases.sort(key=lambda p: (p.start, p.name))
-    return [phase_row(cid, p) for p in phases]
+    rows = []
+    pl = analysis.plateau
+    for p in phases:
+        row = phase_row(cid, p)
+        if pl is not None and p.start == pl.phase_start and p.name == pl.phase_name:
+            row.update(plateau_cells(pl))
+        rows.append(row)
+    return rows
 
 
 def sort_rows(rows: Iterable[SummaryRow]) -> list[SummaryRow]:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import csv
+import dataclasses
 import datetime as dt
 import io
 import json
@@ -20,7 +21,7 @@ from reportgen.manifest import (
     manifest_bytes,
     sha256_bytes,
 )
-from reportgen.results import Estimate, PhaseResult
+from reportgen.results import Estimate, PhaseResult, PlateauPart, PlateauResult
 from reportgen.summary import (
     DECIMALS,
     SUMMARY_COLUMNS,
@@ -28,6 +29,7 @@ from reportgen.summary import (
     month_bounds,
     overlaps_month,
     phase_row,
+    plateau_cells,
     summary_csv,
 )
 
@@ -39,11 +41,17 @@ ISSUE_COLUMNS = (
     "adaptation_kcal, adaptation_pct, bodyfat_start_pct, bodyfat_end_pct, fat_mass_change_kg, "
     "lean_mass_change_kg, status"
 )
+# The progress columns of the plateau issue, in its order, after the batch issue's.
+PLATEAU_ISSUE_COLUMNS = (
+    "progress_status, recent_rate_pct_per_week, intake_drift_kcal, body_size_change_kcal, "
+    "activity_change_recent_kcal, metabolic_change_kcal, logging_completeness_change_pct"
+)
 
 
 def test_columns_match_the_issue_exactly() -> None:
-    assert ", ".join(SUMMARY_COLUMNS) == ISSUE_COLUMNS
+    assert ", ".join(SUMMARY_COLUMNS) == ISSUE_COLUMNS + ", " + PLATEAU_ISSUE_COLUMNS
     numeric = set(SUMMARY_COLUMNS) - {
+        "progress_status",
         "client_id",
         "phase",
         "start",
@@ -253,8 +261,66 @@ def test_known_values_fixed_decimals_and_csv_round_trip() -> None:
             "fat_mass_change_kg": "-3.50",
             "lean_mass_change_kg": "-0.96",
             "status": "ok",
+            # progress columns: blank on a row that is not the plateau assessment's phase
+            "progress_status": "",
+            "recent_rate_pct_per_week": "",
+            "intake_drift_kcal": "",
+            "body_size_change_kcal": "",
+            "activity_change_recent_kcal": "",
+            "metabolic_change_kcal": "",
+            "logging_completeness_change_pct": "",
         }
     ]
+
+
+def test_plateau_cells_fixed_decimals_and_blanks() -> None:
+    parts = (
+        PlateauPart("intake", Estimate(-180.4, -250.0, -110.0)),
+        PlateauPart("body-size", Estimate(-63.6, -80.0, -47.0)),
+        PlateauPart("activity", Estimate.missing("not-measured")),
+        PlateauPart("metabolic", Estimate(-120.5, -200.0, -40.0)),
+        PlateauPart("logging", Estimate(-10.0, -60.0, 40.0)),
+    )
+    pl = PlateauResult(
+        phase_name="Cut 1",
+        phase_start=dt.date(2026, 9, 1),
+        status="stalled",
+        reason=None,
+        underlying=None,
+        water_reasons=(),
+        recent_rate_pct_per_week=Estimate(-0.054, -0.2, 0.1),
+        planned_rate_pct_per_week=-0.6,
+        planned_source="target",
+        recent_days=28,
+        change_kcal=Estimate(-380.0),
+        parts=parts,
+        leftover_kcal=-6.0,
+        largest="intake",
+        causes_reason=None,
+        intake_change_kcal=200.44,
+        completeness_change_pct=-21.43,
+        implied_intake_kcal=Estimate(2300.0),
+        logging_gap_kcal=Estimate(-100.0),
+        metabolic_expected_kcal=-17.0,
+        hunger_change=1.5,
+        energy_change=None,
+        gap_kcal=350.0,
+        options=(),
+        cautions=(),
+    )
+    cells = plateau_cells(pl)
+    assert cells == {
+        "progress_status": "stalled",
+        "recent_rate_pct_per_week": "-0.05",
+        "intake_drift_kcal": "200",
+        "body_size_change_kcal": "-64",
+        "activity_change_recent_kcal": "",  # steps not logged: blank, never zero
+        "metabolic_change_kcal": "-120",  # -120.5 -> even
+        "logging_completeness_change_pct": "-21.4",
+    }
+    # without a cause split the drift stays blank too
+    bare = plateau_cells(dataclasses.replace(pl, parts=(), status="too-early"))
+    assert bare["intake_drift_kcal"] == "" and bare["progress_status"] == "too-early"
 
 
 def test_rows_sorted_by_client_then_start_and_header_only_when_empty() -> None:

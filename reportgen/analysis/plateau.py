@@ -91,6 +91,7 @@ def plateau_stage(
     missing = Estimate.missing(got.causes_reason or "not-estimable")
     return PlateauResult(
         phase_name=win.phase.name,
+        phase_start=win.phase.start,
         status=st.status,
         reason=st.reason,
         underlying=st.underlying,
