@@ -17,7 +17,7 @@ from pypdf import PdfReader
 
 from reportgen.config import Config, PracticeSettings
 from reportgen.report import OverviewLine, make_overview_line, render_overview
-from reportgen.report.overview import sort_lines
+from reportgen.report.overview import PROGRESS_WEIGHT, sort_lines
 
 CONFIG = Config(practice=PracticeSettings(name="Kestrel Row Nutrition"))
 CLIENTS = ("c001", "c002", "c003", "c004", "c005", "c006", "c008", "c009", "c010")
@@ -53,13 +53,27 @@ def test_line_takes_its_values_from_the_analysis() -> None:
 
 
 def test_urgent_before_caution_before_sparse_logging_before_the_rest() -> None:
-    base = lines()
+    base = [dataclasses.replace(ln, attention=0, flags=()) for ln in lines()]
     urgent = dataclasses.replace(base[5], flags=(("low-bmi", "urgent"),), attention=10_000)
     caution = dataclasses.replace(base[6], flags=(("low-intake", "caution"),), attention=100)
     ordered = sort_lines([*base[:5], caution, urgent, *base[7:]])
     assert ordered[0] is urgent and ordered[1] is caution
     rest = [ln.name for ln in ordered[2:] if ln.attention == 0]
     assert rest == sorted(rest, key=str.casefold)
+
+
+def test_stalled_and_gaining_come_after_urgent_and_before_cautions() -> None:
+    base = [dataclasses.replace(ln, attention=0, flags=()) for ln in lines()]
+    a = sample_analysis(CLIENTS[0])
+    assert a.plateau is not None  # the sample client has a running deficit phase
+    stalled_a = dataclasses.replace(a, plateau=dataclasses.replace(a.plateau, status="stalled"))
+    stalled = make_overview_line(stalled_a)
+    assert stalled.progress_status == "stalled"
+    assert stalled.attention >= PROGRESS_WEIGHT["stalled"]
+    urgent = dataclasses.replace(base[5], flags=(("low-bmi", "urgent"),), attention=10_000)
+    caution = dataclasses.replace(base[6], flags=(("low-intake", "caution"),), attention=100)
+    ordered = sort_lines([caution, *base[:5], stalled, urgent])
+    assert ordered[:3] == [urgent, stalled, caution]
 
 
 def test_overview_lists_every_client_and_every_failure() -> None:

@@ -8,7 +8,7 @@ import time
 from dataclasses import dataclass, field
 
 from reportlab.lib.units import mm
-from reportlab.platypus import Flowable, PageBreak, Spacer
+from reportlab.platypus import Flowable, KeepTogether, PageBreak, Spacer
 
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis
@@ -17,6 +17,7 @@ from .charts import CHARTS, FIGURES, ChartContext, ChartPages, chart_pages, lege
 from .layout import card_grid, chart_block, data_table, practice_header, section_break
 from .para import Paragraph
 from .pdfbuild import ChartSlot, Document, build, mark_heading
+from .plateau_view import plateau_flowables
 from .theme import page_size, theme_for
 from .units import Units
 from .viewmodel import ClientView, client_view
@@ -145,10 +146,22 @@ def render_client_report(
         story += card_grid(_figure_items(vm, words), theme, width)
         story.append(Spacer(1, 2 * mm))
         story += blocks(words.text("narrative", vm), theme, heading_hook=_heading_hook)
+    # "Is progress stalling?" opens the second page (the first is full), kept in one piece
+    plateau = plateau_flowables(
+        analysis, config, theme, width, "client", heading_hook=_heading_hook
+    )
+    if plateau and "overview" in sections:
+        if "charts" not in sections:
+            story.append(Spacer(1, 3 * mm))
+        else:
+            story.append(PageBreak())
+        story.append(KeepTogether(plateau))
+        story.append(Spacer(1, 4 * mm))
 
     slots: list[ChartSlot] = []
     if "charts" in sections:
-        story.append(PageBreak())
+        if not (plateau and "overview" in sections):
+            story.append(PageBreak())
         story += blocks(words.text("charts_intro", vm), theme, heading_hook=_heading_hook)
         titles = words.labels["charts"]
         ctx = chart_context(analysis, config, width / mm, words.labels["chart"])

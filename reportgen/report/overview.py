@@ -25,6 +25,8 @@ from .wording import Wording, blocks, esc
 SEVERITY_WEIGHT = {"urgent": 10_000, "caution": 100, "info": 1}
 # Fewer than half the month's days with a weigh-in also calls for a look (common practice).
 SPARSE_LOGGING_WEIGHT = 50
+# A stall or a gain in a deficit phase comes right after the urgent flags (above cautions).
+PROGRESS_WEIGHT = {"stalled": 1_000, "gaining": 1_000}
 
 
 def _month_bounds(month: str) -> tuple[np.datetime64, np.datetime64, int]:
@@ -50,6 +52,8 @@ def make_overview_line(analysis: ClientAnalysis) -> OverviewLine:
     attention = sum(SEVERITY_WEIGHT.get(sev, 0) for _, sev in flags)
     if weight_days * 2 < days:
         attention += SPARSE_LOGGING_WEIGHT
+    progress = a.plateau.status if a.plateau is not None else None
+    attention += PROGRESS_WEIGHT.get(progress or "", 0)
     return OverviewLine(
         client_id=a.client.client_id,
         name=a.client.name,
@@ -68,6 +72,7 @@ def make_overview_line(analysis: ClientAnalysis) -> OverviewLine:
         days_in_month=days,
         flags=flags,
         attention=attention,
+        progress_status=progress,
     )
 
 
@@ -120,6 +125,7 @@ def render_overview(
             [
                 f"<b>{esc(ln.name)}</b><br/>{esc(ln.client_id)}",
                 words.text("phase_cell", view),
+                words.text("progress_cell", ln.progress_status),
                 esc(u.w(ln.month_change_kg, signed=True, unit=False)),
                 esc(u.number(ln.weekly_rate_pct, 2, signed=True)),
                 esc(u.e(ln.realised_deficit_kcal, unit=False)),
@@ -130,10 +136,10 @@ def render_overview(
                 words.text("flags_cell", ln.flags) or DASH,
             ]
         )
-    fr = [0.14, 0.15, 0.07, 0.06, 0.065, 0.075, 0.09, 0.06, 0.09, 0.19]
+    fr = [0.13, 0.14, 0.07, 0.065, 0.055, 0.06, 0.07, 0.085, 0.055, 0.09, 0.175]
     if rows:
         story.append(
-            data_table(header, rows, [f * width for f in fr], theme, right_from=2, right_to=9)
+            data_table(header, rows, [f * width for f in fr], theme, right_from=3, right_to=10)
         )
     else:
         story.append(Paragraph(esc(L["none"]), theme["body"]))

@@ -29,3 +29,4 @@ class OverviewLine:
     days_in_month: int
     flags: tuple[tuple[str, str], ...]  # (code, severity)
     attention: int  # sort key: higher means look at this client first
+    progress_status: str | None = None  # the running deficit phase's (science.plateau)

@@ -18,6 +18,7 @@ from .client import Timing
 from .layout import data_table
 from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
+from .plateau_view import plateau_flowables
 from .theme import Theme, page_size, theme_for
 from .units import DASH, Units
 from .viewmodel import ClientView, client_view
@@ -317,6 +318,10 @@ def render_practitioner_summary(
                 dense=True,
             )
         )
+        body.append(Spacer(1, 2 * mm))
+    plateau = plateau_flowables(analysis, config, theme, width, "practitioner")
+    if plateau:
+        body += plateau
         body.append(Spacer(1, 2 * mm))
     body.append(
         Paragraph(

@@ -1,0 +1,246 @@
+"""The "Is progress stalling?" section: view model, the small causes drawing, flowables.
+
+The view holds already formatted text in the report's display units; the wording is in
+``templates/report/plateau.j2``.  The drawing is our own: one row per cause, a bar from
+zero for how much it closed (to the right) or widened (to the left) the deficit, and a
+thin line for its 80 % interval, drawn with reportlab's vector graphics (no chart page).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass, field
+
+from reportlab.lib import colors
+from reportlab.lib.units import mm
+from reportlab.platypus import Flowable, Spacer
+
+from reportgen.config import Config
+from reportgen.results import ClientAnalysis, PlateauResult
+
+from . import theme as T
+from .para import Paragraph
+from .theme import Theme
+from .units import Units
+from .wording import Wording, blocks
+
+CAUSE_ORDER = ("intake", "body-size", "activity", "metabolic", "logging")
+
+
+@dataclass
+class CauseRow:
+    code: str
+    measured: bool
+    closed_kcal: float = 0.0  # how much it closed the deficit (display value, + = closed)
+    low: float = 0.0  # its 80 % interval, same sign convention
+    high: float = 0.0
+    text: str = ""  # e.g. "120 kcal/day"
+    interval: str = ""  # e.g. "40-200 kcal/day"
+    closed: bool = True  # closed (True) or widened (False) the deficit
+
+
+@dataclass
+class PlateauView:
+    status: str
+    reason: str | None
+    underlying: str | None
+    water_reasons: tuple[str, ...]
+    phase_name: str
+    weeks: int
+    rate: str
+    rate_interval: str
+    planned: str
+    planned_source: str | None
+    energy_unit: str
+    change: str = ""
+    change_interval: str = ""
+    shrank: bool = False
+    rows: list[CauseRow] = field(default_factory=list)
+    largest: str | None = None
+    causes_reason: str | None = None
+    leftover: str = ""
+    intake_change: str = ""
+    completeness_change: str = ""
+    completeness_fell: bool = False
+    logging_gap: str = ""
+    logging_gap_interval: str = ""
+    metabolic_expected: str = ""
+    hunger_change: str = ""
+    energy_change: str = ""
+    gap: str = ""
+    options: list[dict[str, str]] = field(default_factory=list)
+    cautions: tuple[str, ...] = ()
+
+
+def plateau_view(a: ClientAnalysis, config: Config) -> PlateauView | None:
+    """The section's view, or None when the month ends outside a deficit phase."""
+    p = a.plateau
+    if p is None:
+        return None
+    u = Units.from_config(config)
+    r = p.recent_rate_pct_per_week
+    view = PlateauView(
+        status=p.status,
+        reason=p.reason,
+        underlying=p.underlying,
+        water_reasons=p.water_reasons,
+        phase_name=p.phase_name,
+        weeks=p.recent_days // 7,
+        rate=u.pct(r.value, dp=2, signed=True) if r.known else "",
+        rate_interval=u.interval(r, "pct_change") if r.known else "",
+        planned=(
+            u.pct(p.planned_rate_pct_per_week, dp=2, signed=True)
+            if p.planned_rate_pct_per_week is not None
+            else ""
+        ),
+        planned_source=p.planned_source,
+        energy_unit=u.energy_label,
+        largest=p.largest,
+        causes_reason=p.causes_reason,
+        cautions=p.cautions,
+    )
+    if p.parts:
+        _causes(view, p, u)
+    view.options = [_option(o.code, o.values, u) for o in p.options]
+    if p.gap_kcal is not None:
+        view.gap = u.e(p.gap_kcal)
+    return view
+
+
+def _causes(view: PlateauView, p: PlateauResult, u: Units) -> None:
+    c = p.change_kcal
+    view.change = u.e(abs(c.value)) if c.value is not None else ""
+    view.shrank = c.value is not None and c.value < 0
+    view.change_interval = u.interval(c, "e_change")
+    for code in CAUSE_ORDER:
+        part = p.part(code)
+        if part is None:
+            continue
+        k = part.kcal
+        if k.value is None:
+            view.rows.append(CauseRow(code, False))
+            continue
+        lo = -(k.high if k.high is not None else k.value)
+        hi = -(k.low if k.low is not None else k.value)
+        view.rows.append(
+            CauseRow(
+                code,
+                True,
+                float(u.energy(-k.value)),
+                float(u.energy(lo)),
+                float(u.energy(hi)),
+                u.e(abs(k.value)),
+                u.interval(k, "e_change"),
+                k.value <= 0,
+            )
+        )
+    view.leftover = u.e(p.leftover_kcal, signed=True) if p.leftover_kcal is not None else ""
+    view.intake_change = u.e(p.intake_change_kcal, signed=True)
+    if p.completeness_change_pct is not None:
+        view.completeness_change = u.pp(p.completeness_change_pct, dp=0)
+        view.completeness_fell = p.completeness_change_pct <= -10.0
+    g = p.logging_gap_kcal
+    if g.value is not None:
+        view.logging_gap = u.e(g.value, signed=True)
+        view.logging_gap_interval = u.interval(g, "e_change")
+    if p.metabolic_expected_kcal is not None:
+        view.metabolic_expected = u.e(p.metabolic_expected_kcal, signed=True)
+    if p.hunger_change is not None:
+        view.hunger_change = u.number(p.hunger_change, 1, signed=True)
+    if p.energy_change is not None:
+        view.energy_change = u.number(p.energy_change, 1, signed=True)
+
+
+def _option(code: str, values: dict[str, float], u: Units) -> dict[str, str]:
+    out = {"code": code}
+    for key, v in values.items():
+        if key.endswith("_kcal"):
+            out[key] = u.e(v, signed=key == "change_kcal")
+        elif key == "steps":
+            out[key] = u.number(v)
+        else:
+            out[key] = u.number(v)
+    return out
+
+
+class CausesDrawing(Flowable):
+    """One row per cause: a bar for how much it closed the deficit, a line for its interval.
+
+    Bars to the right of the zero line closed the deficit; to the left, widened it.  A
+    cause that was not measured gets its name and a dash.  Scale: the largest end of any
+    interval, at least 100 kcal/day (or 400 kJ/day).  Drawn straight on the canvas with
+    the report's embedded font.
+    """
+
+    ROW_H = 5.2 * mm
+
+    def __init__(self, view: PlateauView, names: dict[str, str], theme: Theme, width: float):
+        super().__init__()
+        self.view = view
+        self.names = names
+        self.accent = theme.accent
+        self.width = width
+        self.height = self.ROW_H * len(view.rows) + 2 * mm
+
+    def wrap(self, avail_width: float, avail_height: float) -> tuple[float, float]:
+        return self.width, self.height
+
+    def draw(self) -> None:
+        c = self.canv
+        rows = self.view.rows
+        label_w = 0.30 * self.width
+        plot_w = self.width - label_w - 4 * mm
+        measured = [r for r in rows if r.measured]
+        ends = [abs(r.low) for r in measured] + [abs(r.high) for r in measured]
+        floor = 100.0 if self.view.energy_unit.startswith("kcal") else 400.0
+        span = max([*ends, floor])
+        zero = label_w + plot_w / 2
+        scale = (plot_w / 2) / span
+        ink = colors.HexColor(T.INK)
+        c.saveState()
+        c.setFont(T.FONT, T.SIZE_SMALL)
+        for i, r in enumerate(rows):
+            mid = self.height - (i + 0.5) * self.ROW_H - 1 * mm
+            c.setFillColor(ink)
+            c.drawString(0, mid - 2.5, self.names.get(r.code, r.code))
+            if not r.measured:
+                c.drawString(zero + 2, mid - 2.5, "\u2013")
+                continue
+            x0, x1 = sorted((zero, zero + r.closed_kcal * scale))
+            c.setFillColor(self.accent if r.closed else colors.HexColor(T.POINTS))
+            c.rect(x0, mid - self.ROW_H * 0.28, max(x1 - x0, 0.6), self.ROW_H * 0.56, 0, 1)
+            lo, hi = zero + r.low * scale, zero + r.high * scale
+            c.setStrokeColor(ink)
+            c.setLineWidth(0.6)
+            c.line(lo, mid, hi, mid)
+            c.line(lo, mid - 1.5, lo, mid + 1.5)
+            c.line(hi, mid - 1.5, hi, mid + 1.5)
+        c.setStrokeColor(colors.HexColor(T.MUTED))
+        c.setLineWidth(0.5)
+        c.line(zero, 0, zero, self.height)
+        c.restoreState()
+
+
+def plateau_flowables(
+    a: ClientAnalysis,
+    config: Config,
+    theme: Theme,
+    width: float,
+    macro: str,
+    heading_hook: Callable[[Paragraph, int], None] | None = None,
+) -> list[Flowable]:
+    """The section for the client report (``macro="client"``) or the practitioner summary."""
+    view = plateau_view(a, config)
+    if view is None:
+        return []
+    words = Wording(config, "report/plateau.j2")
+    out: list[Flowable] = []
+    out += blocks(words.text(macro, view), theme, heading_hook=heading_hook)
+    if view.rows and macro == "client":
+        names = dict(words.labels["cause_names"])
+        out.append(Spacer(1, 1 * mm))
+        out.append(CausesDrawing(view, names, theme, width))
+        out += blocks(words.text("drawing_caption", view), theme)
+    if macro == "client":
+        out += blocks(words.text("client_options", view), theme)
+    return out
