@@ -117,6 +117,12 @@ class ClientSpec:
     referral_email: str = ""
     bom: bool = False
     extra_daily: dict[str, str] = field(default_factory=dict)
+    # A stall with one known cause, building over four weeks from ``stall_start``:
+    # "intake" (eats more, logs it), "activity" (walks less), "metabolic" (expenditure
+    # falls beyond body size) or "logging" (high days left unlogged).
+    stall: str | None = None
+    stall_start: dt.date | None = None
+    stall_kcal: float = 0.0
 
 
 D = dt.date
@@ -219,6 +225,47 @@ CLIENTS: tuple[ClientSpec, ...] = (
         missing_frac=0.24, underlog=0.12, water_sd_kg=0.55, steps_base=None,
         sleep_step_h=0.5,
     ),
+    # Four clients whose progress stalled in the autumn, each for one main reason.
+    ClientSpec(
+        "c011", "Inês Carvalho", "female", "female", D(1990, 7, 12), 164.0,
+        "ines.carvalho@example.org", 81.0, 36.0, 1.5, D(2026, 8, 1), D(2026, 11, 30),
+        (
+            PhaseSpec("Baseline", D(2026, 8, 1), D(2026, 8, 21), "maintenance"),
+            PhaseSpec("Autumn cut", D(2026, 8, 22), None, "deficit", 0.27, True),
+        ),
+        missing_frac=0.05, underlog=0.05, water_sd_kg=0.3, steps_base=8200,
+        stall="intake", stall_start=D(2026, 10, 6), stall_kcal=450.0,
+    ),
+    ClientSpec(
+        "c012", "Tomasz Brandt", "male", "male", D(1983, 2, 27), 182.0,
+        "tomasz.brandt@example.com", 97.0, 27.0, 1.55, D(2026, 8, 1), D(2026, 11, 30),
+        (
+            PhaseSpec("Baseline", D(2026, 8, 1), D(2026, 8, 21), "maintenance"),
+            PhaseSpec("Cut", D(2026, 8, 22), None, "deficit", 0.20, True),
+        ),
+        missing_frac=0.05, underlog=0.04, water_sd_kg=0.3, steps_base=15000,
+        stall="activity", stall_start=D(2026, 10, 6), stall_kcal=420.0,
+    ),
+    ClientSpec(
+        "c013", "Amara Okafor", "female", "female", D(1979, 10, 3), 170.0,
+        "amara.okafor@example.org", 87.0, 38.0, 1.5, D(2026, 8, 1), D(2026, 11, 30),
+        (
+            PhaseSpec("Baseline", D(2026, 8, 1), D(2026, 8, 21), "maintenance"),
+            PhaseSpec("Fat loss", D(2026, 8, 22), None, "deficit", 0.27, True),
+        ),
+        missing_frac=0.05, underlog=0.05, water_sd_kg=0.2, steps_base=7600,
+        stall="metabolic", stall_start=D(2026, 10, 6), stall_kcal=480.0,
+    ),
+    ClientSpec(
+        "c014", "Jonas Lindqvist", "male", "male", D(1995, 5, 19), 185.0,
+        "jonas.lindqvist@example.com", 95.0, 25.0, 1.6, D(2026, 8, 1), D(2026, 11, 30),
+        (
+            PhaseSpec("Baseline", D(2026, 8, 1), D(2026, 8, 21), "maintenance"),
+            PhaseSpec("Lean-down", D(2026, 8, 22), None, "deficit", 0.25, True),
+        ),
+        missing_frac=0.04, underlog=0.05, water_sd_kg=0.2, steps_base=9000,
+        stall="logging", stall_start=D(2026, 10, 6), stall_kcal=520.0,
+    ),
 )
 # fmt: on
 
@@ -303,6 +350,11 @@ def simulate(spec: ClientSpec, rng: np.random.Generator) -> Simulated:
         mass = tissue + glyco  # the morning weigh-in, before the day's eating
         tdee = resting_kcal(mass, spec.height_cm, age, spec.sex) * spec.pal
         tdee *= 1.0 - adapt
+        ramp = 0.0
+        if spec.stall is not None and spec.stall_start is not None:
+            ramp = min(max((day - spec.stall_start).days / 28.0, 0.0), 1.0)
+        if spec.stall in ("activity", "metabolic"):
+            tdee -= ramp * spec.stall_kcal
         out["x"][k] = tdee
         out["a"][k] = adapt
         if phase is not current_phase:
@@ -320,7 +372,12 @@ def simulate(spec: ClientSpec, rng: np.random.Generator) -> Simulated:
             weeks_dieting = max(0.0, weeks_dieting - (3.0 if kind == "break" else 1.0) / 7.0)
             glyco_target = 0.0
         wd = day.weekday()
+        if spec.stall == "intake":
+            plan += ramp * spec.stall_kcal
         eaten = plan * WEEKDAY_INTAKE[wd] * math.exp(rng.normal(0.0, 0.09))
+        unlogged_high = spec.stall == "logging" and rng.random() < 0.35 * ramp
+        if unlogged_high:  # a high day that does not make it into the log
+            eaten += spec.stall_kcal / 0.35
         tissue += (eaten - tdee) / KCAL_PER_KG_TISSUE
         glyco += (glyco_target - glyco) / 4.0
 
@@ -340,8 +397,12 @@ def simulate(spec: ClientSpec, rng: np.random.Generator) -> Simulated:
 
         under = spec.underlog + (0.05 if wd >= 5 else 0.0)
         out["i"][k] = eaten * (1.0 - under) * math.exp(rng.normal(0.0, 0.04))
+        if unlogged_high:
+            out["i"][k] = np.nan
         if spec.steps_base is not None:
             neat = 1.0 - 0.12 * min(weeks_dieting, 16.0) / 16.0
+            if spec.stall == "activity":  # the walking given up: about 0.35 kcal/kg/1000
+                neat -= ramp * spec.stall_kcal / (0.00035 * mass * spec.steps_base)
             out["s"][k] = (
                 spec.steps_base
                 * steps_person
@@ -707,9 +768,9 @@ Everything here is invented: the practice, the people, their e-mail addresses (a
 example.org / example.com) and every number. It was generated by
 `scripts/make_sample_inputs.py`; rerun it to regenerate byte-identical files.
 
-**Scenario.** *Kestrel Row Nutrition* is a small invented practice with one coach and ten
-clients on fat-loss programmes. The report month is **November 2026**; logs run from early
-August 2026 to the end of November.
+**Scenario.** *Kestrel Row Nutrition* is a small invented practice with one coach and
+fourteen clients on fat-loss programmes. The report month is **November 2026**; logs run
+from early August 2026 to the end of November.
 
 | id | client | log | units | phases | skinfolds |
 |---|---|---|---|---|---|
@@ -723,6 +784,10 @@ August 2026 to the end of November.
 | c008 | Tamsin Greaves, F 26 | CSV, UTF-8 BOM | kg, **kJ** | deficit, break, deficit | JP3, x3 |
 | c009 | Rafael Iturbe, M 64 | XLSX + phases | kg, kcal, no ratings | baseline, deficit | JP7 |
 | c010 | Nadia Vos, F 19 | CSV | kg, kcal, no steps | deficit (running), patchy | JP3 |
+| c011 | Inês Carvalho, F 36 | CSV | kg, kcal | baseline, deficit; **stall: eats more** | JP3 |
+| c012 | Tomasz Brandt, M 43 | CSV | kg, kcal | baseline, deficit; **stall: walks less** | JP3 |
+| c013 | Amara Okafor, F 47 | CSV | kg, kcal | baseline, deficit; **stall: burns less** | JP3 |
+| c014 | Jonas Lindqvist, M 31 | CSV | kg, kcal | baseline, deficit; **stall: unlogged** | JP3 |
 
 x3: three readings per site (otherwise two).
 
@@ -736,7 +801,11 @@ slow adaptive drop in expenditure, glycogen and water shifts when a phase starts
 then observed the way real logs look: day-to-day water noise of about 0.45-0.65 kg with a weekly
 rhythm, an occasional salty-meal spike, 6-24 % of days not logged, intake under-logged by 3-18 %
 (more at weekends), hunger creeping up and energy down as a diet runs on, scales rounding to
-0.1 kg or 0.2 lb, calipers to 0.2 or 0.5 mm.
+0.1 kg or 0.2 lb, calipers to 0.2 or 0.5 mm. From early October, c011-c014 drift into a stall
+with one main cause each, building over four weeks: intake up by about 430 kcal/day and logged
+(c011), about 340 kcal/day less walking, visible in the steps (c012), expenditure about 420
+kcal/day lower than body size explains (c013), and a third of days becoming unlogged high days
+(c014).
 
 `EXPECTED_PROBLEMS.md` lists the deliberate problems in c007's log, which `reportgen check`
 must find (and nothing else).
