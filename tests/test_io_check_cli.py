@@ -74,7 +74,7 @@ def test_sample_book_reports_exactly_the_deliberate_problems(sample_book: Path) 
     )
     assert found == expected_sample_problems()
     assert data["month"] == "2026-11"
-    assert data["clients_checked"] == 10
+    assert data["clients_checked"] == 14
     n_err = sum(1 for p in found if p[0] == "error")
     assert code == (1 if n_err else 0)
 
@@ -88,7 +88,7 @@ def test_sample_book_table_output(sample_book: Path) -> None:
     n_err = sum(1 for p in expected if p[0] == "error")
     n_warn = len(expected) - n_err
     assert out.rstrip().splitlines()[-1] == (
-        f"10 clients checked for 2026-11: {1 if n_err else 0} with errors, "
+        f"14 clients checked for 2026-11: {1 if n_err else 0} with errors, "
         f"{n_err} error{'s' * (n_err != 1)}, {n_warn} warning{'s' * (n_warn != 1)}"
     )
     assert code == (1 if n_err else 0)
