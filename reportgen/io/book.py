@@ -7,7 +7,6 @@ writes to, moves or locks an input file.
 
 from __future__ import annotations
 
-import calendar
 import datetime as dt
 from collections.abc import Iterable
 from pathlib import Path
@@ -32,15 +31,6 @@ from reportgen.io.tables import Table, build_table, read_csv_table, read_xlsx_sh
 ROSTER_FILES = ("clients.csv", "clients.xlsx")
 PHASES_FILE = "phases.csv"
 XLSX_SHEETS = ("daily", "skinfolds", "phases")
-
-
-def month_end_of(month: str) -> dt.date:
-    """Last day of ``"YYYY-MM"``."""
-    try:
-        year, mon = (int(x) for x in month.split("-"))
-        return dt.date(year, mon, calendar.monthrange(year, mon)[1])
-    except (ValueError, calendar.IllegalMonthError) as exc:
-        raise ValueError(f'month "{month}" is not of the form YYYY-MM (e.g. 2026-11)') from exc
 
 
 def _roster_file(book: Path) -> str:

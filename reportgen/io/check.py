@@ -8,8 +8,9 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from reportgen.io import limits
-from reportgen.io.book import month_end_of, read_client, read_roster
+from reportgen.io.book import read_client, read_roster
 from reportgen.io.model import ClientRecord, Problem, Roster
+from reportgen.month import ReportMonth
 
 
 @dataclass(frozen=True)
@@ -17,7 +18,7 @@ class CheckResult:
     """The outcome of :func:`check_book`."""
 
     book_dir: str
-    month: str
+    month: ReportMonth
     today: dt.date
     roster: Roster
     records: tuple[ClientRecord, ...]
@@ -75,18 +76,19 @@ def _order(p: Problem) -> tuple[str, str, int, str, str]:
 
 
 def check_book(
-    book_dir: Path, month: str | None = None, today: dt.date | None = None
+    book_dir: Path, month: ReportMonth | str | None = None, today: dt.date | None = None
 ) -> CheckResult:
     """Read and validate every client of the book.
 
     ``month`` ("YYYY-MM") defaults to the month of the latest (non-future) data in the book.
     Raises :class:`~reportgen.io.model.InputError` only for an unusable book, and
-    ``ValueError`` for a malformed ``month``.
+    :class:`~reportgen.month.InvalidMonth` (a ``ValueError``) for a malformed ``month``.
     """
     book = Path(book_dir)
     today = today or dt.date.today()
     roster = read_roster(book, today=today)
-    month_end = month_end_of(month) if month else today
+    report_month = ReportMonth(month) if month else None
+    month_end = report_month.last_day if report_month is not None else today
 
     def read_all(end: dt.date) -> list[ClientRecord]:
         return [
@@ -102,13 +104,13 @@ def check_book(
         ]
 
     records = read_all(month_end)
-    if month is None:
+    if report_month is None:
         latest = max(
             (r.log.dates[-1].astype(dt.date) for r in records if r.log.n_days),
             default=today,
         )
-        month = f"{latest.year:04d}-{latest.month:02d}"
-        month_end = month_end_of(month)
+        report_month = ReportMonth.containing(latest)
+        month_end = report_month.last_day
         # Data up to today was read; the month of the latest data holds all of it, so only
         # what depends on the month end itself (age) can differ: re-read those clients.
         records = [
@@ -125,7 +127,7 @@ def check_book(
             for r in records
         ]
     unused = tuple(_unused_files(book, roster, records))
-    return CheckResult(str(book.resolve()), month, today, roster, tuple(records), unused)
+    return CheckResult(str(book.resolve()), report_month, today, roster, tuple(records), unused)
 
 
 def _unused_files(book: Path, roster: Roster, records: list[ClientRecord]) -> list[Problem]:
