@@ -1,6 +1,6 @@
 """analyse_client: the glue from a ClientRecord to a ClientAnalysis.
 
-Records are simulated (reportgen.science.simulate, invented data).  The checks
+Records are simulated (reportgen.testing.simulate, invented data).  The checks
 are identities of the published chain (science notes §4.4: observed TDEE =
 mean intake + realised deficit; §6: adaptation = observed - expected) and the
 special-handling rules of the issue, not regression pins.
