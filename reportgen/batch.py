@@ -25,6 +25,7 @@ import os
 import re
 import resource
 import sys
+import tempfile
 import time
 import traceback
 from collections import deque
@@ -55,6 +56,7 @@ from reportgen.report import (
     render_practitioner_summary,
 )
 from reportgen.report.overview_model import OverviewLine
+from reportgen.report.wording import TemplateProblem
 from reportgen.results import ClientAnalysis
 from reportgen.summary import SummaryRow, month_bounds, summary_csv, summary_rows
 
@@ -255,6 +257,8 @@ def process_client(task: ClientTask) -> ClientOutcome:
             files[kind] = {"path": name, "sha256": sha256_bytes(data)}
         timings["write"] = time.perf_counter() - t4
         timings["cpu"] = time.process_time() - cpu0  # CPU seconds: comparable under load
+    except TemplateProblem as exc:
+        return failed((str(exc),))
     except Exception as exc:
         tb = traceback.format_exc()
         first = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
@@ -515,6 +519,38 @@ def _folder_lock(folder: Path) -> Iterator[None]:
         os.close(fd)
 
 
+def prepare_month_dir(out_dir: Path, month: str) -> Path:
+    """Create (or reuse) ``out_dir/<month>`` and make sure the batch can write there.
+
+    Every way it cannot be used (the output folder is a file or sits under one, is
+    read-only, or the month folder is a symbolic link that would send files elsewhere) is a
+    :class:`BatchUsageError` with one line saying what to do.
+    """
+    month_dir = out_dir / month
+    if month_dir.is_symlink():
+        raise BatchUsageError(
+            f"{month_dir} is a symbolic link; reportgen writes only inside the output folder "
+            "itself. Remove the link or choose another --out"
+        )
+    for parent in (out_dir, *out_dir.parents):
+        if parent.exists():
+            if not parent.is_dir():
+                raise BatchUsageError(
+                    f"cannot use --out {out_dir}: {parent} is a file, not a folder"
+                )
+            break
+    try:
+        month_dir.mkdir(parents=True, exist_ok=True)
+        if not month_dir.is_dir():
+            raise NotADirectoryError(f"{month_dir} is not a folder")
+        with tempfile.NamedTemporaryFile(dir=month_dir, prefix=".reportgen-probe-"):
+            pass
+    except OSError as exc:
+        reason = exc.strerror or str(exc)
+        raise BatchUsageError(f"cannot write to the output folder {month_dir} ({reason})") from None
+    return month_dir
+
+
 def _select_clients(clients: tuple[Client, ...], wanted: Iterable[str] | None) -> list[Client]:
     chosen = sorted(clients, key=lambda c: c.client_id)
     if wanted is None:
@@ -565,8 +601,7 @@ def run_batch(
 
     with contextlib.ExitStack() as stack:
         dask = stack.enter_context(connect_scheduler(scheduler)) if scheduler else None
-        month_dir = Path(out_dir) / month
-        month_dir.mkdir(parents=True, exist_ok=True)
+        month_dir = prepare_month_dir(Path(out_dir), month)
         stack.enter_context(_folder_lock(month_dir))
         remove_temp_files(month_dir)
         # The manifest is the month's seal: remove it until this run has finished.
@@ -642,6 +677,7 @@ def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> N
         book=book_dir,
         config_file=config_file,
         config=config.as_dict(),
+        config_sha256=config.source_sha256,
         files=result.files,
         clients={o.client_id: o.manifest_entry() for o in result.outcomes},
         book_problems=result.book_problems,

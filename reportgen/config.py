@@ -8,6 +8,7 @@ message that names the key, so a typo never silently falls back to a default.
 from __future__ import annotations
 
 import dataclasses
+import hashlib
 import json
 import re
 import textwrap
@@ -96,10 +97,13 @@ class Config:
     analysis: AnalysisSettings = field(default_factory=AnalysisSettings)
     mail: MailSettings = field(default_factory=MailSettings)
     source: str | None = None  # the file it was read from, if any
+    # sha256 of the bytes read from that file (bookkeeping, not a setting: not compared)
+    source_sha256: str | None = field(default=None, compare=False)
 
     def as_dict(self) -> dict[str, Any]:
         d = dataclasses.asdict(self)
         d.pop("source")
+        d.pop("source_sha256")
         return d
 
     def resolve_path(self, value: str) -> Path | None:
@@ -296,6 +300,10 @@ def _check(cfg: Config) -> list[str]:
                 "[analysis] target_rates_pct_per_week values must be above 0 and at most 1.5"
             )
             break
+    for table in _TABLES:
+        for key, value in dataclasses.asdict(getattr(cfg, table)).items():
+            if isinstance(value, str) and any(ord(c) < 32 or 0x7F <= ord(c) <= 0x9F for c in value):
+                out.append(f"[{table}] {key} holds a control character (line break, tab...)")
     m = cfg.mail
     if not 0 < m.port < 65536:
         out.append(f"[mail] port = {m.port} is not a port number")
@@ -327,7 +335,8 @@ def load_config(path: str | Path | None) -> Config:
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
         raise ConfigError(f"{p}: not valid TOML ({exc})") from exc
     try:
-        return config_from_dict(data, source=str(p))
+        cfg = config_from_dict(data, source=str(p))
+        return dataclasses.replace(cfg, source_sha256=hashlib.sha256(raw).hexdigest())
     except ConfigError as exc:
         raise ConfigError("\n".join(f"{p}: {line}" for line in str(exc).splitlines())) from None
 

@@ -1,0 +1,149 @@
+"""Hostile and broken input around the batch: templates, caches, output folder, config.
+
+Each test builds its hostile input itself and bounds time and memory where a failure could
+hang or exhaust the machine (subprocess with resource limits and a time-out).
+"""
+
+from __future__ import annotations
+
+import json
+import shutil
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from reportgen.cli import main
+from reportgen.resources import templates_dir
+
+MONTH = "2026-11"
+
+
+def _cli(*args: object) -> object:
+    return CliRunner().invoke(main, [str(a) for a in args], catch_exceptions=False)
+
+
+def _payload(marker: Path) -> str:
+    # The classic jinja2 escape: reach os through a global's __init__.__globals__.
+    return (
+        "{% set x = cycler.__init__.__globals__.os.popen('touch " + str(marker) + "').read() %}\n"
+    )
+
+
+def test_report_template_cannot_run_commands(sample_book: Path, tmp_path: Path) -> None:
+    marker = tmp_path / "ran"
+    override = tmp_path / "tpl" / "report"
+    override.mkdir(parents=True)
+    shipped = (templates_dir() / "report" / "client.j2").read_text(encoding="utf-8")
+    (override / "client.j2").write_text(_payload(marker) + shipped, encoding="utf-8")
+    config = tmp_path / "practice.toml"
+    config.write_text(f'[report]\ntemplates_dir = "{tmp_path / "tpl"}"\n', encoding="utf-8")
+    out = tmp_path / "out"
+    res = _cli(
+        "batch", sample_book, "--month", MONTH, "--out", out, "--clients", "c001",
+        "--workers", 1, "--config", config, "--quiet",
+    )  # fmt: skip
+    assert not marker.exists(), "a template ran a shell command"
+    assert res.exit_code == 1  # type: ignore[attr-defined]
+    manifest = json.loads((out / MONTH / "manifest.json").read_text("utf-8"))
+    (message,) = manifest["clients"]["c001"]["messages"]
+    assert message.startswith("template report/client.j2") and "unsafe" in message
+    assert "unexpected error" not in message
+
+
+def test_template_syntax_error_names_the_template(sample_book: Path, tmp_path: Path) -> None:
+    override = tmp_path / "tpl" / "report"
+    override.mkdir(parents=True)
+    (override / "overview.j2").write_text("{% macro broken( %}\n", encoding="utf-8")
+    config = tmp_path / "practice.toml"
+    config.write_text(f'[report]\ntemplates_dir = "{tmp_path / "tpl"}"\n', encoding="utf-8")
+    out = tmp_path / "out"
+    res = _cli(
+        "batch", sample_book, "--month", MONTH, "--out", out, "--clients", "c001",
+        "--workers", 1, "--config", config, "--quiet",
+    )  # fmt: skip
+    assert res.exit_code == 1  # type: ignore[attr-defined]
+    manifest = json.loads((out / MONTH / "manifest.json").read_text("utf-8"))
+    (error,) = manifest["errors"]
+    assert "template report/overview.j2" in error and "line 1" in error
+
+
+def test_font_cache_is_not_in_the_shared_temp_folder(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import os
+    import tempfile
+
+    from fontTools.ttLib import TTFont
+
+    from reportgen.report import charts
+
+    shared = tmp_path / "shared-tmp"
+    shared.mkdir()
+    clear = getattr(charts, "font_cache_folder", None)
+    if clear is not None:
+        clear.cache_clear()
+        monkeypatch.setattr(charts, "font_cache_folder", charts.font_cache_folder)
+    monkeypatch.setattr(tempfile, "tempdir", str(shared))
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    # Plant junk under every name the old code could have used in the shared folder.
+    planted = shared / f"reportgen-{os.getuid()}"
+    planted.mkdir()
+    path = charts._chart_font_file(charts.CHART_FONT_LATIN, charts.CHART_FONT_LATIN_RANGES)
+    for name in [path.name, *(p.name for p in planted.iterdir())]:
+        (planted / name).write_bytes(b"not a font")
+    path = charts._chart_font_file(charts.CHART_FONT_LATIN, charts.CHART_FONT_LATIN_RANGES)
+    assert shared not in path.parents
+    assert (tmp_path / "cache") in path.parents
+    assert (path.parent.stat().st_mode & 0o077) == 0, "cache folder readable by others"
+    TTFont(str(path))  # a real font
+
+    # A damaged cached copy (a crash mid-copy, a disk error) is detected and rebuilt.
+    path.write_bytes(b"damaged")
+    again = charts._chart_font_file(charts.CHART_FONT_LATIN, charts.CHART_FONT_LATIN_RANGES)
+    TTFont(str(again))
+    if clear is not None:
+        clear.cache_clear()
+
+
+def test_batch_refuses_a_symlinked_month_folder(sample_book: Path, tmp_path: Path) -> None:
+    elsewhere = tmp_path / "elsewhere"
+    elsewhere.mkdir()
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / MONTH).symlink_to(elsewhere, target_is_directory=True)
+    res = _cli("batch", sample_book, "--month", MONTH, "--out", out, "--clients", "c001",
+               "--workers", 1, "--quiet")  # fmt: skip
+    assert res.exit_code == 2  # type: ignore[attr-defined]
+    assert "symbolic link" in res.output  # type: ignore[attr-defined]
+    assert list(elsewhere.iterdir()) == []
+
+
+@pytest.mark.parametrize("case", ["file", "under-file", "read-only"])
+def test_unusable_output_folder_is_a_usage_error(
+    sample_book: Path, tmp_path: Path, case: str
+) -> None:
+    import os
+
+    if case == "file":
+        out = tmp_path / "out"
+        out.write_text("x")
+        month_out = out
+    elif case == "under-file":
+        (tmp_path / "afile").write_text("x")
+        out = tmp_path / "afile" / "out"
+        month_out = out
+    else:
+        if os.geteuid() == 0:
+            pytest.skip("root writes into read-only folders")
+        out = tmp_path / "ro"
+        out.mkdir()
+        out.chmod(0o555)
+        month_out = out
+    res = _cli("batch", sample_book, "--month", MONTH, "--out", out, "--clients", "c001",
+               "--workers", 1, "--quiet")  # fmt: skip
+    assert res.exit_code == 2, res.output  # type: ignore[attr-defined]
+    text = res.output.strip()  # type: ignore[attr-defined]
+    assert "Traceback" not in text and str(month_out) in text
+    assert len([ln for ln in text.splitlines() if ln.startswith("Error")]) == 1
+    shutil.rmtree(tmp_path / "ro", ignore_errors=True)
