@@ -147,3 +147,73 @@ def test_unusable_output_folder_is_a_usage_error(
     assert "Traceback" not in text and str(month_out) in text
     assert len([ln for ln in text.splitlines() if ln.startswith("Error")]) == 1
     shutil.rmtree(tmp_path / "ro", ignore_errors=True)
+
+
+def test_summary_csv_neutralises_formulas_but_keeps_negative_numbers() -> None:
+    import csv
+    import datetime as dt
+    import io
+
+    from reportgen.results import Estimate, PhaseResult
+    from reportgen.summary import summary_csv
+
+    missing = Estimate(None, reason="too-few-days")
+    base: dict[str, object] = {
+        "kind": "deficit",
+        "start": dt.date(2026, 11, 1),
+        "end": None,
+        "window_end": dt.date(2026, 11, 30),
+        "days": 30,
+        "weight_days": 28,
+        "intake_days": 25,
+        "trend_start_kg": 82.0,
+        "trend_end_kg": 80.5,
+        "trend_change_kg": -1.5,
+        "rate_kg_per_week": missing,
+        "rate_pct_per_week": Estimate(-0.45),
+        "mean_intake_kcal": 1900.0,
+        "target_kcal": None,
+        "realised_deficit_kcal": missing,
+        "observed_tdee_kcal": missing,
+        "expected_tdee_kcal": missing,
+        "expected_method": None,
+        "adaptation_kcal": Estimate(-120.0),
+        "adaptation_pct": missing,
+        "deficit_depth_pct": None,
+        "days_in_deficit": None,
+        "bodyfat_start_pct": None,
+        "bodyfat_end_pct": None,
+        "fat_mass_change_kg": None,
+        "lean_mass_change_kg": None,
+        "status": "ok",
+    }
+    from reportgen.summary import phase_row
+
+    names = ['=HYPERLINK("http://example.invalid","x")', "+1", "-2+3", "@SUM(A1)", "\tx", "\rx"]
+    rows = [
+        phase_row(cid, PhaseResult(name=name, **base))  # type: ignore[arg-type]
+        for cid, name in zip(["-c001", "c002", "c003", "c004", "c005", "c006"], names, strict=True)
+    ]
+    parsed = list(csv.DictReader(io.StringIO(summary_csv(rows).decode("utf-8"), newline="")))
+    assert [r["phase"] for r in parsed] == ["'" + n.replace("\r", " ") for n in names]
+    assert parsed[0]["client_id"] == "'-c001"
+    for r in parsed:  # numbers stay numbers, negative ones included
+        assert r["trend_change_kg"] == "-1.50" and r["rate_pct_per_week"] == "-0.45"
+        assert r["adaptation_kcal"] == "-120"
+
+
+def test_check_and_batch_show_control_characters_escaped(tmp_path: Path) -> None:
+    from _io_helpers import csv_text, daily_rows, write_book
+
+    book = write_book(
+        tmp_path / "book",
+        roster="client_id,name,sex,birth_date,height_cm,email,pregnant\n"
+        "c001,Ada,female,1990-05-01,168,ada@example.org,no\n",
+        logs={"c001.csv": csv_text([*daily_rows(), ["2026-11-20", "8\x1b[2J2", "1900", "1"]])},
+    )
+    check = _cli("check", book, "--today", "2026-12-01")
+    batch = _cli("batch", book, "--month", MONTH, "--out", tmp_path / "out", "--workers", 1)
+    for res in (check, batch):
+        out = res.output  # type: ignore[attr-defined]
+        assert "\x1b" not in out
+        assert "\\x1b" in out
