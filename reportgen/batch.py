@@ -39,6 +39,7 @@ from typing import TYPE_CHECKING
 from reportgen.analysis import analyse_client
 from reportgen.atomic import remove_temp_files, write_bytes_atomic
 from reportgen.config import Config
+from reportgen.io import guard
 from reportgen.io.book import read_client, read_roster
 from reportgen.io.model import Client, Phase, Problem
 from reportgen.manifest import (
@@ -166,11 +167,18 @@ def _peak_rss_mb() -> float:
     return rss / (1024.0 * 1024.0 if sys.platform == "darwin" else 1024.0)  # pragma: no cover
 
 
-def _input_hashes(book: Path, used: tuple[str, ...], known: dict[str, str]) -> dict[str, str]:
-    """sha256 of the files a record was read from (book-level ones hashed once by the parent)."""
-    todo = tuple(rel for rel in used if rel not in known)
-    hashes = hash_inputs(book, todo)
-    hashes.update({rel: known[rel] for rel in used if rel in known})
+def _input_hashes(
+    book: Path, used: tuple[str, ...], known: dict[str, str], parsed: dict[str, str]
+) -> dict[str, str]:
+    """sha256 of the files a record was read from.
+
+    ``parsed`` holds the hashes of the exact bytes the readers parsed (see
+    :func:`reportgen.io.guard.recording`); book-level files come from ``known`` (the
+    parent's reading).  Only a file neither covers is hashed from disk.
+    """
+    have = {**parsed, **known}
+    hashes = hash_inputs(book, tuple(rel for rel in used if rel not in have))
+    hashes.update({rel: have[rel] for rel in used if rel in have})
     return dict(sorted(hashes.items()))
 
 
@@ -221,15 +229,16 @@ def process_client(task: ClientTask) -> ClientOutcome:
 
     try:
         t0 = time.perf_counter()
-        record = read_client(
-            book,
-            client,
-            task.phases,
-            month_bounds(task.month)[1],
-            today=task.today,
-            roster_problems=task.roster_problems,
-        )
-        inputs = _input_hashes(book, record.source_files, task.roster_inputs)
+        with guard.recording() as parsed:  # hashes of the very bytes that are parsed
+            record = read_client(
+                book,
+                client,
+                task.phases,
+                month_bounds(task.month)[1],
+                today=task.today,
+                roster_problems=task.roster_problems,
+            )
+        inputs = _input_hashes(book, record.source_files, task.roster_inputs, parsed)
         warnings = tuple(p.as_dict() for p in record.warnings)
         t1 = time.perf_counter()
         timings["read"] = t1 - t0
@@ -417,6 +426,13 @@ def _pool(tasks: list[ClientTask], workers: int) -> Iterator[ClientOutcome]:
             yield _isolated(task)
 
 
+def _client_files(task: ClientTask) -> list[str]:
+    """The client's own input files that exist, to name in a message about a crash."""
+    cid = task.client.client_id
+    candidates = (f"logs/{cid}.csv", f"logs/{cid}.xlsx", f"skinfolds/{cid}.csv")
+    return [rel for rel in candidates if os.path.lexists(Path(task.book_dir) / rel)]
+
+
 def _isolated(task: ClientTask) -> ClientOutcome:
     """Run one task alone in a fresh one-worker pool (after a pool broke)."""
     with ProcessPoolExecutor(
@@ -426,8 +442,11 @@ def _isolated(task: ClientTask) -> ClientOutcome:
         try:
             return fut.result()
         except BrokenProcessPool:
+            files = _client_files(task)
             return _lost_outcome(
-                task, "the worker process stopped unexpectedly while making this client's reports"
+                task,
+                "the worker process stopped unexpectedly while making this client's reports"
+                + (f" (from {', '.join(files)})" if files else ""),
             )
         except Exception as exc:
             return _lost_outcome(
@@ -591,13 +610,14 @@ def run_batch(
     if workers < 1:
         raise BatchUsageError("--workers must be at least 1")
 
-    roster = read_roster(book_dir)
+    with guard.recording() as parsed:
+        roster = read_roster(book_dir)
     clients = _select_clients(roster.clients, client_ids)
     roster_ids = {c.client_id for c in roster.clients}
     book_problems = [
         p.as_dict() for p in roster.problems if p.client_id is None or p.client_id not in roster_ids
     ]
-    roster_inputs = dict(sorted(hash_inputs(book_dir, roster.source_files).items()))
+    roster_inputs = _input_hashes(book_dir, roster.source_files, {}, parsed)
 
     with contextlib.ExitStack() as stack:
         dask = stack.enter_context(connect_scheduler(scheduler)) if scheduler else None

@@ -10,6 +10,7 @@ from __future__ import annotations
 import dataclasses
 import hashlib
 import json
+import math
 import re
 import textwrap
 import tomllib
@@ -152,6 +153,8 @@ def _coerce(table: str, key: str, value: Any, hint: Any) -> Any:
     if hint is float:
         if isinstance(value, bool) or not isinstance(value, int | float):
             raise ConfigError(f"{where} must be a number, got {value!r}")
+        if not math.isfinite(value):  # TOML allows nan and inf
+            raise ConfigError(f"{where} must be a finite number, got {value!r}")
         return float(value)
     if hint is str:
         if not isinstance(value, str):
@@ -252,11 +255,15 @@ def _logo_problem(cfg: Config) -> str | None:
     where = f"[practice] logo = {cfg.practice.logo!r}"
     if path.suffix.lower() not in (".png", ".svg"):
         return f"{where} must be a PNG or SVG file (.png or .svg)"
-    try:
-        head = path.read_bytes()[:4096]
-    except OSError:
+    from reportgen.io import guard
+
+    if guard.file_state(path) == "absent":
         rel = " (relative paths are taken from the configuration file's folder)"
         return f"{where}: no such file at {path}{rel if cfg.source else ''}"
+    try:  # type and size first: /dev/zero or a FIFO must neither hang nor fill memory
+        head = guard.read_input(path, str(path), guard.MAX_LOGO_BYTES, "logo image")[:4096]
+    except guard.InputRefused as exc:
+        return f"{where}: {exc.message}"
     if path.suffix.lower() == ".png" and not head.startswith(_PNG_MAGIC):
         return f"{where}: {path.name} is not a PNG image (save it again as PNG)"
     if path.suffix.lower() == ".svg" and b"<svg" not in head:

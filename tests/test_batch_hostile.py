@@ -217,3 +217,98 @@ def test_check_and_batch_show_control_characters_escaped(tmp_path: Path) -> None
         out = res.output  # type: ignore[attr-defined]
         assert "\x1b" not in out
         assert "\\x1b" in out
+
+
+def test_a_client_that_crashes_its_worker_is_named_with_its_file(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import datetime as dt
+    import os
+
+    from _io_helpers import ROSTER_HEADER, csv_text, daily_rows, write_book
+
+    import reportgen.batch as batch
+
+    roster = (
+        f"{ROSTER_HEADER}\n"
+        "c001,Ada Test,female,1990-05-01,168,ada@example.org,no\n"
+        "c002,Ben Test,male,1985-02-01,180,ben@example.org,no\n"
+    )
+    logs = {"c001.csv": csv_text(daily_rows()), "c002.csv": csv_text(daily_rows())}
+    book = write_book(tmp_path / "book", roster=roster, logs=logs)
+    real = batch.read_client
+
+    def crash_on_c002(book_dir: Path, client: object, *args: object, **kw: object) -> object:
+        if getattr(client, "client_id", "") == "c002":
+            os._exit(134)  # as a native abort in a reader would
+        return real(book_dir, client, *args, **kw)  # type: ignore[arg-type]
+
+    monkeypatch.setattr(batch, "read_client", crash_on_c002)  # forked workers inherit it
+    result = batch.run_batch(book, MONTH, tmp_path / "out", workers=2, today=dt.date(2026, 12, 1))
+    by_id = {o.client_id: o for o in result.outcomes}
+    assert by_id["c001"].ok
+    assert "stopped unexpectedly" in by_id["c002"].reason
+    assert "logs/c002.csv" in by_id["c002"].reason
+
+
+def _settings_check_in_child(config: Path) -> tuple[int, str]:
+    """`reportgen settings check` in a child bounded in memory (1.5 GB) and time (60 s)."""
+    import os
+    import resource
+    import subprocess
+    import sys
+
+    def limit() -> None:
+        resource.setrlimit(resource.RLIMIT_AS, (2_500 * 1024 * 1024,) * 2)
+
+    proc = subprocess.run(
+        [sys.executable, "-c", "from reportgen.cli import main; main()", "settings", "check",
+         str(config)],
+        capture_output=True, text=True, timeout=60, preexec_fn=limit, check=False,
+        env={**os.environ, "OPENBLAS_NUM_THREADS": "1"},
+    )  # fmt: skip
+    return proc.returncode, proc.stdout + proc.stderr
+
+
+@pytest.mark.parametrize("kind", ["dev-zero", "fifo", "folder"])
+def test_logo_that_is_not_a_file_is_refused_without_reading(tmp_path: Path, kind: str) -> None:
+    import os
+
+    logo = tmp_path / "logo.png"
+    if kind == "dev-zero":
+        if not Path("/dev/zero").exists():
+            pytest.skip("no /dev/zero")
+        logo.symlink_to("/dev/zero")  # endless zeros behind an innocent name
+    elif kind == "fifo":
+        os.mkfifo(logo)
+    else:
+        logo.mkdir()
+    config = tmp_path / "practice.toml"
+    config.write_text('[practice]\nlogo = "logo.png"\n', encoding="utf-8")
+    code, out = _settings_check_in_child(config)
+    assert code == 1, out
+    assert "[practice] logo" in out and "Traceback" not in out
+    assert "no such file" not in out  # it is there: say what it is
+
+
+def test_oversized_logo_is_refused(tmp_path: Path) -> None:
+    from reportgen.config import check_config_file
+    from reportgen.io.guard import MAX_LOGO_BYTES
+
+    logo = tmp_path / "logo.png"
+    with logo.open("wb") as fh:
+        fh.write(b"\x89PNG\r\n\x1a\n")
+        fh.truncate(MAX_LOGO_BYTES + 1)  # sparse
+    config = tmp_path / "practice.toml"
+    config.write_text('[practice]\nlogo = "logo.png"\n', encoding="utf-8")
+    (problem,) = check_config_file(config)
+    assert "[practice] logo" in problem and "MB" in problem
+
+
+@pytest.mark.parametrize("value", ["nan", "inf", "-inf"])
+def test_non_finite_numbers_in_the_configuration_are_refused(tmp_path: Path, value: str) -> None:
+    config = tmp_path / "practice.toml"
+    config.write_text(f"[mail]\ntimeout_s = {value}\n", encoding="utf-8")
+    res = _cli("settings", "check", config)
+    assert res.exit_code == 1  # type: ignore[attr-defined]
+    assert "[mail] timeout_s must be a finite number" in res.output  # type: ignore[attr-defined]

@@ -22,7 +22,7 @@ import os
 import re
 import stat
 import zipfile
-from collections.abc import Iterator
+from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Final
@@ -102,9 +102,18 @@ def special_file(path: Path) -> str | None:
     return None if stat.S_ISREG(st.st_mode) else _kind(st.st_mode)
 
 
-def exists_at_all(path: Path) -> bool:
-    """True when anything (file, folder, FIFO, broken link) is at ``path``."""
-    return os.path.lexists(path)
+def file_state(path: Path) -> str:
+    """``"absent"``, ``"regular"``, or what else is there ("a folder", "a broken link"...).
+
+    Only ``stat`` is used: a FIFO is never opened.
+    """
+    if not os.path.lexists(path):
+        return "absent"
+    try:
+        st = path.stat()
+    except OSError as exc:
+        return "a broken link" if path.is_symlink() else f"unreadable ({exc.strerror})"
+    return "regular" if stat.S_ISREG(st.st_mode) else _kind(st.st_mode)
 
 
 def read_input(path: Path, rel: str, max_bytes: int, what: str = "file") -> bytes:
@@ -300,7 +309,7 @@ def _scan_ods(zf: zipfile.ZipFile, info: zipfile.ZipInfo, rel: str) -> None:
                 )
 
 
-def long_cell(row: tuple[object, ...] | list[object]) -> int | None:
+def long_cell(row: Sequence[object]) -> int | None:
     """Position of the first text cell longer than :data:`MAX_CELL_CHARS`, else None."""
     for pos, cell in enumerate(row):
         if isinstance(cell, str) and len(cell) > MAX_CELL_CHARS:
