@@ -351,7 +351,11 @@ def read_xlsx_sheets(
                 found[""] = (names[0], rows)
         finally:
             wb.close()
-    except Exception as exc:  # calamine raises several unrelated types for broken files
+    except BaseException as exc:  # calamine raises several unrelated types for broken files
+        # A panic inside the Rust reader arrives as pyo3's PanicException, which derives
+        # from BaseException; it is this file's problem, not a reason to stop the run.
+        if not isinstance(exc, Exception) and type(exc).__name__ != "PanicException":
+            raise
         return (
             None,
             (),
