@@ -226,6 +226,7 @@ def process_client(task: ClientTask) -> ClientOutcome:
             month_bounds(task.month)[1],
             today=task.today,
             roster_problems=task.roster_problems,
+            date_order=task.config.book.date_order_setting(),
         )
         inputs = _input_hashes(book, record.source_files, task.roster_inputs)
         warnings = tuple(p.as_dict() for p in record.warnings)

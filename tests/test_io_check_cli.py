@@ -221,18 +221,20 @@ def test_files_no_client_reads_are_pointed_out(tmp_path: Path) -> None:
     logs = book / "logs"
     (logs / "C001.csv").write_text("date\n", encoding="utf-8")  # wrong case: never read
     (logs / "c0O1.csv").write_text("date\n", encoding="utf-8")  # typo in the id
-    (logs / "c001.ods").write_bytes(b"")  # a format we do not read
+    (logs / "c001.numbers").write_bytes(b"")  # a format we do not read
     (logs / "~$c001.xlsx").write_bytes(b"lock")  # spreadsheet lock file: not mentioned
     (logs / ".DS_Store").write_bytes(b"")
     result = check_book(book, today=dt.date(2026, 12, 1))
     assert result.ok
     msgs = {p.file: (p.client_id, p.message) for p in result.warnings}
-    assert set(msgs) == {"logs/C001.csv", "logs/c0O1.csv", "logs/c001.ods"}
+    assert set(msgs) == {"logs/C001.csv", "logs/c0O1.csv", "logs/c001.numbers"}
     assert re.search(
         r'not read: the name must match the client_id "c001" exactly', msgs["logs/C001.csv"][1]
     )
     assert re.search(
         r"not read: its name matches no client_id in clients.csv", msgs["logs/c0O1.csv"][1]
     )
-    assert re.search(r"reportgen reads .csv or .xlsx files here", msgs["logs/c001.ods"][1])
-    assert msgs["logs/c001.ods"][0] == "c001"
+    assert re.search(
+        r"reportgen reads .csv, .xlsx, .xlsm, .xls or .ods files here", msgs["logs/c001.numbers"][1]
+    )
+    assert msgs["logs/c001.numbers"][0] == "c001"
