@@ -441,3 +441,53 @@ def test_check_month_warns_about_a_month_without_weigh_ins(tmp_path: Path) -> No
         "month's entries if they exist",
     }
     assert {p["code"] for p in data["problems"]} == {"no-month-data", "gap"}
+
+
+def test_scale_body_fat_is_its_own_series_never_an_estimate(
+    variation_book: Path, batch_run: Path
+) -> None:
+    import pypdf
+
+    rows = _summary(batch_run)
+    # Same weights and intake as c000 and no skinfolds: had the scale's body fat entered the
+    # body-composition estimates or the energy density of weight change, these would differ.
+    for key in ("observed_tdee_kcal", "realised_deficit_kcal", "bodyfat_end_pct"):
+        assert rows["c004"][key] == rows["c000"][key], key
+    text = "\n".join(p.extract_text() for p in pypdf.PdfReader(batch_run / "c004.pdf").pages)
+    assert "▲ body fat, scale reading" in text
+    assert "The body-fat readings of your scale (bioimpedance), shown as the scale gives them" in (
+        " ".join(text.split())
+    )
+    plain = "\n".join(p.extract_text() for p in pypdf.PdfReader(batch_run / "c000.pdf").pages)
+    assert "scale reading" not in plain
+
+
+def test_scale_panel_sits_beside_the_skinfold_panels(variation_book: Path) -> None:
+    import shutil
+
+    from reportgen.analysis import analyse_client
+    from reportgen.config import AnalysisSettings
+    from reportgen.report.charts import FIGURES, ChartContext, legend
+    from reportgen.report.units import Units
+
+    book = variation_book.parent / "with_skinfolds"
+    if not book.exists():
+        shutil.copytree(variation_book, book)
+        (book / "skinfolds").mkdir(exist_ok=True)
+        (book / "skinfolds" / "c004.csv").write_text(
+            "date,triceps,suprailiac,thigh\n2026-09-05,23.6,21.2,36.2\n"
+            "2026-10-05,22.6,20.2,35.0\n2026-11-05,21.6,19.4,34.0\n",
+            encoding="utf-8",
+        )
+    rec = read_book_client(book, "c004", dt.date(2026, 11, 30))
+    a = analyse_client(rec, "2026-11", AnalysisSettings())
+    assert len(a.bodycomp) == 3  # the skinfold sessions alone make the estimates
+    labels = {"bodycomp_change": "change ({unit})", "fat_mass": "fat", "lean_mass": "lean"}
+    labels |= {"skinfold_sum": "sum", "scale_bodyfat": "scale", "legend_fat": "f"}
+    labels |= {"legend_lean": "l", "legend_sum": "s", "legend_scale_bodyfat": "scale"}
+    ctx = ChartContext(Units(), labels, "#1F5A7A", 170, START, dt.date(2026, 11, 30))
+    fig = FIGURES["bodycomp"](a, ctx)
+    assert [ax.get_title(loc="left") for ax in fig.axes] == ["change (kg)", "sum (mm)", "scale (%)"]
+    points = fig.axes[2].lines[0].get_ydata()
+    assert len(points) == DAYS and points[0] == pytest.approx(31.0, abs=1e-9)
+    assert [e[2] for e in legend("bodycomp", a, ctx)] == ["f", "l", "s", "scale"]

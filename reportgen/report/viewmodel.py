@@ -262,6 +262,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         ),
         "weeks_in_deficit": str((ph.days_in_deficit or 0) // 7) if ph else "",
         "sessions": str(len(a.bodycomp)),
+        "scale_bodyfat": bool(np.isfinite(a.log.body_fat_pct).any()),
         "goal": "",
         "goal_date": "",
         "projection_weeks": str(config.report.projection_weeks),
