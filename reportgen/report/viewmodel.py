@@ -221,7 +221,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         intake.value = u.e(a.month_mean_intake_kcal)
         intake.detail = str(int(np.sum(_month_mask(a) & np.isfinite(a.log.intake_kcal))))
     else:
-        intake.reason = "no-intake"
+        intake.reason = "no-intake" if a.log.has_intake else "no-intake-logged"
     figs["intake"] = intake
 
     def phase_est(attr: str, kind: str, key: str) -> Figure:
