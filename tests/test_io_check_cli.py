@@ -37,6 +37,8 @@ KIND_CODES = {
     "skinfold readings disagree": "skinfold-disagreement",
     "encoding fallback": "encoding-fallback",
     "special handling": "special-handling",
+    "headers read as": "header-read-as",
+    "date order": "date-order",
 }
 
 
@@ -46,12 +48,19 @@ def expected_sample_problems() -> list[tuple[str, str, str, int | None, str, str
     out = []
     for line in text.splitlines():
         cells = [c.strip() for c in line.strip().strip("|").split("|")]
-        if len(cells) < 6 or cells[0] not in ("error", "warning"):
+        if len(cells) < 6 or cells[0] not in ("error", "warning", "note"):
             continue
         severity, kind, file, row, column, value = cells[:6]
         assert kind in KIND_CODES, f"add the kind {kind!r} of EXPECTED_PROBLEMS.md to KIND_CODES"
         out.append(
-            (severity, KIND_CODES[kind], file, int(row) if row else None, column, value.strip("`"))
+            (
+                severity,
+                KIND_CODES[kind],
+                file,
+                int(row) if row else None,
+                column or None,
+                value.strip("`") or None,
+            )
         )
     assert out, "EXPECTED_PROBLEMS.md has no table rows"
     return sorted(out, key=str)
@@ -74,7 +83,7 @@ def test_sample_book_reports_exactly_the_deliberate_problems(sample_book: Path) 
     )
     assert found == expected_sample_problems()
     assert data["month"] == "2026-11"
-    assert data["clients_checked"] == 10
+    assert data["clients_checked"] == 12
     n_err = sum(1 for p in found if p[0] == "error")
     assert code == (1 if n_err else 0)
 
@@ -86,10 +95,12 @@ def test_sample_book_table_output(sample_book: Path) -> None:
         loc = ":".join(str(x) for x in (file, row, column) if x not in (None, ""))
         assert re.search(rf"{severity}\s+│\s+c\d+\s+│\s+{re.escape(loc)}\s", out), out
     n_err = sum(1 for p in expected if p[0] == "error")
-    n_warn = len(expected) - n_err
+    n_warn = sum(1 for p in expected if p[0] == "warning")
+    n_note = sum(1 for p in expected if p[0] == "note")
     assert out.rstrip().splitlines()[-1] == (
-        f"10 clients checked for 2026-11: {1 if n_err else 0} with errors, "
-        f"{n_err} error{'s' * (n_err != 1)}, {n_warn} warning{'s' * (n_warn != 1)}"
+        f"12 clients checked for 2026-11: {1 if n_err else 0} with errors, "
+        f"{n_err} error{'s' * (n_err != 1)}, {n_warn} warning{'s' * (n_warn != 1)}, "
+        f"{n_note} note{'s' * (n_note != 1)}"
     )
     assert code == (1 if n_err else 0)
 
