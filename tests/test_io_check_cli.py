@@ -195,15 +195,15 @@ def _snapshot(folder: Path) -> dict[str, tuple[str, int]]:
 def test_inputs_are_byte_identical_after_reading_and_checking(sample_book: Path) -> None:
     # Add a broken workbook and a cp1252 file so the failure paths are covered too.
     (sample_book / "clients.csv").write_bytes(
-        (sample_book / "clients.csv").read_bytes() + b"c011,Ren\xe9,male,1980-01-01,180,,,,,,\n"
+        (sample_book / "clients.csv").read_bytes() + b"c099,Ren\xe9,male,1980-01-01,180,,,,,,\n"
     )
-    (sample_book / "logs" / "c011.xlsx").write_bytes(b"PK\x03\x04 broken")
+    (sample_book / "logs" / "c099.xlsx").write_bytes(b"PK\x03\x04 broken")
     before = _snapshot(sample_book)
     assert any(name.endswith(".xlsx") for name in before)
     for args in ([], ["--json"], ["--month", "2026-10"]):
         run(str(sample_book), "--today", TODAY, *args)
     read_book_client(sample_book, "c002")
-    read_book_client(sample_book, "c011")
+    read_book_client(sample_book, "c099")
     assert _snapshot(sample_book) == before
     assert not list(sample_book.rglob("~$*")), "no lock files left behind"
 
