@@ -130,6 +130,7 @@ def cut_log(log: DailyLog, as_of: dt.date) -> DailyLog:
         hunger=log.hunger[keep],
         energy=log.energy[keep],
         sleep_h=log.sleep_h[keep],
+        body_fat_pct=log.body_fat_pct[keep],
     )
 
 
