@@ -30,6 +30,7 @@ REASON_CODES: tuple[str, ...] = (
     "no-resting-equation",  # no baseline and no sex/age/height for a resting equation
     "no-observed",  # adaptation without an observed TDEE
     "no-expected",  # adaptation without an expected TDEE
+    "no-baseline",  # no phases: the report month as one window has no baseline to expect from
     "no-data-in-month",  # no trend data inside the report month
     "baseline-phase",  # adaptation of the baseline phase itself (it is the reference)
     "early-phase",  # under 14 usable days after the first 7 of a phase that changed intake

@@ -418,7 +418,31 @@ def test_book_without_phases_is_valid(tmp_path: Path) -> None:
         catch_exceptions=False,
     )
     assert result.exit_code == 0, result.output
-    assert (out / "2026-11" / "c001.pdf").is_file()
+    # the report month is one window: deficit and expenditure from weight and intake, no
+    # expected expenditure or adaptation (no baseline without phases)
+    (row,) = _summary(out / "2026-11").values()
+    assert (row["phase"], row["start"], row["end"], row["days"]) == (
+        "Report month",
+        "2026-11-01",
+        "",
+        "30",
+    )
+    assert float(row["mean_intake_kcal"]) == pytest.approx(1900.0, abs=0.5)  # daily_rows
+    # energy balance (Hall 2008 method of the project): expenditure = intake + deficit
+    tdee = float(row["mean_intake_kcal"]) + float(row["realised_deficit_kcal"])
+    assert float(row["observed_tdee_kcal"]) == pytest.approx(tdee, abs=1.0)
+    assert row["expected_tdee_kcal"] == row["adaptation_kcal"] == ""
+    import pypdf
+
+    pdf = out / "2026-11" / "c001.pdf"
+    text = " ".join(" ".join(p.extract_text() for p in pypdf.PdfReader(pdf).pages).split())
+    assert "Report month (no phases recorded), since 01 Nov 2026" in text
+    assert "Adaptation Not estimated no baseline period to compare against" in text
+    assert (
+        "No phases are recorded for you, so this month is shown as one window. Phases in the "
+        "client book would add a window for each phase, the expected expenditure and "
+        "adaptation against a baseline period, and how long a deficit has run." in text
+    )
 
 
 def test_check_month_warns_about_a_month_without_weigh_ins(tmp_path: Path) -> None:

@@ -17,7 +17,9 @@ import numpy.typing as npt
 
 Severity = Literal["error", "warning", "note"]
 Sex = Literal["female", "male"]
-PhaseKind = Literal["deficit", "maintenance", "surplus", "break"]
+#: "month" is never read from a book: the analysis uses it for the report month as one window
+#: when a client has no phases.
+PhaseKind = Literal["deficit", "maintenance", "surplus", "break", "month"]
 PHASE_KINDS: tuple[PhaseKind, ...] = ("deficit", "maintenance", "surplus", "break")
 SKINFOLD_SITES: tuple[str, ...] = (
     "chest",

@@ -354,6 +354,8 @@ def _shade_phases(ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *,
     fig = ax.get_figure()
     axes_pt = ax.get_position().width * (fig.get_figwidth() if fig else 6.0) * PT
     for i, p in enumerate(phases):
+        if p.kind == "month":  # no phases recorded: the report month is no phase to mark
+            continue
         a, b = max(_day(p.start), x0), min(_day(p.window_end), x1)
         if b < a:
             continue
