@@ -85,9 +85,11 @@ def check_command(
         if as_json:
             click.echo(json.dumps({"unusable": exc.problem.as_dict()}, indent=2, sort_keys=True))
         else:
+            from reportgen.io.guard import escape_controls
+
             p = exc.problem
             where = f"{p.location}: " if p.file else ""
-            click.echo(f"reportgen check: {where}{p.message}", err=True)
+            click.echo(f"reportgen check: {escape_controls(where + p.message)}", err=True)
         sys.exit(EXIT_UNUSABLE)
 
     if as_json:
@@ -103,6 +105,7 @@ def _print_table(result: object) -> None:
     from rich.text import Text
 
     from reportgen.io.check import CheckResult
+    from reportgen.io.guard import escape_controls
 
     assert isinstance(result, CheckResult)
     console = Console(highlight=False, width=None if sys.stdout.isatty() else 160)
@@ -117,9 +120,9 @@ def _print_table(result: object) -> None:
             style = {"error": "bold red", "warning": "yellow"}.get(p.severity, "cyan")
             table.add_row(
                 Text(p.severity, style=style),
-                Text(p.client_id or "-"),
-                Text(p.location),
-                Text(p.message),
+                Text(escape_controls(p.client_id or "-")),
+                Text(escape_controls(p.location)),
+                Text(escape_controls(p.message)),
             )
         console.print(table)
     console.print(Text(result.summary()))
