@@ -22,9 +22,9 @@ import functools
 import inspect
 import multiprocessing
 import os
-import re
 import resource
 import sys
+import tempfile
 import time
 import traceback
 from collections import deque
@@ -38,6 +38,7 @@ from typing import TYPE_CHECKING
 from reportgen.analysis import analyse_client
 from reportgen.atomic import remove_temp_files, write_bytes_atomic
 from reportgen.config import Config
+from reportgen.io import guard
 from reportgen.io.book import read_client, read_roster
 from reportgen.io.model import Client, Phase, Problem
 from reportgen.manifest import (
@@ -48,6 +49,7 @@ from reportgen.manifest import (
     manifest_bytes,
     sha256_bytes,
 )
+from reportgen.month import InvalidMonth, ReportMonth
 from reportgen.report import (
     make_overview_line,
     render_client_report,
@@ -55,8 +57,9 @@ from reportgen.report import (
     render_practitioner_summary,
 )
 from reportgen.report.overview_model import OverviewLine
+from reportgen.report.wording import TemplateProblem
 from reportgen.results import ClientAnalysis
-from reportgen.summary import SummaryRow, month_bounds, summary_csv, summary_rows
+from reportgen.summary import SummaryRow, summary_csv, summary_rows
 
 if TYPE_CHECKING:  # the cluster extra is optional at run time
     from dask.typing import Key
@@ -64,7 +67,6 @@ if TYPE_CHECKING:  # the cluster extra is optional at run time
 
 OVERVIEW_NAME = "overview.pdf"
 SUMMARY_NAME = "summary.csv"
-_MONTH = re.compile(r"^\d{4}-(0[1-9]|1[0-2])$")
 DASK_CONNECT_TIMEOUT_S = 10.0
 
 
@@ -88,11 +90,12 @@ def usable_cores() -> int:
         return os.cpu_count() or 1
 
 
-def parse_month(month: str) -> dt.date:
-    """Last day of a ``YYYY-MM`` month; :class:`BatchUsageError` for anything else."""
-    if not _MONTH.match(month):
-        raise BatchUsageError(f"month {month!r} is not in the form YYYY-MM (e.g. 2026-11)")
-    return month_bounds(month)[1]
+def report_month(month: ReportMonth | str) -> ReportMonth:
+    """``month`` as a :class:`ReportMonth`; :class:`BatchUsageError` for anything else."""
+    try:
+        return ReportMonth(month)
+    except InvalidMonth as exc:
+        raise BatchUsageError(str(exc)) from None
 
 
 @dataclass(frozen=True)
@@ -101,7 +104,7 @@ class ClientTask:
 
     book_dir: str
     out_dir: str  # the month folder OUT/<YYYY-MM>
-    month: str
+    month: ReportMonth
     client: Client
     phases: tuple[Phase, ...]
     roster_problems: tuple[Problem, ...]
@@ -164,11 +167,18 @@ def _peak_rss_mb() -> float:
     return rss / (1024.0 * 1024.0 if sys.platform == "darwin" else 1024.0)  # pragma: no cover
 
 
-def _input_hashes(book: Path, used: tuple[str, ...], known: dict[str, str]) -> dict[str, str]:
-    """sha256 of the files a record was read from (book-level ones hashed once by the parent)."""
-    todo = tuple(rel for rel in used if rel not in known)
-    hashes = hash_inputs(book, todo)
-    hashes.update({rel: known[rel] for rel in used if rel in known})
+def _input_hashes(
+    book: Path, used: tuple[str, ...], known: dict[str, str], parsed: dict[str, str]
+) -> dict[str, str]:
+    """sha256 of the files a record was read from.
+
+    ``parsed`` holds the hashes of the exact bytes the readers parsed (see
+    :func:`reportgen.io.guard.recording`); book-level files come from ``known`` (the
+    parent's reading).  Only a file neither covers is hashed from disk.
+    """
+    have = {**parsed, **known}
+    hashes = hash_inputs(book, tuple(rel for rel in used if rel not in have))
+    hashes.update({rel: have[rel] for rel in used if rel in have})
     return dict(sorted(hashes.items()))
 
 
@@ -219,15 +229,17 @@ def process_client(task: ClientTask) -> ClientOutcome:
 
     try:
         t0 = time.perf_counter()
-        record = read_client(
-            book,
-            client,
-            task.phases,
-            month_bounds(task.month)[1],
-            today=task.today,
-            roster_problems=task.roster_problems,
-        )
-        inputs = _input_hashes(book, record.source_files, task.roster_inputs)
+        with guard.recording() as parsed:  # hashes of the very bytes that are parsed
+            record = read_client(
+                book,
+                client,
+                task.phases,
+                task.month.last_day,
+                today=task.today,
+                roster_problems=task.roster_problems,
+                date_order=task.config.book.date_order_setting(),
+            )
+        inputs = _input_hashes(book, record.source_files, task.roster_inputs, parsed)
         warnings = tuple(p.as_dict() for p in record.warnings)
         t1 = time.perf_counter()
         timings["read"] = t1 - t0
@@ -255,6 +267,8 @@ def process_client(task: ClientTask) -> ClientOutcome:
             files[kind] = {"path": name, "sha256": sha256_bytes(data)}
         timings["write"] = time.perf_counter() - t4
         timings["cpu"] = time.process_time() - cpu0  # CPU seconds: comparable under load
+    except TemplateProblem as exc:
+        return failed((str(exc),))
     except Exception as exc:
         tb = traceback.format_exc()
         first = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
@@ -413,6 +427,13 @@ def _pool(tasks: list[ClientTask], workers: int) -> Iterator[ClientOutcome]:
             yield _isolated(task)
 
 
+def _client_files(task: ClientTask) -> list[str]:
+    """The client's own input files that exist, to name in a message about a crash."""
+    cid = task.client.client_id
+    candidates = (f"logs/{cid}.csv", f"logs/{cid}.xlsx", f"skinfolds/{cid}.csv")
+    return [rel for rel in candidates if os.path.lexists(Path(task.book_dir) / rel)]
+
+
 def _isolated(task: ClientTask) -> ClientOutcome:
     """Run one task alone in a fresh one-worker pool (after a pool broke)."""
     with ProcessPoolExecutor(
@@ -422,8 +443,11 @@ def _isolated(task: ClientTask) -> ClientOutcome:
         try:
             return fut.result()
         except BrokenProcessPool:
+            files = _client_files(task)
             return _lost_outcome(
-                task, "the worker process stopped unexpectedly while making this client's reports"
+                task,
+                "the worker process stopped unexpectedly while making this client's reports"
+                + (f" (from {', '.join(files)})" if files else ""),
             )
         except Exception as exc:
             return _lost_outcome(
@@ -476,7 +500,7 @@ def _dask(tasks: list[ClientTask], dask: DaskClient) -> Iterator[ClientOutcome]:
 
 @dataclass
 class BatchResult:
-    month: str
+    month: ReportMonth
     month_dir: Path
     outcomes: list[ClientOutcome]  # sorted by client id
     files: dict[str, str]  # month-level file -> sha256
@@ -515,6 +539,38 @@ def _folder_lock(folder: Path) -> Iterator[None]:
         os.close(fd)
 
 
+def prepare_month_dir(out_dir: Path, month: str) -> Path:
+    """Create (or reuse) ``out_dir/<month>`` and make sure the batch can write there.
+
+    Every way it cannot be used (the output folder is a file or sits under one, is
+    read-only, or the month folder is a symbolic link that would send files elsewhere) is a
+    :class:`BatchUsageError` with one line saying what to do.
+    """
+    month_dir = out_dir / month
+    if month_dir.is_symlink():
+        raise BatchUsageError(
+            f"{month_dir} is a symbolic link; reportgen writes only inside the output folder "
+            "itself. Remove the link or choose another --out"
+        )
+    for parent in (out_dir, *out_dir.parents):
+        if parent.exists():
+            if not parent.is_dir():
+                raise BatchUsageError(
+                    f"cannot use --out {out_dir}: {parent} is a file, not a folder"
+                )
+            break
+    try:
+        month_dir.mkdir(parents=True, exist_ok=True)
+        if not month_dir.is_dir():
+            raise NotADirectoryError(f"{month_dir} is not a folder")
+        with tempfile.NamedTemporaryFile(dir=month_dir, prefix=".reportgen-probe-"):
+            pass
+    except OSError as exc:
+        reason = exc.strerror or str(exc)
+        raise BatchUsageError(f"cannot write to the output folder {month_dir} ({reason})") from None
+    return month_dir
+
+
 def _select_clients(clients: tuple[Client, ...], wanted: Iterable[str] | None) -> list[Client]:
     chosen = sorted(clients, key=lambda c: c.client_id)
     if wanted is None:
@@ -530,7 +586,7 @@ def _select_clients(clients: tuple[Client, ...], wanted: Iterable[str] | None) -
 
 def run_batch(
     book_dir: Path,
-    month: str,
+    month: ReportMonth | str,
     out_dir: Path,
     *,
     config: Config | None = None,
@@ -548,25 +604,25 @@ def run_batch(
     asked; everything that goes wrong for one client ends up in that client's
     :class:`ClientOutcome` instead.
     """
-    parse_month(month)
+    month = report_month(month)
     config = config if config is not None else Config()
     book_dir = Path(book_dir).resolve()
     workers = workers if workers is not None else usable_cores()
     if workers < 1:
         raise BatchUsageError("--workers must be at least 1")
 
-    roster = read_roster(book_dir)
+    with guard.recording() as parsed:
+        roster = read_roster(book_dir)
     clients = _select_clients(roster.clients, client_ids)
     roster_ids = {c.client_id for c in roster.clients}
     book_problems = [
         p.as_dict() for p in roster.problems if p.client_id is None or p.client_id not in roster_ids
     ]
-    roster_inputs = dict(sorted(hash_inputs(book_dir, roster.source_files).items()))
+    roster_inputs = _input_hashes(book_dir, roster.source_files, {}, parsed)
 
     with contextlib.ExitStack() as stack:
         dask = stack.enter_context(connect_scheduler(scheduler)) if scheduler else None
-        month_dir = Path(out_dir) / month
-        month_dir.mkdir(parents=True, exist_ok=True)
+        month_dir = prepare_month_dir(Path(out_dir), month)
         stack.enter_context(_folder_lock(month_dir))
         remove_temp_files(month_dir)
         # The manifest is the month's seal: remove it until this run has finished.
@@ -642,6 +698,7 @@ def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> N
         book=book_dir,
         config_file=config_file,
         config=config.as_dict(),
+        config_sha256=config.source_sha256,
         files=result.files,
         clients={o.client_id: o.manifest_entry() for o in result.outcomes},
         book_problems=result.book_problems,

@@ -8,13 +8,15 @@ message that names the key, so a typo never silently falls back to a default.
 from __future__ import annotations
 
 import dataclasses
+import hashlib
 import json
+import math
 import re
 import textwrap
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, get_args, get_origin, get_type_hints
+from typing import Any, Literal, get_args, get_origin, get_type_hints
 
 PAPER_SIZES = ("A4", "letter")
 WEIGHT_UNITS = ("kg", "lb")
@@ -35,6 +37,7 @@ BODYFAT_EQUATIONS = (
 )
 DENSITY_CONVERSIONS = ("siri", "brozek")
 MAIL_SECURITY = ("starttls", "tls", "none")
+DATE_ORDERS = ("auto", "day-first", "month-first")
 
 
 class ConfigError(ValueError):
@@ -72,6 +75,19 @@ class AnalysisSettings:
 
 
 @dataclass(frozen=True)
+class BookSettings:
+    date_order: str = "auto"  # for logs whose dates could be day-first or month-first
+
+    def date_order_setting(self) -> Literal["day-first", "month-first"] | None:
+        """The order for the readers; None for "auto" (decide from the values or refuse)."""
+        if self.date_order == "day-first":
+            return "day-first"
+        if self.date_order == "month-first":
+            return "month-first"
+        return None
+
+
+@dataclass(frozen=True)
 class MailSettings:
     host: str = "localhost"
     port: int = 587
@@ -94,12 +110,16 @@ class Config:
     practice: PracticeSettings = field(default_factory=PracticeSettings)
     report: ReportSettings = field(default_factory=ReportSettings)
     analysis: AnalysisSettings = field(default_factory=AnalysisSettings)
+    book: BookSettings = field(default_factory=BookSettings)
     mail: MailSettings = field(default_factory=MailSettings)
     source: str | None = None  # the file it was read from, if any
+    # sha256 of the bytes read from that file (bookkeeping, not a setting: not compared)
+    source_sha256: str | None = field(default=None, compare=False)
 
     def as_dict(self) -> dict[str, Any]:
         d = dataclasses.asdict(self)
         d.pop("source")
+        d.pop("source_sha256")
         return d
 
     def resolve_path(self, value: str) -> Path | None:
@@ -116,6 +136,7 @@ _TABLES = {
     "practice": PracticeSettings,
     "report": ReportSettings,
     "analysis": AnalysisSettings,
+    "book": BookSettings,
     "mail": MailSettings,
 }
 _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
@@ -125,6 +146,7 @@ _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
     ("analysis", "bodyfat_equation"): BODYFAT_EQUATIONS,
     ("analysis", "density_conversion"): DENSITY_CONVERSIONS,
     ("mail", "security"): MAIL_SECURITY,
+    ("book", "date_order"): DATE_ORDERS,
 }
 _COLOUR = re.compile(r"^#[0-9A-Fa-f]{6}$")
 
@@ -148,6 +170,8 @@ def _coerce(table: str, key: str, value: Any, hint: Any) -> Any:
     if hint is float:
         if isinstance(value, bool) or not isinstance(value, int | float):
             raise ConfigError(f"{where} must be a number, got {value!r}")
+        if not math.isfinite(value):  # TOML allows nan and inf
+            raise ConfigError(f"{where} must be a finite number, got {value!r}")
         return float(value)
     if hint is str:
         if not isinstance(value, str):
@@ -248,11 +272,15 @@ def _logo_problem(cfg: Config) -> str | None:
     where = f"[practice] logo = {cfg.practice.logo!r}"
     if path.suffix.lower() not in (".png", ".svg"):
         return f"{where} must be a PNG or SVG file (.png or .svg)"
-    try:
-        head = path.read_bytes()[:4096]
-    except OSError:
+    from reportgen.io import guard
+
+    if guard.file_state(path) == "absent":
         rel = " (relative paths are taken from the configuration file's folder)"
         return f"{where}: no such file at {path}{rel if cfg.source else ''}"
+    try:  # type and size first: /dev/zero or a FIFO must neither hang nor fill memory
+        head = guard.read_input(path, str(path), guard.MAX_LOGO_BYTES, "logo image")[:4096]
+    except guard.InputRefused as exc:
+        return f"{where}: {exc.message}"
     if path.suffix.lower() == ".png" and not head.startswith(_PNG_MAGIC):
         return f"{where}: {path.name} is not a PNG image (save it again as PNG)"
     if path.suffix.lower() == ".svg" and b"<svg" not in head:
@@ -296,6 +324,10 @@ def _check(cfg: Config) -> list[str]:
                 "[analysis] target_rates_pct_per_week values must be above 0 and at most 1.5"
             )
             break
+    for table in _TABLES:
+        for key, value in dataclasses.asdict(getattr(cfg, table)).items():
+            if isinstance(value, str) and any(ord(c) < 32 or 0x7F <= ord(c) <= 0x9F for c in value):
+                out.append(f"[{table}] {key} holds a control character (line break, tab...)")
     m = cfg.mail
     if not 0 < m.port < 65536:
         out.append(f"[mail] port = {m.port} is not a port number")
@@ -327,7 +359,8 @@ def load_config(path: str | Path | None) -> Config:
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
         raise ConfigError(f"{p}: not valid TOML ({exc})") from exc
     try:
-        return config_from_dict(data, source=str(p))
+        cfg = config_from_dict(data, source=str(p))
+        return dataclasses.replace(cfg, source_sha256=hashlib.sha256(raw).hexdigest())
     except ConfigError as exc:
         raise ConfigError("\n".join(f"{p}: {line}" for line in str(exc).splitlines())) from None
 
@@ -348,6 +381,7 @@ SECTION_DOCS: dict[str, str] = {
     "practice": "Your practice, as printed on every report and summary.",
     "report": "How the client reports look.",
     "analysis": "Methods and assumptions of the analysis.",
+    "book": "How the client book is read.",
     "mail": "How `reportgen send` delivers the reports by e-mail.",
 }
 
@@ -388,6 +422,12 @@ SETTING_DOCS: dict[str, dict[str, str]] = {
         "for expected expenditure only when a client has no usable maintenance baseline.",
         "target_rates_pct_per_week": "Weekly loss rates (% of body weight per week, each above "
         "0 and at most 1.5) for which the report shows the intake needed.",
+    },
+    "book": {
+        "date_order": "How dates such as 03/04/2026 are read when no date in a log settles "
+        "it (no day above 12): auto refuses such a log with a message; day-first reads "
+        "03/04/2026 as 3 April, month-first as March 4. A log whose dates settle it is "
+        "always read that way.",
     },
     "mail": {
         "host": "SMTP server that sends the mail.",

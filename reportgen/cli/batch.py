@@ -8,6 +8,9 @@ from typing import TYPE_CHECKING
 
 import click
 
+from reportgen.cli.params import REPORT_MONTH
+from reportgen.month import ReportMonth
+
 if TYPE_CHECKING:
     from reportgen.batch import BatchResult
 
@@ -26,6 +29,9 @@ def _split_ids(value: str | None) -> list[str] | None:
 def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     from rich.console import Console
     from rich.table import Table
+    from rich.text import Text
+
+    from reportgen.io.guard import escape_controls as esc
 
     out = Console(highlight=False)
     err = Console(stderr=True, highlight=False)
@@ -37,13 +43,13 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
         for o in failed:
             if o.traceback:
                 err.print(f"[bold]{o.client_id}[/bold]: traceback", markup=True)
-                err.print(o.traceback, markup=False, end="")
+                err.print(esc(o.traceback, keep_newlines=True), markup=False, end="")
 
     if quiet:
         for o in failed:
-            err.print(f"{o.client_id}: {o.reason}", markup=False)
+            err.print(esc(f"{o.client_id}: {o.reason}"), markup=False)
         for e in result.errors:
-            err.print(e, markup=False)
+            err.print(esc(e), markup=False)
         return
 
     table = Table(title=f"reportgen batch {result.month}", title_justify="left")
@@ -65,18 +71,18 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
             "(manifest.json book_problems; `reportgen check` shows them)",
         )
     for o in failed:
-        table.add_row("", o.client_id, o.reason)
+        table.add_row("", Text(esc(o.client_id)), Text(esc(o.reason)))
     out.print(table)
     for e in result.errors:
-        err.print(e, markup=False)
-    out.print(f"Files are in {result.month_dir}", markup=False)
+        err.print(esc(e), markup=False)
+    out.print(esc(f"Files are in {result.month_dir}"), markup=False)
     if failed and not verbose and any(o.traceback for o in failed):
         out.print("Run again with --verbose to see the tracebacks of unexpected errors.")
 
 
 @click.command("batch")
 @click.argument("book", type=click.Path(file_okay=False, path_type=Path))
-@click.option("--month", required=True, metavar="YYYY-MM", help="The report month, e.g. 2026-11.")
+@click.option("--month", required=True, type=REPORT_MONTH, help="The report month, e.g. 2026-11.")
 @click.option(
     "--out",
     "out_dir",
@@ -114,7 +120,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
 )
 def batch_command(
     book: Path,
-    month: str,
+    month: ReportMonth,
     out_dir: Path,
     workers: int | None,
     clients: str | None,
@@ -128,14 +134,10 @@ def batch_command(
     Exit code 0 when every client succeeded, 1 when some failed (the others
     are still written), 2 for a usage error or an unreadable book.
     """
-    from reportgen.batch import BatchUsageError, parse_month, run_batch
+    from reportgen.batch import BatchUsageError, run_batch
     from reportgen.config import ConfigError, load_config
     from reportgen.io.model import InputError
 
-    try:
-        parse_month(month)
-    except BatchUsageError as exc:
-        raise click.BadParameter(str(exc), param_hint="--month") from None
     ids = _split_ids(clients)
     try:
         config = load_config(config_file)
@@ -183,10 +185,14 @@ def batch_command(
             on_outcome=on_outcome,
         )
     except InputError as exc:
-        click.echo(f"Error: the book cannot be read: {exc}", err=True)
+        from reportgen.io.guard import escape_controls
+
+        click.echo(f"Error: the book cannot be read: {escape_controls(exc)}", err=True)
         click.get_current_context().exit(2)
     except BatchUsageError as exc:
-        raise click.UsageError(str(exc)) from None
+        from reportgen.io.guard import escape_controls
+
+        raise click.UsageError(escape_controls(exc)) from None
     finally:
         if progress is not None:
             progress.stop()

@@ -15,6 +15,8 @@ import jinja2
 from reportgen.atomic import write_bytes_atomic
 from reportgen.config import Config
 from reportgen.delivery.ledger import (
+    LEDGER_NAME,
+    LOCK_NAME,
     Ledger,
     LedgerBusyError,
     read_ledger,
@@ -23,6 +25,7 @@ from reportgen.delivery.ledger import (
 )
 from reportgen.delivery.messages import (
     FILE_POLICY,
+    MailTemplateError,
     Sender,
     attachment_name,
     build_message,
@@ -50,6 +53,7 @@ from reportgen.delivery.smtp import (
     SendResult,
     SMTPConnection,
 )
+from reportgen.month import ReportMonth
 
 OUTBOX = "outbox"
 PASSWORD_ENV = "REPORTGEN_SMTP_PASSWORD"
@@ -73,8 +77,16 @@ class SendReport:
         return 0 if all(r.done for r in self.rows) else 1
 
 
-class _FileChanged(Exception):
+class _Skip(Exception):
+    """This one message cannot be made; the others go on."""
+
+    result = "skipped-invalid-address"
+
+
+class _FileChanged(_Skip):
     """A report file no longer matches the manifest when it is read for attaching."""
+
+    result = "skipped-modified-file"
 
 
 def send_month(
@@ -104,7 +116,10 @@ def send_month(
     except ValueError as exc:
         raise DeliveryError(str(exc)) from None
     env = mail_environment(config)
-    missing = templates_available(env)
+    try:
+        missing = templates_available(env)
+    except MailTemplateError as exc:
+        raise DeliveryError(str(exc)) from None
     if missing:
         raise DeliveryError(f"mail templates not found: {', '.join(missing)}")
     server = server_settings(config, options)
@@ -132,6 +147,11 @@ def send_month(
         for row in skipped:
             emit(row)
         outbox = month_dir / OUTBOX
+        if outbox.is_symlink() or (outbox.exists() and not outbox.is_dir()):
+            raise DeliveryError(
+                f"{outbox} is a symbolic link or not a folder; the dry run writes only inside "
+                f"{month_dir}. Remove it and run again"
+            )
         outbox.mkdir(exist_ok=True)
         for old in outbox.glob("*.eml"):  # the outbox shows what the next run would send
             old.unlink()
@@ -139,14 +159,20 @@ def send_month(
             cid = item.client.client_id
             try:
                 msg, _ = _message(item, config, env, sender, manifest.month)
-            except _FileChanged as exc:
-                emit(Row(cid, item.kind, item.address, "skipped-modified-file", str(exc)))
+            except _Skip as exc:
+                emit(Row(cid, item.kind, item.address, exc.result, str(exc)))
                 continue
             name = f"{cid}-{item.kind}.eml"
             write_bytes_atomic(outbox / name, msg.as_bytes(policy=FILE_POLICY))
             emit(Row(cid, item.kind, item.address, "written", f"{OUTBOX}/{name}"))
         return report
 
+    for name in (LEDGER_NAME, LOCK_NAME):
+        if (month_dir / name).is_symlink():
+            raise DeliveryError(
+                f"{month_dir / name} is a symbolic link; the ledger is kept only inside "
+                f"{month_dir}. Remove the link and run again"
+            )
     try:
         ledger = Ledger(month_dir)
     except LedgerBusyError as exc:
@@ -194,7 +220,7 @@ def _log_skip(ledger: Ledger, month: str, row: Row, sha256: str | None = None) -
 
 
 def _message(
-    item: Planned, config: Config, env: jinja2.Environment, sender: Sender, month: str
+    item: Planned, config: Config, env: jinja2.Environment, sender: Sender, month: ReportMonth
 ) -> tuple[EmailMessage, bytes]:
     """The message for one planned delivery, and the attached bytes."""
     cid = item.client.client_id
@@ -205,25 +231,31 @@ def _message(
     if item.pdf_password is not None:
         pdf = encrypt_pdf(pdf, item.pdf_password)
     filename = attachment_name(item.kind, month, cid)
-    content = render_content(
-        env,
-        item.kind,
-        config=config,
-        client_name=item.name,
-        client_id=cid,
-        month=month,
-        filename=filename,
-        encrypted=item.pdf_password is not None,
-    )
-    msg = build_message(
-        sender=sender,
-        to_address=item.address,
-        to_name=item.name if item.kind == "report" else "",
-        content=content,
-        pdf=pdf,
-        filename=filename,
-        message_id=item.message_id,
-    )
+    try:
+        content = render_content(
+            env,
+            item.kind,
+            config=config,
+            client_name=item.name,
+            client_id=cid,
+            month=month,
+            filename=filename,
+            encrypted=item.pdf_password is not None,
+        )
+    except MailTemplateError as exc:  # the same template for everyone: stop the run
+        raise DeliveryError(str(exc)) from None
+    try:
+        msg = build_message(
+            sender=sender,
+            to_address=item.address,
+            to_name=item.name if item.kind == "report" else "",
+            content=content,
+            pdf=pdf,
+            filename=filename,
+            message_id=item.message_id,
+        )
+    except ValueError as exc:  # a header the email package refuses (CR/LF and the like)
+        raise _Skip(f"the message headers cannot be made: {exc}") from None
     return msg, pdf
 
 
@@ -235,7 +267,7 @@ def _send_all(
     config: Config,
     env: jinja2.Environment,
     sender: Sender,
-    month: str,
+    month: ReportMonth,
     emit: Callable[[Row], None],
 ) -> str | None:
     """Send each planned message with retries; returns the reason if the run had to stop."""
@@ -251,8 +283,8 @@ def _send_all(
             return stop_reason
         try:
             msg, pdf = _message(item, config, env, sender, month)
-        except _FileChanged as exc:
-            row = Row(cid, item.kind, item.address, "skipped-modified-file", str(exc))
+        except _Skip as exc:
+            row = Row(cid, item.kind, item.address, exc.result, str(exc))
             _log_skip(ledger, month, row, item.sha256)
             emit(row)
             continue

@@ -7,13 +7,13 @@ writes to, moves or locks an input file.
 
 from __future__ import annotations
 
-import calendar
 import datetime as dt
 from collections.abc import Iterable
 from pathlib import Path
 
-from reportgen.io import limits
+from reportgen.io import guard, limits
 from reportgen.io.daily import parse_daily
+from reportgen.io.dates import DateOrder
 from reportgen.io.model import (
     Client,
     ClientRecord,
@@ -29,22 +29,40 @@ from reportgen.io.roster import parse_roster
 from reportgen.io.skinfolds import parse_skinfolds
 from reportgen.io.tables import Table, build_table, read_csv_table, read_xlsx_sheets
 
-ROSTER_FILES = ("clients.csv", "clients.xlsx")
+#: Workbook types calamine reads (no macro ever runs: only cell values are read).
+WORKBOOK_TYPES = (".xlsx", ".xlsm", ".xls", ".ods")
+#: File types of the roster and daily logs, in the order they are looked for.
+TABLE_TYPES = (".csv", *WORKBOOK_TYPES)
+ROSTER_FILES = tuple(f"clients{ext}" for ext in TABLE_TYPES)
 PHASES_FILE = "phases.csv"
 XLSX_SHEETS = ("daily", "skinfolds", "phases")
+_TYPES_TEXT = ".csv, .xlsx, .xlsm, .xls or .ods"
 
 
-def month_end_of(month: str) -> dt.date:
-    """Last day of ``"YYYY-MM"``."""
-    try:
-        year, mon = (int(x) for x in month.split("-"))
-        return dt.date(year, mon, calendar.monthrange(year, mon)[1])
-    except (ValueError, calendar.IllegalMonthError) as exc:
-        raise ValueError(f'month "{month}" is not of the form YYYY-MM (e.g. 2026-11)') from exc
+def _unsupported(book: Path, folder: str, stem: str) -> str | None:
+    """A file named like the wanted one but of a type reportgen does not read, if any."""
+    base = book / folder if folder else book
+    if not base.is_dir():
+        return None
+    for path in sorted(base.iterdir()):
+        if path.stem == stem and path.suffix.lower() not in TABLE_TYPES and path.is_file():
+            return f"{folder}/{path.name}" if folder else path.name
+    return None
 
 
 def _roster_file(book: Path) -> str:
     present = [f for f in ROSTER_FILES if (book / f).is_file()]
+    other = None if present else _unsupported(book, "", "clients")
+    if other is not None:
+        raise InputError(
+            Problem(
+                "error",
+                "unsupported-file",
+                f"{other} is a file type reportgen does not read; save the roster as "
+                f"clients with one of {_TYPES_TEXT}",
+                file=other,
+            )
+        )
     if not present:
         raise InputError(
             Problem(
@@ -58,8 +76,8 @@ def _roster_file(book: Path) -> str:
             Problem(
                 "error",
                 "two-sources",
-                "the book has both clients.csv and clients.xlsx; keep one",
-                file="clients.xlsx",
+                f"the book has both {' and '.join(present)}; keep one",
+                file=present[1],
             )
         )
     return present[0]
@@ -68,16 +86,15 @@ def _roster_file(book: Path) -> str:
 def _roster_table(book: Path, rel: str) -> tuple[Table | None, list[Problem]]:
     if rel.endswith(".csv"):
         return read_csv_table(book, rel)
-    sheets, names, problems = read_xlsx_sheets(book, rel, ("clients",))
+    # no sheet called "clients": the first sheet is the roster
+    sheets, _, problems = read_xlsx_sheets(book, rel, ("clients",), first_sheet=True)
     if sheets is None:
         return None, problems
-    if "clients" in sheets:
-        name, rows = sheets["clients"]
-    else:  # no sheet called "clients": the first sheet is the roster
-        from python_calamine import CalamineWorkbook
-
-        with CalamineWorkbook.from_path(str(book / rel)) as wb:
-            name, rows = names[0], wb.get_sheet_by_index(0).to_python(skip_empty_area=False)
+    if not sheets:
+        return None, [
+            Problem("error", "empty-file", f"{rel} has no sheets; it needs a clients sheet", rel)
+        ]
+    name, rows = sheets.get("clients") or sheets[""]
     table, more = build_table(rel, name, rows, None)
     return table, problems + more
 
@@ -94,7 +111,7 @@ def read_roster(book_dir: Path, today: dt.date | None = None) -> Roster:
         raise InputError(Problem("error", "missing-file", f"{book} is not a folder"))
     rel = _roster_file(book)
     table, problems = _roster_table(book, rel)
-    fatal = [p for p in problems if p.code in ("unreadable-file", "empty-file")]
+    fatal = [p for p in problems if p.code in ("unreadable-file", "empty-file", "file-too-large")]
     if table is None or fatal:
         raise InputError(fatal[0] if fatal else problems[0])
     clients, more = parse_roster(table, today)
@@ -103,7 +120,10 @@ def read_roster(book_dir: Path, today: dt.date | None = None) -> Roster:
         raise InputError(next(p for p in more if p.code == "missing-column"))
     phases: dict[str, tuple[Phase, ...]] = {}
     sources = [rel]
-    if (book / PHASES_FILE).is_file():
+    state = guard.file_state(book / PHASES_FILE)
+    if state not in ("absent", "regular"):  # never opened: a FIFO would block
+        problems += [_skipped(PHASES_FILE, state, c.client_id, "the phases") for c in clients]
+    elif state == "regular":
         sources.append(PHASES_FILE)
         ptable, pprobs = read_csv_table(book, PHASES_FILE)
         problems += pprobs
@@ -138,6 +158,18 @@ def read_roster(book_dir: Path, today: dt.date | None = None) -> Roster:
     )
 
 
+def _skipped(rel: str, state: str, client_id: str, what: str) -> Problem:
+    """A warning for a folder, FIFO, device or broken link where an optional file belongs."""
+    return Problem(
+        "warning",
+        "skipped-file",
+        f"{rel} is {state}, not a file reportgen can read; this client's report is made "
+        f"without {what} in it. Put the file there, or remove what is in its place",
+        file=rel,
+        client_id=client_id,
+    )
+
+
 def _client_problem(code: str, message: str, client: Client, file: str | None = None) -> Problem:
     return Problem("error", code, message, file=file, client_id=client.client_id)
 
@@ -150,13 +182,15 @@ def read_client(
     today: dt.date | None = None,
     *,
     roster_problems: Iterable[Problem] = (),
+    date_order: DateOrder | None = None,
 ) -> ClientRecord:
     """Read and validate one client's files (never raises for bad data).
 
     Data after ``month_end`` is cut off silently; data after ``today`` is ignored with a
     ``future-date`` warning.  ``roster_problems`` may be all of ``Roster.problems``: those
     with this client's id are added to the record, so roster or phase errors make the record
-    not ``ok``.
+    not ``ok``.  ``date_order`` is the ``[book] date_order`` setting (used only for a log
+    whose dates could be read either way).
     """
     book = Path(book_dir)
     today = today or dt.date.today()
@@ -173,30 +207,55 @@ def read_client(
     skinfolds: tuple[SkinfoldSession, ...] = ()
     sheet_phases: list[tuple[int, Phase]] = []
     sheet_file = None
-    csv_log, xlsx_log = f"logs/{cid}.csv", f"logs/{cid}.xlsx"
-    has_csv, has_xlsx = (book / csv_log).is_file(), (book / xlsx_log).is_file()
+    candidates = [f"logs/{cid}{ext}" for ext in TABLE_TYPES]
+    states = {rel: guard.file_state(book / rel) for rel in candidates}
+    logs_found = [rel for rel in candidates if states[rel] == "regular"]
+    csv_log = f"logs/{cid}.csv"
+    xlsx_log = next((f for f in logs_found if not f.endswith(".csv")), f"logs/{cid}.xlsx")
+    for rel, state in states.items():
+        if state not in ("absent", "regular") and not logs_found:
+            problems.append(
+                _client_problem(
+                    "unreadable-file",
+                    f"{rel} is {state}, not a file reportgen can read; put the daily log there",
+                    client,
+                    rel,
+                )
+            )
     daily_table: Table | None = None
     skin_tables: list[Table] = []
-    if has_csv and has_xlsx:
+    other = None if logs_found else _unsupported(book, "logs", cid)
+    if len(logs_found) > 1:
         problems.append(
             _client_problem(
                 "two-sources",
-                f"both {csv_log} and {xlsx_log} exist; keep one daily log",
+                f"both {' and '.join(logs_found)} exist; keep one daily log",
                 client,
-                xlsx_log,
+                logs_found[1],
             )
         )
-    elif not has_csv and not has_xlsx:
+    elif other is not None:
         problems.append(
             _client_problem(
-                "missing-file",
-                f"no daily log: expected {csv_log} or {xlsx_log} (file names must match the "
-                "client_id exactly)",
+                "unsupported-file",
+                f"{other} is a file type reportgen does not read; save the daily log as "
+                f"{cid} with one of {_TYPES_TEXT}",
                 client,
-                csv_log,
+                other,
             )
         )
-    elif has_csv:
+    elif not logs_found:
+        if set(states.values()) == {"absent"}:  # otherwise reported above
+            problems.append(
+                _client_problem(
+                    "missing-file",
+                    f"no daily log: expected {csv_log} or {xlsx_log} (file names must match "
+                    "the client_id exactly)",
+                    client,
+                    csv_log,
+                )
+            )
+    elif logs_found[0] == csv_log:
         sources.append(csv_log)
         daily_table, more = read_csv_table(book, csv_log, cid)
         problems += more
@@ -232,12 +291,15 @@ def read_client(
                     sheet_phases = by_client.get(cid, [])
                     sheet_file = xlsx_log
     if daily_table is not None:
-        result = parse_daily(daily_table, cid, month_end, today)
+        result = parse_daily(daily_table, cid, month_end, today, date_order)
         log, outliers = result.log, result.outliers
         problems += result.problems
 
     skin_csv = f"skinfolds/{cid}.csv"
-    if (book / skin_csv).is_file():
+    skin_state = guard.file_state(book / skin_csv)
+    if skin_state not in ("absent", "regular"):
+        problems.append(_skipped(skin_csv, skin_state, cid, "the skinfolds"))
+    if skin_state == "regular":
         sources.append(skin_csv)
         table, more = read_csv_table(book, skin_csv, cid)
         problems += more

@@ -13,6 +13,7 @@ an ``outlier`` warning even when it is also outside :data:`WEIGHT_KG`
 
 from __future__ import annotations
 
+import datetime as dt
 from typing import Final
 
 #: [kg] Below 25 kg no adolescent or adult is plausible; above 350 kg is beyond ordinary
@@ -33,6 +34,9 @@ STEPS: Final = (0.0, 100000.0)
 RATING: Final = (1.0, 10.0)
 #: [h/day] A day has 24 hours.
 SLEEP_H: Final = (0.0, 24.0)
+#: [%] A scale's body-fat reading: below 2 % or above 75 % no adult or adolescent is
+#: plausible (essential fat alone is about 2-5 % in men, from memory).
+BODY_FAT_PCT: Final = (2.0, 75.0)
 #: [years] Oldest plausible age at the report month (oldest documented people are ~120).
 MAX_AGE_YEARS: Final = 120
 #: [years] Under this age at the end of the report month a client is a minor (special care).
@@ -41,3 +45,6 @@ ADULT_AGE_YEARS: Final = 18
 MAX_GAP_DAYS: Final = 7
 #: Longest client id (input contract).
 MAX_CLIENT_ID_LEN: Final = 40
+#: Dates a phase may start or end on: no client data predates 1900, and a plan running past
+#: 2199 is a typo (year 9999 also leaves no room for date arithmetic).  Common practice.
+DATE_RANGE: Final = (dt.date(1900, 1, 1), dt.date(2199, 12, 31))

@@ -85,13 +85,65 @@ def _chart_font_file(
     """
     src = font_path()
     recipe = f"v2:{src}:{src.stat().st_size}:{FONT_TABLES_DROPPED}:{family}:{ranges}"
-    stamp = hashlib.sha256(recipe.encode())
+    stamp = hashlib.sha256(recipe.encode()).hexdigest()[:16]
     if folder is None:
-        uid = os.getuid() if hasattr(os, "getuid") else 0
-        folder = Path(tempfile.gettempdir()) / f"reportgen-{uid}"
-    target = folder / f"chart-font-{stamp.hexdigest()[:16]}.ttf"
-    if target.is_file():
-        return target
+        folder = font_cache_folder()
+    # The file name carries the hash of its own bytes: a copy is loaded only if it still
+    # has them (a damaged or replaced file is rebuilt, never handed to the font loader).
+    for found in sorted(folder.glob(f"chart-font-{stamp}-*.ttf")):
+        if _verified(found):
+            return found
+    data = _build_chart_font(src, family, ranges)
+    target = folder / f"chart-font-{stamp}-{hashlib.sha256(data).hexdigest()[:32]}.ttf"
+    folder.mkdir(parents=True, exist_ok=True, mode=0o700)
+    fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
+    with os.fdopen(fd, "wb") as fh:
+        fh.write(data)
+    os.replace(tmp, target)  # atomic: concurrent workers never see half a file
+    return target
+
+
+def _verified(path: Path) -> bool:
+    """A regular file (not a link) of ours whose sha256 matches the one in its name."""
+    import stat
+
+    try:
+        st = path.lstat()
+        if not stat.S_ISREG(st.st_mode) or (hasattr(os, "getuid") and st.st_uid != os.getuid()):
+            return False
+        want = path.stem.rsplit("-", 1)[-1]
+        return hashlib.sha256(path.read_bytes()).hexdigest()[: len(want)] == want
+    except OSError:
+        return False
+
+
+@cache
+def font_cache_folder() -> Path:
+    """A per-user folder for the chart fonts, private to this user (mode 0700).
+
+    The platform's cache folder (``$XDG_CACHE_HOME`` or ``~/.cache``, under ``reportgen``),
+    never the shared temporary folder, where another user could plant a file under a name
+    that is easy to predict.  If that folder cannot be made private, a fresh private
+    temporary folder is used for this process.
+    """
+    import stat
+
+    base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
+    folder = Path(base) / "reportgen" / "fonts"
+    try:
+        folder.mkdir(parents=True, exist_ok=True, mode=0o700)
+        st = folder.lstat()
+        uid = os.getuid() if hasattr(os, "getuid") else st.st_uid
+        if not stat.S_ISDIR(st.st_mode) or st.st_uid != uid:
+            raise PermissionError(f"{folder} is not a folder of this user")
+        if st.st_mode & 0o077:
+            folder.chmod(0o700)
+        return folder
+    except OSError:
+        return Path(tempfile.mkdtemp(prefix="reportgen-fonts-"))  # mode 0700, unpredictable
+
+
+def _build_chart_font(src: Path, family: str, ranges: tuple[tuple[int, int], ...]) -> bytes:
     from fontTools import subset
 
     options = subset.Options()
@@ -112,12 +164,9 @@ def _chart_font_file(
     # keep DejaVu's own head.modified: a save-time timestamp would make the embedded subsets,
     # and so every PDF, differ between machines or after the cache is cleared
     font.recalcTimestamp = False
-    folder.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
-    with os.fdopen(fd, "wb") as fh:
-        font.save(fh)
-    os.replace(tmp, target)  # atomic: concurrent workers never see half a file
-    return target
+    buf = io.BytesIO()
+    font.save(buf)
+    return buf.getvalue()
 
 
 @cache
@@ -354,6 +403,8 @@ def _shade_phases(ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *,
     fig = ax.get_figure()
     axes_pt = ax.get_position().width * (fig.get_figwidth() if fig else 6.0) * PT
     for i, p in enumerate(phases):
+        if p.kind == "month":  # no phases recorded: the report month is no phase to mark
+            continue
         a, b = max(_day(p.start), x0), min(_day(p.window_end), x1)
         if b < a:
             continue
@@ -589,23 +640,42 @@ def _signals_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80)
     return fig
 
 
+def _scale_bodyfat(a: ClientAnalysis, ctx: ChartContext) -> tuple[np.ndarray, np.ndarray]:
+    """A scale's body-fat readings (day numbers, %) on the chart's time axis."""
+    bf = a.log.body_fat_pct
+    if not np.isfinite(bf).any():
+        return np.empty(0), np.empty(0)
+    x = day_numbers(a.log.dates)
+    ok = np.isfinite(bf) & (x >= _day(ctx.start)) & (x <= _day(ctx.end))
+    return x[ok], bf[ok]
+
+
 def _bodycomp_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) -> Figure | None:
-    """Fat and lean mass as change since the first session (one scale), and the skinfold sum."""
+    """Fat and lean mass as change since the first session (one scale), and the skinfold sum.
+
+    A scale's body-fat readings (bioimpedance) get a panel of their own: a different method,
+    never mixed into the skinfold estimates.
+    """
     sessions = [s for s in a.bodycomp if not s.rough]
-    if not sessions:
+    scale_x, scale_pct = _scale_bodyfat(a, ctx)
+    if not sessions and not len(scale_x):
         return None
     u, L = ctx.units, ctx.labels
+    fig = _figure(ctx, height_mm, (14, 3, 8, 6))
+    if not sessions:
+        ax = fig.add_subplot()
+        _scale_panel(ax, scale_x, scale_pct, ctx.start, ctx.end, ctx, max_ticks=6)
+        return fig
     xs = np.array([_day(s.date) for s in sessions])
     fat = np.array([float(u.weight(s.fat_mass_kg)) for s in sessions])
     lean = np.array([float(u.weight(s.lean_mass_kg)) for s in sessions])
     sums = np.array([np.nan if s.sum_mm is None else s.sum_mm for s in sessions])
-    fig = _figure(ctx, height_mm, (14, 3, 8, 6))
-    gs = fig.add_gridspec(1, 2, width_ratios=(3, 2), wspace=0.22)
+    ratios = (3, 2, 2) if len(scale_x) else (3, 2)
+    gs = fig.add_gridspec(1, len(ratios), width_ratios=ratios, wspace=0.22)
     left, right = fig.add_subplot(gs[0]), fig.add_subplot(gs[1])
     pad = 10.0 if len(xs) > 1 else 21.0
     first = _date_of(min(xs.min() - pad, _day(ctx.start)) if len(xs) > 1 else xs.min() - pad)
     last = _date_of(xs.max() + pad)
-
     _grid(left)
     left.set_title(
         L["bodycomp_change"].format(unit=u.weight_unit),
@@ -654,7 +724,37 @@ def _bodycomp_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48
     else:
         right.set_yticks([])
     _time_ticks(right, first, last, u, max_ticks=3)
+    if len(scale_x):
+        start = min(first, _date_of(float(scale_x.min())))
+        _scale_panel(fig.add_subplot(gs[2]), scale_x, scale_pct, start, ctx.end, ctx, max_ticks=3)
     return fig
+
+
+def _scale_panel(
+    ax: Axes,
+    xs: np.ndarray,
+    pct: np.ndarray,
+    first: dt.date,
+    last: dt.date,
+    ctx: ChartContext,
+    *,
+    max_ticks: int,
+) -> None:
+    """Scale body-fat readings (%): daily points, labelled as a scale reading."""
+    _grid(ax)
+    ax.set_title(ctx.labels["scale_bodyfat"] + " (%)", fontsize=6.5, color=T.INK, loc="left", pad=3)
+    ax.plot(xs, pct, ls="none", marker="^", ms=2.4, color=T.MUTED, zorder=4)
+    ax.annotate(
+        f"{pct[-1]:.1f}",
+        (xs[-1], pct[-1]),
+        xytext=(0, 4),
+        textcoords="offset points",
+        ha="center",
+        fontsize=5.8,
+        color=T.INK,
+    )
+    _y_ticks(ax, float(pct.min()), float(pct.max()), n=3, min_span=2.0)
+    _time_ticks(ax, first, last, ctx.units, max_ticks=max_ticks)
 
 
 def _date_of(day_number: float) -> dt.date:
@@ -729,6 +829,7 @@ def _projection_figure(
 # matplotlib legend box is about a sixth of a chart's drawing time.
 LegendEntry = tuple[str, str, str]  # (symbol, colour hex, label)
 LINE, DOT, BLOCK, CROSS, DASHED, DOTTED, SQUARE, DIAMOND = "━", "●", "█", "✕", "╍", "┈", "■", "◆"
+TRIANGLE = "▲"
 
 
 def _tint(colour: str, alpha: float) -> str:
@@ -758,11 +859,16 @@ def legend(key: str, a: ClientAnalysis, ctx: ChartContext) -> list[LegendEntry]:
             ]
         return out
     if key == "bodycomp":
-        return [
-            (DOT, T.WARM, L["legend_fat"]),
-            (SQUARE, acc, L["legend_lean"]),
-            (DIAMOND, T.DEEP, L["legend_sum"]),
-        ]
+        out = []
+        if any(not s.rough for s in a.bodycomp):
+            out = [
+                (DOT, T.WARM, L["legend_fat"]),
+                (SQUARE, acc, L["legend_lean"]),
+                (DIAMOND, T.DEEP, L["legend_sum"]),
+            ]
+        if len(_scale_bodyfat(a, ctx)[0]):
+            out.append((TRIANGLE, T.MUTED, L["legend_scale_bodyfat"]))
+        return out
     if key == "projection":
         out = [
             (LINE, acc, L["trend"]),

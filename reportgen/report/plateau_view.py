@@ -236,7 +236,7 @@ def plateau_flowables(
     words = Wording(config, "report/plateau.j2")
     out: list[Flowable] = []
     out += blocks(words.text(macro, view), theme, heading_hook=heading_hook)
-    if view.rows and macro == "client":
+    if view.rows and macro == "client" and view.status in ("stalled", "slower", "gaining"):
         names = dict(words.labels["cause_names"])
         out.append(Spacer(1, 1 * mm))
         out.append(CausesDrawing(view, names, theme, width))
