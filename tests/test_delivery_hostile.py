@@ -17,6 +17,7 @@ from _delivery_helpers import (
 from click.testing import CliRunner
 
 from reportgen.cli.send import send_command
+from reportgen.month import ReportMonth
 
 pytestmark = pytest.mark.usefixtures("loopback_only")
 
