@@ -18,9 +18,13 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, get_args, get_origin, get_type_hints
 
+from reportgen.choices import BODYFAT_EQUATIONS as BODYFAT_EQUATIONS
+from reportgen.choices import DENSITY_CONVERSIONS as DENSITY_CONVERSIONS
+from reportgen.choices import ENERGY_UNITS as ENERGY_UNITS
+from reportgen.choices import MAIL_SECURITY as MAIL_SECURITY
+
 PAPER_SIZES = ("A4", "letter")
 WEIGHT_UNITS = ("kg", "lb")
-ENERGY_UNITS = ("kcal", "kJ")
 SECTIONS = (
     "overview",
     "charts",
@@ -29,14 +33,6 @@ SECTIONS = (
     "methods",
     "cautions",
 )
-BODYFAT_EQUATIONS = (
-    "auto",
-    "jackson-pollock-7",
-    "jackson-pollock-3",
-    "durnin-womersley-4",
-)
-DENSITY_CONVERSIONS = ("siri", "brozek")
-MAIL_SECURITY = ("starttls", "tls", "none")
 
 
 class ConfigError(ValueError):
