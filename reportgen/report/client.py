@@ -17,7 +17,7 @@ from .charts import CHARTS, FIGURES, ChartContext, ChartPages, chart_pages, lege
 from .layout import card_grid, chart_block, data_table, practice_header, section_break
 from .para import Paragraph
 from .pdfbuild import ChartSlot, Document, build, mark_heading
-from .theme import page_size, theme_for
+from .theme import Theme, page_size, theme_for
 from .units import Units
 from .viewmodel import ClientView, client_view
 from .wording import Wording, blocks, esc
@@ -44,7 +44,9 @@ def _axis_start(a: ClientAnalysis) -> dt.date:
     return max(first, a.as_of - dt.timedelta(days=HISTORY_DAYS - 1))
 
 
-def chart_context(a: ClientAnalysis, config: Config, width_mm: float, labels: dict[str, str]):
+def chart_context(
+    a: ClientAnalysis, config: Config, width_mm: float, labels: dict[str, str]
+) -> ChartContext:
     u = Units.from_config(config)
     return ChartContext(u, labels, config.report.accent_colour, width_mm, _axis_start(a), a.as_of)
 
@@ -203,7 +205,7 @@ def render_client_report(
     return data
 
 
-def _phase_table(vm: ClientView, words: Wording, theme, width: float) -> Flowable:
+def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> Flowable:
     labels = words.labels
     cols = labels["phase_cols"]
     units = [x.replace("{e}", vm.energy_unit + "/day") for x in labels["phase_units"]]

@@ -231,13 +231,12 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     figs["bodyfat"] = _bodyfat_figure(a, u)
 
     implausible = any(fl.code == "implausible-adaptation" for fl in a.flags)
+    month_change, rate_pct = a.month_change_kg.value, a.weekly_rate_pct.value
     story: dict[str, Any] = {
         "change_dir": _direction(a.month_change_kg),
-        "change_abs": u.w(abs(a.month_change_kg.value)) if a.month_change_kg.known else "",
-        "rate_band": _rate_band(a.weekly_rate_pct.value),
-        "rate_pct_abs": u.pct(abs(a.weekly_rate_pct.value), dp=2)
-        if a.weekly_rate_pct.known
-        else "",
+        "change_abs": "" if month_change is None else u.w(abs(month_change)),
+        "rate_band": _rate_band(rate_pct),
+        "rate_pct_abs": "" if rate_pct is None else u.pct(abs(rate_pct), dp=2),
         "rate_pct": u.pct(a.weekly_rate_pct.value, dp=2, signed=True)
         if a.weekly_rate_pct.known
         else "",
@@ -266,8 +265,8 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         story["adapt_state"] = _adapt_state(ph.adaptation_kcal, ph.adaptation_pct, implausible)
         if ph.adaptation_kcal.known and ph.adaptation_kcal.value is not None:
             story["adapt_abs"] = u.e(abs(ph.adaptation_kcal.value))
-        pct = ph.adaptation_pct.value
-        story["adapt_large"] = bool(pct is not None and abs(pct) >= ADAPT_LARGE_PCT)
+        adapt_pct = ph.adaptation_pct.value
+        story["adapt_large"] = bool(adapt_pct is not None and abs(adapt_pct) >= ADAPT_LARGE_PCT)
     pr = a.projection
     if pr is not None and len(pr.weight_kg):
         story["projection_end"] = u.w(float(pr.weight_kg[-1]))
