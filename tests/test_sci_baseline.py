@@ -1,6 +1,6 @@
 """The baseline behind expected TDEE, and short windows (simulated clients, truth known).
 
-Records are simulated by reportgen.science.simulate (invented data with known
+Records are simulated by reportgen.testing.simulate (invented data with known
 truth).  The checks compare estimates with that truth, and the conjugate-normal
 update with its closed form (standard Bayesian result, e.g. Gelman et al.,
 Bayesian Data Analysis, 3rd ed., 2013, §2.5).
@@ -8,7 +8,9 @@ Bayesian Data Analysis, 3rd ed., 2013, §2.5).
 
 from __future__ import annotations
 
+import dataclasses
 import math
+from typing import Any
 
 import numpy as np
 import pytest
@@ -17,17 +19,18 @@ from _sci_helpers import simulated
 from reportgen.analysis import EARLY_PHASE_DAYS, analyse_client
 from reportgen.config import AnalysisSettings
 from reportgen.science.expected import maintenance_deficit_posterior
-from reportgen.science.simulate import simulate_client
+from reportgen.testing.simulate import SimulationSpec, simulate_client
 
 SETTINGS = AnalysisSettings()
 
 
-def _adaptation_errors(n: int, **kwargs: object) -> list[float]:
+def _adaptation_errors(n: int, **fixed: Any) -> list[float]:
     """Adaptation error (estimate - truth) of the deficit phases of n simulated clients."""
     rng = np.random.default_rng(20261201)
     out = []
     for i in range(n):
-        sim = simulate_client(rng, f"t{i:03d}", under_report=0.0, **kwargs)  # type: ignore[arg-type]
+        spec = SimulationSpec(client_id=f"t{i:03d}", under_report=0.0)
+        sim = simulate_client(rng, dataclasses.replace(spec, **fixed))
         a = analyse_client(sim.record, sim.month, SETTINGS)
         for p, tr in zip(a.phases, sim.phases, strict=True):
             if p.kind == "deficit" and p.days >= 28 and p.adaptation_kcal.known:
@@ -55,15 +58,15 @@ def test_first_weeks_baseline_does_not_count_glycogen_loss_as_tissue() -> None:
 
 def test_start_of_data_step_is_fitted_only_for_an_intake_change() -> None:
     """A first phase at maintenance gets no glycogen step at the start of the data."""
-    from reportgen.analysis import _start_shift_index
+    from reportgen.analysis.context import start_shift_index
 
     sim = simulated(5)
     log = sim.record.log
     first = sorted(sim.record.phases, key=lambda p: p.start)[0]
     assert first.kind == "maintenance"
-    assert _start_shift_index(sim.record.phases, log, sim.record.phases[-1].start) is None
+    assert start_shift_index(sim.record.phases, log, sim.record.phases[-1].start) is None
     nb = simulated(5, maintenance_first=False)
-    assert _start_shift_index(nb.record.phases, nb.record.log, nb.record.phases[-1].start) == 0
+    assert start_shift_index(nb.record.phases, nb.record.log, nb.record.phases[-1].start) == 0
 
 
 def test_short_phase_after_an_intake_change_has_no_expenditure_estimate() -> None:

@@ -53,6 +53,7 @@ from reportgen.delivery.smtp import (
     SendResult,
     SMTPConnection,
 )
+from reportgen.month import ReportMonth
 
 OUTBOX = "outbox"
 PASSWORD_ENV = "REPORTGEN_SMTP_PASSWORD"
@@ -219,7 +220,7 @@ def _log_skip(ledger: Ledger, month: str, row: Row, sha256: str | None = None) -
 
 
 def _message(
-    item: Planned, config: Config, env: jinja2.Environment, sender: Sender, month: str
+    item: Planned, config: Config, env: jinja2.Environment, sender: Sender, month: ReportMonth
 ) -> tuple[EmailMessage, bytes]:
     """The message for one planned delivery, and the attached bytes."""
     cid = item.client.client_id
@@ -266,7 +267,7 @@ def _send_all(
     config: Config,
     env: jinja2.Environment,
     sender: Sender,
-    month: str,
+    month: ReportMonth,
     emit: Callable[[Row], None],
 ) -> str | None:
     """Send each planned message with retries; returns the reason if the run had to stop."""
