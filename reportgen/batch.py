@@ -183,6 +183,21 @@ def _remove_stale_outputs(out_dir: Path, client_id: str) -> None:
             (out_dir / name).unlink()
 
 
+def _no_weigh_ins_warning(client_id: str, month: str) -> dict[str, object]:
+    """The manifest's note for a month without a single weigh-in (the report says it too)."""
+    return {
+        "severity": "warning",
+        "code": "no-weigh-ins-in-month",
+        "client_id": client_id,
+        "file": None,
+        "row": None,
+        "column": None,
+        "value": month,
+        "message": f"no weigh-ins in {month}: the report shows no change for the month, "
+        "and no trend figures that were not measured",
+    }
+
+
 def process_client(task: ClientTask) -> ClientOutcome:
     """Read, analyse, render and write one client's two PDFs; never raises for that client.
 
@@ -235,6 +250,8 @@ def process_client(task: ClientTask) -> ClientOutcome:
             return failed(tuple(_problem_line(p) for p in record.errors))
 
         analysis = analyse_client(record, task.month, task.config.analysis)
+        if analysis.quality.weight_days == 0:
+            warnings += (_no_weigh_ins_warning(cid, task.month),)
         t2 = time.perf_counter()
         timings["analyse"] = t2 - t1
 
@@ -625,7 +642,7 @@ def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> N
     result.files[SUMMARY_NAME] = sha256_bytes(summary)
 
     lines = [o.overview_line for o in result.outcomes if o.overview_line is not None]
-    failures = [(o.client_id, o.reason) for o in result.outcomes if not o.ok]
+    failures = [(o.client_id, o.name, o.reason) for o in result.outcomes if not o.ok]
     try:
         overview = render_overview(lines, failures, result.month, config)
     except Exception as exc:

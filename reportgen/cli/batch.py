@@ -30,8 +30,9 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     out = Console(highlight=False)
     err = Console(stderr=True, highlight=False)
     failed = result.failed
-    with_warnings = [o for o in result.outcomes if o.warnings]
-    n_warnings = sum(len(o.warnings) for o in result.outcomes)
+    # warnings are counted among the clients done: a failed client is counted once, as failed
+    with_warnings = [o for o in result.succeeded if o.warnings]
+    n_warnings = sum(len(o.warnings) for o in with_warnings)
 
     if verbose:
         for o in failed:
@@ -52,7 +53,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     table.add_column("")
     table.add_row("done", str(len(result.succeeded)), "")
     table.add_row(
-        "warnings",
+        "  of these with warnings",
         str(len(with_warnings)),
         f"{n_warnings} in all, listed in manifest.json" if n_warnings else "",
     )

@@ -15,6 +15,7 @@ table; units are converted here for display only.
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 import hashlib
 import io
@@ -166,6 +167,7 @@ class ChartContext:
     width_mm: float
     start: dt.date  # first day on the time axis
     end: dt.date  # last day (the report month's end)
+    projection_days: int | None = None  # days of the projection shown (None: all)
 
 
 def day_numbers(dates: np.ndarray) -> np.ndarray:
@@ -667,6 +669,12 @@ def _projection_figure(
     p = a.projection
     if p is None or len(p.dates) == 0:
         return None
+    n = len(p.dates) if ctx.projection_days is None else min(ctx.projection_days + 1, len(p.dates))
+    if n < 2:
+        return None
+    p = dataclasses.replace(
+        p, dates=p.dates[:n], weight_kg=p.weight_kg[:n], low_kg=p.low_kg[:n], high_kg=p.high_kg[:n]
+    )
     u, L = ctx.units, ctx.labels
     start = max(ctx.end - dt.timedelta(days=41), ctx.start)
     end = dt.date.fromisoformat(str(p.dates[-1].astype("datetime64[D]")))
