@@ -173,6 +173,11 @@ def _table_problems(table: str, value: Any) -> tuple[dict[str, Any], list[str]]:
             problems.append(str(exc))
             continue
         choices = _CHOICES.get((table, key))
+        if choices and isinstance(coerced, str) and coerced not in choices:
+            # choices are matched without regard to case ("Letter" is letter)
+            same = [c for c in choices if c.casefold() == coerced.strip().casefold()]
+            if same:
+                coerced = same[0]
         if choices and coerced not in choices:
             problems.append(
                 f"[{table}] {key} = {v!r} is not allowed; use one of: {', '.join(choices)}"

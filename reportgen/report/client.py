@@ -17,7 +17,15 @@ from reportlab.platypus import Flowable, PageBreak, Spacer
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis
 
-from .charts import CHARTS, FIGURES, ChartContext, ChartPages, chart_pages, legend
+from .charts import (
+    CHARTS,
+    FIGURES,
+    ChartContext,
+    ChartPages,
+    chart_pages,
+    has_planned_intake,
+    legend,
+)
 from .layout import card_grid, chart_block, data_table, practice_header, section_break
 from .outlook import outlook
 from .para import Paragraph
@@ -28,7 +36,7 @@ from .viewmodel import ClientView, client_view
 from .wording import Wording, blocks, esc
 
 # Chart box heights in mm (the width is the text width).
-CHART_HEIGHTS_MM = {"weight": 76, "energy": 64, "signals": 78, "bodycomp": 46, "projection": 56}
+CHART_HEIGHTS_MM = {"weight": 84, "energy": 76, "signals": 78, "bodycomp": 46, "projection": 56}
 HISTORY_DAYS = 183  # the time axis shows at most the last six months
 MIN_AXIS_DAYS = 28  # and at least four weeks, so a few early days do not fill the width
 
@@ -148,6 +156,8 @@ def render_client_report(
     theme = theme_for(config.report.accent_colour)
     words = Wording(config, "report/client.j2")
     vm = client_view(analysis, config)
+    axis = chart_context(analysis, config, 0.0, {})
+    vm.extra["planned_intake"] = has_planned_intake(analysis, axis)
     pagesize = page_size(config)
     width = pagesize[0] - 2 * 18 * mm
     sections = set(config.report.sections)

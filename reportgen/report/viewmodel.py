@@ -304,7 +304,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     story: dict[str, Any] = {
         "change_dir": _direction(a.month_change_kg),
         "change_abs": u.w(abs(a.month_change_kg.value)) if a.month_change_kg.known else "",
-        "rate_band": _rate_band(a.weekly_rate_pct.value, rapid),
+        "rate_band": "unknown" if no_month_data else _rate_band(a.weekly_rate_pct.value, rapid),
         "no_month_data": no_month_data,
         "last_weigh_in": u.d(last_weigh_in) if last_weigh_in else "",
         "rate_pct_abs": u.pct(abs(a.weekly_rate_pct.value), dp=2)
@@ -398,6 +398,13 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "age": str(a.age_years) if a.age_years is not None else "",
         "notes": list(a.notes),
         "projection_days": extra_projection_days,
+        # the signals chart draws a dashed line only where there is a pre-deficit baseline
+        "signal_baselines": any(
+            s.baseline is not None and s.days > 0
+            for s in a.signals
+            if s.name in ("steps", "hunger", "energy")
+        ),
+        "planned_intake": False,  # set by the layout: whether the energy chart draws it
     }
     return ClientView(
         practice=practice_view(config),
