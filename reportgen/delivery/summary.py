@@ -36,7 +36,7 @@ def print_row(row: Row) -> None:
 def print_summary(report: SendReport) -> None:
     console = Console(highlight=False, soft_wrap=False, width=120)
     for note in report.notes:
-        console.print(f"Note: {note}")
+        console.print(f"Note: {note}", markup=False)
     title = f"Delivery {report.month}" + (" (dry run: nothing sent)" if report.dry_run else "")
     table = Table(title=title, show_lines=False)
     for col in ("client", "kind", "address", "result", "detail"):
