@@ -6,7 +6,7 @@ function shared by the in-process loop, the local process pool and a Dask
 cluster.  The task reads that client's files, analyses them, renders both
 PDFs, writes them crash-safely and returns only small data
 (:class:`ClientOutcome`), so memory stays flat however many clients there are.
-The parent then writes ``summary.csv``, ``overview.pdf`` and, last,
+The parent then writes ``summary.csv``, ``overview.pdf``, ``methods.pdf`` and, last,
 ``manifest.json`` (whose presence means the month folder is complete).
 
 Nothing is written outside ``OUT/<YYYY-MM>/``.  Reading, science and rendering
@@ -54,8 +54,9 @@ from reportgen.report import (
     render_overview,
     render_practitioner_summary,
 )
+from reportgen.report.methods_doc import render_methods
 from reportgen.report.overview_model import OverviewLine
-from reportgen.results import ClientAnalysis
+from reportgen.results import ClientAnalysis, MethodUsed
 from reportgen.summary import SummaryRow, month_bounds, summary_csv, summary_rows
 
 if TYPE_CHECKING:  # the cluster extra is optional at run time
@@ -63,6 +64,7 @@ if TYPE_CHECKING:  # the cluster extra is optional at run time
     from distributed import Client as DaskClient
 
 OVERVIEW_NAME = "overview.pdf"
+METHODS_NAME = "methods.pdf"
 SUMMARY_NAME = "summary.csv"
 _MONTH = re.compile(r"^\d{4}-(0[1-9]|1[0-2])$")
 DASK_CONNECT_TIMEOUT_S = 10.0
@@ -123,6 +125,7 @@ class ClientOutcome:
     inputs: dict[str, str] = field(default_factory=dict)
     summary_rows: tuple[SummaryRow, ...] = ()
     overview_line: OverviewLine | None = None
+    methods: tuple[MethodUsed, ...] = ()  # equations and models used, for methods.pdf
     traceback: str | None = None  # for unexpected exceptions only
     timings_s: dict[str, float] = field(default_factory=dict)
     peak_rss_mb: float | None = None
@@ -288,6 +291,7 @@ def process_client(task: ClientTask) -> ClientOutcome:
         inputs=inputs,
         summary_rows=rows,
         overview_line=line,
+        methods=analysis.methods,
         timings_s=timings,
         peak_rss_mb=_peak_rss_mb(),
         pid=os.getpid(),
@@ -634,7 +638,7 @@ def run_batch(
 
 
 def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> None:
-    """summary.csv, overview.pdf, then manifest.json (last: it seals the month)."""
+    """summary.csv, overview.pdf, methods.pdf, then manifest.json (last: it seals the month)."""
     month_dir = result.month_dir
     rows = [row for o in result.outcomes for row in o.summary_rows]
     summary = summary_csv(rows)
@@ -652,6 +656,17 @@ def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> N
     else:
         write_bytes_atomic(month_dir / OVERVIEW_NAME, overview)
         result.files[OVERVIEW_NAME] = sha256_bytes(overview)
+
+    done = sorted((o for o in result.outcomes if o.ok), key=lambda o: o.client_id)
+    try:
+        methods = render_methods([o.methods for o in done], len(done), result.month, config)
+    except Exception as exc:
+        result.errors.append(f"methods.pdf could not be made: {type(exc).__name__}: {exc}")
+        with contextlib.suppress(FileNotFoundError):
+            (month_dir / METHODS_NAME).unlink()
+    else:
+        write_bytes_atomic(month_dir / METHODS_NAME, methods)
+        result.files[METHODS_NAME] = sha256_bytes(methods)
 
     config_file = Path(config.source) if config.source else None
     manifest = build_manifest(

@@ -13,6 +13,7 @@ from __future__ import annotations
 import datetime as dt
 import json
 import re
+from functools import cache
 from pathlib import Path
 
 import numpy as np
@@ -60,6 +61,20 @@ def page_text(a: ClientAnalysis, config: Config) -> list[str]:
     return [flat(t) for t in pdf_pages_text(render_client_report(a, config))]
 
 
+@cache
+def sample_pages(client_id: str, weeks: int = 8) -> tuple[str, ...]:
+    """The rendered client report of a sample client, per page (rendered once per run)."""
+    config = Config(report=ReportSettings(projection_weeks=weeks))
+    return tuple(page_text(sample_analysis(client_id), config))
+
+
+@cache
+def sample_practitioner(client_id: str) -> str:
+    return flat(
+        " ".join(pdf_pages_text(render_practitioner_summary(sample_analysis(client_id), Config())))
+    )
+
+
 def projection_line_end(a: ClientAnalysis, config: Config) -> dt.date | None:
     """Last day of the dashed projected line as drawn in the chart."""
     ctx = chart_context(a, config, 170.0, {k: k for k in _chart_labels()})
@@ -81,7 +96,7 @@ def _chart_labels() -> list[str]:
 def test_claims_on_page_one_match_the_analysis(client_id: str) -> None:
     a = sample_analysis(client_id)
     config = Config()
-    pages = page_text(a, config)
+    pages = sample_pages(client_id)
     p1 = pages[0]
     assert len(pages) <= 4, f"{client_id}: {len(pages)} pages"
     if a.quality.weight_days and a.current_weight_kg.known:
@@ -134,13 +149,13 @@ def test_projection_follows_the_configured_weeks_in_text_and_chart() -> None:
     assert p is not None
     for weeks in (4, 8):
         config = Config(report=ReportSettings(projection_weeks=weeks))
-        p1 = page_text(a, config)[0]
+        p1 = sample_pages("c001", weeks)[0]
         end = a.as_of + dt.timedelta(days=7 * weeks)
         assert f"projected to reach about {kg(p.weight_kg[7 * weeks])}" in p1
         assert f"by {day(end)}, {weeks} weeks from now" in p1
         assert projection_line_end(a, config) == end
     # the 12-week value never appears under a shorter label
-    p1 = page_text(a, Config(report=ReportSettings(projection_weeks=4)))[0]
+    p1 = sample_pages("c001", 4)[0]
     if kg(p.weight_kg[-1]) != kg(p.weight_kg[28]):
         assert f"about {kg(p.weight_kg[-1])}" not in p1
 
@@ -149,12 +164,11 @@ def test_goal_already_reached_turns_advice_to_maintenance() -> None:
     a = sample_analysis("c008")  # trend 64.9 kg, goal 65.0 kg, eating about 1,170 kcal/day
     assert a.client.goal_weight_kg is not None and a.current_weight_kg.known
     assert round(a.current_weight_kg.value, 1) <= a.client.goal_weight_kg  # type: ignore[arg-type]
-    p1 = page_text(a, Config())[0]
+    p1 = sample_pages("c008")[0]
     assert "You have reached your goal of 65.0 kg" in p1
     assert "maintenance" in p1
     assert "is not reached within" not in p1
-    practitioner = flat(" ".join(pdf_pages_text(render_practitioner_summary(a, Config()))))
-    assert "goal 65.0 kg reached" in practitioner
+    assert "goal 65.0 kg reached" in sample_practitioner("c008")
 
 
 @pytest.mark.parametrize(
@@ -181,16 +195,14 @@ BANNED = ("from memory", "SEE SEE", "+ Siri", "Siri 1961 + ", "(SEE ", "SEE fat"
 
 @pytest.mark.parametrize("client_id", CLIENTS)
 def test_no_provenance_tags_in_any_pdf(client_id: str) -> None:
-    a = sample_analysis(client_id)
-    for data in (render_client_report(a, Config()), render_practitioner_summary(a, Config())):
-        text = flat(" ".join(pdf_pages_text(data)))
+    for text in (" ".join(sample_pages(client_id)), sample_practitioner(client_id)):
         for tag in BANNED:
             assert tag not in text, f"{client_id}: {tag!r} printed"
         assert "Exponential smoothing" not in text and "exponential moving" not in text
 
 
 def test_client_report_has_no_equations_or_references() -> None:
-    text = flat(" ".join(page_text(sample_analysis("c001"), Config())))
+    text = " ".join(sample_pages("c001"))
     assert "doi:" not in text and "standard error" not in text
     assert "How we estimate this" in text and "not medical advice" in text
 
@@ -200,14 +212,14 @@ def test_flag_states_value_as_shown_limit_and_what_to_do() -> None:
     flag = next(f for f in a.flags if f.code == "low-intake")
     value, limit = float(flag.values["intake_kcal"]), float(flag.values["threshold_kcal"])
     assert value < limit and round(value / 10) * 10 == limit  # rounds onto the limit
-    text = flat(" ".join(page_text(a, Config())))
+    text = " ".join(sample_pages("c008"))
     shown = f"{round(value):,} kcal/day"  # one step finer, so it never reads as the limit
     assert (
         f"Average logged intake over the last 14 days: {shown}; the lower limit is 1,200 kcal/day."
         in text
     )
     assert "Talk to your coach" in text
-    practitioner = flat(" ".join(pdf_pages_text(render_practitioner_summary(a, Config()))))
+    practitioner = sample_practitioner("c008")
     assert f"{shown}; the lower limit is 1,200 kcal/day" in practitioner
     for raw in ("intake kcal", "threshold kcal", "_kcal", "threshold_"):
         assert raw not in text and raw not in practitioner
@@ -242,7 +254,7 @@ def test_captions_describe_only_what_is_drawn(tmp_path: Path) -> None:
     assert not vm.extra["signal_baselines"]
     text = flat(" ".join(page_text(a, Config())))
     assert "dashed line" not in text
-    c1 = flat(" ".join(page_text(sample_analysis("c001"), Config())))
+    c1 = " ".join(sample_pages("c001"))
     assert "the dashed line marks your level before the first deficit" in c1
     assert "The dotted line is the intake planned for each phase" in c1
     for gone in ("shaded gap", "The shaded gap between the two lines"):
@@ -290,7 +302,18 @@ def test_month_without_weigh_ins_is_said_and_not_extrapolated(tmp_path: Path) ->
     assert "no weigh-ins this month" in overview
     out = tmp_path / "out"
     result = CliRunner().invoke(
-        main, ["batch", str(book), "--month", SAMPLE_MONTH, "--out", str(out), "--quiet"]
+        main,
+        [
+            "batch",
+            str(book),
+            "--month",
+            SAMPLE_MONTH,
+            "--out",
+            str(out),
+            "--quiet",
+            "--workers",
+            "1",
+        ],
     )
     assert result.exit_code == 0, result.output
     manifest = json.loads((out / SAMPLE_MONTH / "manifest.json").read_text(encoding="utf-8"))
@@ -334,5 +357,5 @@ def test_overview_labels_body_fat_by_its_span() -> None:
     lines = [make_overview_line(sample_analysis("c001"))]
     text = flat(" ".join(pdf_pages_text(render_overview(lines, [], SAMPLE_MONTH, Config()))))
     assert "Body fat, this phase" in text
-    card = flat(page_text(sample_analysis("c001"), Config())[0])
+    card = sample_pages("c001")[0]
     assert "since the first session" in card

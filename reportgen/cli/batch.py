@@ -66,7 +66,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
             "(manifest.json book_problems; `reportgen check` shows them)",
         )
     for o in failed:
-        table.add_row("", o.client_id, o.reason)
+        table.add_row("", o.client_id, f"{o.name}: {o.reason}" if o.name else o.reason)
     out.print(table)
     for e in result.errors:
         err.print(e, markup=False)
