@@ -47,7 +47,8 @@ PHASE_NOTE_CODES: tuple[str, ...] = (
     "composition-change-from-skinfolds",  # fat/lean change from two skinfold sessions
     "composition-change-from-forbes",  # fat/lean change from the Forbes partition
 )
-# ClientAnalysis.notes ("skinfold-session-unusable" carries ":<ISO date>"):
+# ClientAnalysis.notes ("skinfold-session-unusable" carries ":<ISO date>:<reason>",
+# "resting-equations-unavailable" ":<reason>"; reasons from science.errors.NOT_COMPUTABLE_REASONS):
 ANALYSIS_NOTE_CODES: tuple[str, ...] = (
     "too-few-weigh-ins",
     "bodycomp-needs-sex-age-weight",
@@ -83,7 +84,7 @@ class Estimate:
 class TrendSeries:
     """Smoothed trend weight on the log's daily grid."""
 
-    method: str  # "local-linear-trend" or "ema"
+    method: str  # "local-linear-trend"
     dates: DateArray
     level_kg: FloatArray
     level_low_kg: FloatArray  # 80 % band
@@ -229,7 +230,6 @@ class ClientAnalysis:
     special_handling: tuple[str, ...]  # "minor", "pregnant": no deficit analysis
     log: DailyLog  # cut at as_of; for charts
     trend: TrendSeries | None
-    ema: TrendSeries | None
     current_weight_kg: Estimate  # trend weight at as_of
     month_change_kg: Estimate  # trend change over the report month
     weekly_rate_kg: Estimate  # current weekly rate (kg/week, negative = loss)

@@ -137,6 +137,8 @@ def _figure_items(vm: ClientView, words: Wording) -> list[tuple[str, str, bool, 
         f = vm.figures[key]
         if f.known:
             value = esc(f.value)
+        elif f.reason == "no-data-in-month":
+            value = esc(words.labels["not_measured"])  # nothing measured: not a guess either
         elif f.reason in words.labels["not_estimated_for"]:
             value = esc(words.labels["not_estimated"])  # by design, not for lack of data
         else:

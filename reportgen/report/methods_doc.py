@@ -16,7 +16,8 @@ from types import SimpleNamespace
 from reportlab.lib.units import mm
 from reportlab.platypus import Flowable, Spacer
 
-from reportgen.analysis import FLAG_INTAKE_DAYS, RECENT_DAYS
+from reportgen.analysis.quality import FLAG_INTAKE_DAYS
+from reportgen.analysis.trend import RECENT_DAYS
 from reportgen.config import Config
 from reportgen.results import MethodUsed
 from reportgen.science import flags as F
@@ -26,7 +27,7 @@ from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
 from .theme import page_size, theme_for
 from .units import Units
-from .viewmodel import ADAPT_MIN_PCT, HIDDEN_METHODS, month_label
+from .viewmodel import ADAPT_MIN_PCT, month_label
 from .wording import Wording, blocks, esc
 
 
@@ -87,7 +88,7 @@ def methods_used(per_client: Iterable[Sequence[MethodUsed]]) -> list[tuple[Metho
     counts: Counter[str] = Counter()
     first: dict[str, MethodUsed] = {}
     for methods in per_client:
-        for code in dict.fromkeys(m.code for m in methods if m.code not in HIDDEN_METHODS):
+        for code in dict.fromkeys(m.code for m in methods):
             counts[code] += 1
         for m in methods:
             first.setdefault(m.code, m)

@@ -14,10 +14,9 @@ from typing import Any
 
 import numpy as np
 
-from reportgen.analysis import FLAG_INTAKE_DAYS
+from reportgen.analysis.quality import FLAG_INTAKE_DAYS
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate, PhaseResult
-from reportgen.science.flags import rapid_loss
 
 from .outlook import outlook
 from .theme import missing_glyphs
@@ -36,8 +35,6 @@ SIGNAL_NOTABLE = ("moderate", "large")
 # Below-expected expenditure of this share or more is worded as "check logging first": larger
 # than the 5-15 % usually attributed to adaptation (common practice, no single source).
 ADAPT_LARGE_PCT = 15.0
-# Methods the analysis records that no report lists (a plain comparison smoother).
-HIDDEN_METHODS = ("ema",)
 LONG_DEFICIT_DAYS = 84  # 12 weeks of continuous deficit: suggest a break (common practice)
 
 
@@ -298,7 +295,8 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     figs["bodyfat"] = _bodyfat_figure(a, u)
 
     implausible = any(fl.code == "implausible-adaptation" for fl in a.flags)
-    rapid = any(fl.code == "rapid-loss" for fl in a.flags) or rapid_loss(a.weekly_rate_pct.value)
+    # the words say "fast" exactly when the rapid-loss flag (science.flags.rapid_loss) is up
+    rapid = any(fl.code == "rapid-loss" for fl in a.flags)
     look = None if no_month_data else outlook(a, config.report.projection_weeks, _display(u))
     last_weigh_in = _last_weigh_in(a)
     story: dict[str, Any] = {
@@ -388,7 +386,6 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     methods = [
         {"code": m.code, "name": m.name, "reference": m.reference, "see": m.see or ""}
         for m in a.methods
-        if m.code not in HIDDEN_METHODS
     ]
     noise = a.trend.noise_sd_kg if a.trend is not None else None
     extra = {
