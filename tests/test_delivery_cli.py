@@ -152,8 +152,9 @@ def test_dry_run_without_a_sender_uses_a_marked_placeholder(tmp_path: Path) -> N
         month.config_file.write_text(
             text.replace('email = "team@harbourclinic.example"\n', ""), encoding="utf-8"
         )
-        dry = _run([str(month.month_dir), "--dry-run"])
-        real = _run([str(month.month_dir)])
+        config = ["--config", str(month.config_file)]
+        dry = _run([str(month.month_dir), "--dry-run", *config])
+        real = _run([str(month.month_dir), *config])
     assert dry.exit_code == 0, dry.output
     assert "no sender configured" in dry.output and "placeholder" in dry.output
     assert "set [mail] from_address" in dry.output

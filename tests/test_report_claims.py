@@ -369,3 +369,22 @@ def test_overview_labels_body_fat_by_its_span() -> None:
     assert "Body fat, this phase" in text
     card = sample_pages("c001")[0]
     assert "since the first session" in card
+
+
+def test_goal_date_comes_with_the_range_of_the_projection_band() -> None:
+    """c005's goal lies inside the horizon: the date is the central path's first day at the
+    goal; the earliest is where the band's near edge gets there (the far edge does not)."""
+    a = sample_analysis("c005")
+    look = outlook(a, 8)
+    assert look is not None and look.goal_status == "on-track" and look.goal_date is not None
+    p = a.projection
+    assert p is not None and a.client.goal_weight_kg is not None
+    day_index = (look.goal_date - p.start).days
+    assert p.weight_kg[day_index] <= a.client.goal_weight_kg < p.weight_kg[day_index - 1]
+    assert look.goal_earliest is not None and look.goal_earliest <= look.goal_date
+    text = sample_pages("c005")[0]
+    assert f"would be reached around {day(look.goal_date)}" in text
+    if look.goal_latest is None:
+        assert f"({day(look.goal_earliest)} at the earliest)" in text
+    else:
+        assert f"(likely between {day(look.goal_earliest)} and {day(look.goal_latest)})" in text

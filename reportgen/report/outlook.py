@@ -39,6 +39,8 @@ class Outlook:
     goal_direction: str  # "loss" or "gain" ("" without a goal)
     goal_status: str  # one of GOAL_STATUSES
     goal_date: dt.date | None  # first day the central path reaches the goal, within ``days``
+    goal_earliest: dt.date | None = None  # first day the near edge of the band reaches it
+    goal_latest: dt.date | None = None  # first day the far edge does (None: not within ``days``)
 
     @property
     def weeks_text(self) -> str:
@@ -88,14 +90,21 @@ def outlook(
     current = float(a.current_weight_kg.value)  # type: ignore[arg-type]
     kind = a.current_phase.kind if a.current_phase is not None else None
     direction, status = goal_status(current, p.goal_weight_kg, kind, display)
-    goal_date = None
+    goal_date = earliest = latest = None
     if status == "open" and p.goal_weight_kg is not None:
-        path = np.asarray(p.weight_kg[: days + 1], dtype=float)
         goal = p.goal_weight_kg
-        hit = path <= goal if direction == "loss" else path >= goal
-        if hit.any():
+        path = np.asarray(p.weight_kg[: days + 1], dtype=float)
+        near = np.asarray((p.low_kg if direction == "loss" else p.high_kg)[: days + 1], float)
+        far = np.asarray((p.high_kg if direction == "loss" else p.low_kg)[: days + 1], float)
+
+        def first(series: np.ndarray) -> dt.date | None:
+            hit = series <= goal if direction == "loss" else series >= goal
+            return p.start + dt.timedelta(days=int(np.argmax(hit))) if hit.any() else None
+
+        goal_date = first(path)
+        if goal_date is not None:
             status = "on-track"
-            goal_date = p.start + dt.timedelta(days=int(np.argmax(hit)))
+            earliest, latest = first(near), first(far)
         else:
             moving_toward = (path[-1] < path[0]) if direction == "loss" else (path[-1] > path[0])
             status = "beyond" if moving_toward else "away"
@@ -109,4 +118,6 @@ def outlook(
         goal_direction=direction,
         goal_status=status,
         goal_date=goal_date,
+        goal_earliest=earliest,
+        goal_latest=latest,
     )

@@ -329,6 +329,8 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "goal_status": "none",
         "goal_direction": "",
         "goal_date": "",
+        "goal_earliest": "",
+        "goal_latest": "",
         "projection_weeks": "",
         "projection_date": "",
         "projection_end": "",
@@ -353,6 +355,8 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         story["goal_status"] = look.goal_status
         story["goal_direction"] = look.goal_direction
         story["goal_date"] = u.d(look.goal_date) if look.goal_date else ""
+        story["goal_earliest"] = u.d(look.goal_earliest) if look.goal_earliest else ""
+        story["goal_latest"] = u.d(look.goal_latest) if look.goal_latest else ""
     elif a.client.goal_weight_kg is not None and a.current_weight_kg.known and not no_month_data:
         from .outlook import goal_status
 
