@@ -1,4 +1,8 @@
-"""The client report: overview, charts, phase table, data quality, methods and cautions."""
+"""The client report: overview, "Is progress stalling?", "how we estimate this", charts,
+phase table, data quality and cautions, on at most four A4 pages.
+
+Equations, standard errors and references are not in the client report: they are for the
+practice and sit in the practitioner summary."""
 
 from __future__ import annotations
 
@@ -13,18 +17,27 @@ from reportlab.platypus import Flowable, KeepTogether, PageBreak, Spacer
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis
 
-from .charts import CHARTS, FIGURES, ChartContext, ChartPages, chart_pages, legend
+from .charts import (
+    CHARTS,
+    FIGURES,
+    ChartContext,
+    ChartPages,
+    chart_pages,
+    has_planned_intake,
+    legend,
+)
 from .layout import card_grid, chart_block, data_table, practice_header, section_break
+from .outlook import outlook
 from .para import Paragraph
 from .pdfbuild import ChartSlot, Document, build, mark_heading
-from .plateau_view import plateau_flowables
-from .theme import page_size, theme_for
+from .plateau_view import plateau_flowables, plateau_view, showing_causes
+from .theme import MARGIN, Theme, page_size, theme_for
 from .units import Units
 from .viewmodel import ClientView, client_view
 from .wording import Wording, blocks, esc
 
 # Chart box heights in mm (the width is the text width).
-CHART_HEIGHTS_MM = {"weight": 76, "energy": 64, "signals": 78, "bodycomp": 46, "projection": 56}
+CHART_HEIGHTS_MM = {"weight": 84, "energy": 76, "signals": 78, "bodycomp": 46, "projection": 56}
 HISTORY_DAYS = 183  # the time axis shows at most the last six months
 MIN_AXIS_DAYS = 28  # and at least four weeks, so a few early days do not fill the width
 
@@ -45,9 +58,29 @@ def _axis_start(a: ClientAnalysis) -> dt.date:
     return max(first, a.as_of - dt.timedelta(days=HISTORY_DAYS - 1))
 
 
-def chart_context(a: ClientAnalysis, config: Config, width_mm: float, labels: dict[str, str]):
+def chart_context(
+    a: ClientAnalysis, config: Config, width_mm: float, labels: dict[str, str]
+) -> ChartContext:
     u = Units.from_config(config)
-    return ChartContext(u, labels, config.report.accent_colour, width_mm, _axis_start(a), a.as_of)
+    return ChartContext(
+        u,
+        labels,
+        config.report.accent_colour,
+        width_mm,
+        _axis_start(a),
+        a.as_of,
+        projection_days=projection_days(a, config),
+    )
+
+
+def projection_days(a: ClientAnalysis, config: Config) -> int:
+    """Days of the projection the report shows: the configured weeks, none without a
+    weigh-in in the report month (the text then makes no projection either)."""
+    if a.quality.weight_days == 0:
+        return 0
+    u = Units.from_config(config)
+    look = outlook(a, config.report.projection_weeks, lambda kg: round(float(u.weight(kg)), 1))
+    return look.days if look is not None else 0
 
 
 def draw_charts(
@@ -57,8 +90,7 @@ def draw_charts(
     labels: dict[str, str],
     timing: Timing | None = None,
 ) -> dict[str, bytes | None]:
-    u = Units.from_config(config)
-    ctx = ChartContext(u, labels, config.report.accent_colour, width_mm, _axis_start(a), a.as_of)
+    ctx = chart_context(a, config, width_mm, labels)
     out: dict[str, bytes | None] = {}
     for key, fn in CHARTS.items():
         t0 = time.perf_counter()
@@ -106,6 +138,8 @@ def _figure_items(vm: ClientView, words: Wording) -> list[tuple[str, str, bool, 
         f = vm.figures[key]
         if f.known:
             value = esc(f.value)
+        elif f.reason == "no-data-in-month":
+            value = esc(words.labels["not_measured"])  # nothing measured: not a guess either
         elif f.reason in words.labels["not_estimated_for"]:
             value = esc(words.labels["not_estimated"])  # by design, not for lack of data
         else:
@@ -121,13 +155,23 @@ def _heading_hook(para: Paragraph, level: int) -> None:
 def render_client_report(
     analysis: ClientAnalysis, config: Config, *, timing: Timing | None = None
 ) -> bytes:
-    """The client's monthly report as PDF bytes (4-6 pages with every section)."""
+    """The client's monthly report as PDF bytes (at most 4 A4 pages with every section)."""
     theme = theme_for(config.report.accent_colour)
     words = Wording(config, "report/client.j2")
     vm = client_view(analysis, config)
     pagesize = page_size(config)
     width = pagesize[0] - 2 * 18 * mm
     sections = set(config.report.sections)
+    axis = chart_context(analysis, config, 0.0, {})
+    vm.extra["planned_intake"] = has_planned_intake(analysis, axis)
+    pv = plateau_view(analysis, config) if "overview" in sections else None
+    # the progress section states the ratings beside the causes and offers the break
+    causes = pv is not None and showing_causes(pv)
+    vm.extra["plateau_hunger"] = causes and pv is not None and bool(pv.hunger_words)
+    vm.extra["plateau_energy"] = causes and pv is not None and bool(pv.energy_words)
+    vm.extra["plateau_break"] = pv is not None and any(
+        o["code"] == "maintenance-break" for o in pv.options
+    )
 
     t0 = time.perf_counter()
     charts: ChartPages | None = None
@@ -135,34 +179,37 @@ def render_client_report(
         charts = draw_chart_pages(analysis, config, width / mm, words.labels["chart"], timing)
     t1 = time.perf_counter()
 
-    story: list[Flowable] = []
-    story += practice_header(config, theme, width)
+    first: list[Flowable] = []
+    first += practice_header(config, theme, width)
     head = blocks(words.text("header", vm), theme)
     if head and isinstance(head[0], Paragraph):
         mark_heading(head[0], 0, words.labels["outline_overview"])
-    story += head
-    story.append(Spacer(1, 4 * mm))
+    first += head
+    first.append(Spacer(1, 4 * mm))
     if "overview" in sections:
-        story += card_grid(_figure_items(vm, words), theme, width)
-        story.append(Spacer(1, 2 * mm))
-        story += blocks(words.text("narrative", vm), theme, heading_hook=_heading_hook)
-    # "Is progress stalling?" opens the second page (the first is full), kept in one piece
-    plateau = plateau_flowables(
-        analysis, config, theme, width, "client", heading_hook=_heading_hook
-    )
-    if plateau and "overview" in sections:
-        if "charts" not in sections:
-            story.append(Spacer(1, 3 * mm))
-        else:
-            story.append(PageBreak())
-        story.append(KeepTogether(plateau))
-        story.append(Spacer(1, 4 * mm))
+        first += card_grid(_figure_items(vm, words), theme, width)
+        first.append(Spacer(1, 2 * mm))
+        first += blocks(words.text("narrative", vm), theme, heading_hook=_heading_hook)
+
+    # "Is progress stalling?" in one piece, after the narrative when page 1 has room
+    plateau: list[Flowable] = []
+    if "overview" in sections:
+        found = plateau_flowables(
+            analysis, config, theme, width, "client", heading_hook=_heading_hook
+        )
+        if found:
+            plateau = [Spacer(1, 3 * mm), KeepTogether(found)]
+
+    # plain-language "how we estimate this"; the equations, standard errors and
+    # references are in the practitioner summary
+    methods: list[Flowable] = []
+    if "methods" in sections:
+        methods = blocks(words.text("methods", vm), theme, heading_hook=_heading_hook)
 
     slots: list[ChartSlot] = []
+    chart_story: list[Flowable] = []
     if "charts" in sections:
-        if not (plateau and "overview" in sections):
-            story.append(PageBreak())
-        story += blocks(words.text("charts_intro", vm), theme, heading_hook=_heading_hook)
+        chart_story += blocks(words.text("charts_intro", vm), theme, heading_hook=_heading_hook)
         titles = words.labels["charts"]
         ctx = chart_context(analysis, config, width / mm, words.labels["chart"])
         for key in CHARTS:
@@ -170,7 +217,7 @@ def render_client_report(
             if charts is not None and key in charts.pages:
                 slot = ChartSlot(key, width, CHART_HEIGHTS_MM[key] * mm)
                 slots.append(slot)
-            story.append(
+            chart_story.append(
                 chart_block(
                     titles[key],
                     slot,
@@ -181,22 +228,20 @@ def render_client_report(
                 )
             )
 
-    if {"phases", "quality", "methods"} & sections:
-        story.append(PageBreak())
+    # phases, data quality and the cautions share the last page when they fit
+    last: list[Flowable] = []
     if "phases" in sections:
-        story += blocks(words.text("phases", vm), theme, heading_hook=_heading_hook)
-        story.append(_phase_table(vm, words, theme, width))
-        story.append(Spacer(1, 5 * mm))
+        last += blocks(words.text("phases", vm), theme, heading_hook=_heading_hook)
+        last.append(_phase_table(vm, words, theme, width))
+        last.append(Spacer(1, 4 * mm))
     if "quality" in sections:
-        story.append(section_break(45 * mm))
-        story += blocks(words.text("quality", vm), theme, heading_hook=_heading_hook)
-        story.append(Spacer(1, 4 * mm))
-    if "methods" in sections:
-        story.append(section_break(70 * mm))
-        story += blocks(words.text("methods", vm), theme, heading_hook=_heading_hook)
+        last.append(section_break(35 * mm))
+        last += blocks(words.text("quality", vm), theme, heading_hook=_heading_hook)
+        last.append(Spacer(1, 3 * mm))
+    cautions = [section_break(60 * mm)]
+    cautions += blocks(words.text("cautions", vm), theme, heading_hook=_heading_hook)
 
-    story.append(PageBreak())
-    story += blocks(words.text("cautions", vm), theme, heading_hook=_heading_hook)
+    story = _arrange(first, plateau, methods, chart_story, last, cautions, width, pagesize)
 
     labels = words.labels
     doc = Document(
@@ -216,7 +261,79 @@ def render_client_report(
     return data
 
 
-def _phase_table(vm: ClientView, words: Wording, theme, width: float) -> Flowable:
+def _stack_height(flows: list[Flowable], width: float, height: float) -> float:
+    """Height of flowables laid one under the other as a frame lays them: a space before
+    a flowable counts only beyond the space after the one above it."""
+    total = 0.0
+    after: float | None = None  # space after the flowable above (None: at the top)
+    for f in _flatten(flows):
+        h = f.wrap(width, height)[1]
+        if after is not None:
+            total += after + max(f.getSpaceBefore() - after, 0.0)
+        total += h
+        after = f.getSpaceAfter()
+    return total
+
+
+def _flatten(flows: list[Flowable]) -> list[Flowable]:
+    out: list[Flowable] = []
+    for f in flows:
+        inner = getattr(f, "_content", None) if isinstance(f, KeepTogether) else None
+        out += _flatten(list(inner)) if inner is not None else [f]
+    return out
+
+
+def _arrange(
+    first: list[Flowable],
+    plateau: list[Flowable],
+    methods: list[Flowable],
+    chart_story: list[Flowable],
+    last: list[Flowable],
+    cautions: list[Flowable],
+    width: float,
+    pagesize: tuple[float, float],
+) -> list[Flowable]:
+    """The pages in order: page 1 (headline, narrative, the progress section and, when it
+    fits, "how we estimate this"), the charts from page 2, then phases, data quality and the
+    cautions; "how we estimate this" joins the last page when page 1 is full.  Measured
+    here, before layout, so the report keeps to four pages without a second build."""
+    room = pagesize[1] - 2 * MARGIN - 2 * mm  # a little slack for rounding
+    h_first = _stack_height(first, width, room)
+    h_plateau = _stack_height(plateau, width, room)
+    h_methods = _stack_height(methods, width, room)
+    h_last = _stack_height(last + cautions, width, room)
+
+    on_first = methods if methods else []
+    methods_last: list[Flowable] = []
+    plateau_first = plateau
+    plateau_second: list[Flowable] = []
+    if plateau and h_first + h_plateau + h_methods > room:
+        if h_first + h_plateau <= room and h_last + h_methods <= room:
+            on_first, methods_last = [], methods
+        else:  # page 1 has no room for it: it opens page 2, before the charts
+            plateau_first, plateau_second = [], [*plateau[1:], Spacer(1, 4 * mm)]
+    story = list(first) + plateau_first
+    if on_first:
+        story.append(section_break(40 * mm))
+        story += on_first
+    if plateau_second:
+        story.append(PageBreak())
+        story += plateau_second
+    if chart_story:
+        if not plateau_second:
+            story.append(PageBreak())
+        story += chart_story
+    story.append(PageBreak())
+    story += last
+    if methods_last:
+        story.append(Spacer(1, 2 * mm))
+        story += methods_last
+        story.append(Spacer(1, 3 * mm))
+    story += cautions
+    return story
+
+
+def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> Flowable:
     labels = words.labels
     cols = labels["phase_cols"]
     units = [x.replace("{e}", vm.energy_unit + "/day") for x in labels["phase_units"]]

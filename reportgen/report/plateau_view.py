@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 
 from reportlab.lib import colors
 from reportlab.lib.units import mm
-from reportlab.platypus import Flowable, Spacer
+from reportlab.platypus import Flowable, Table, TableStyle
 
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, PlateauResult
@@ -67,6 +67,10 @@ class PlateauView:
     metabolic_expected: str = ""
     hunger_change: str = ""
     energy_change: str = ""
+    hunger_words: str = ""  # "clearly higher than", "about the same as", ...
+    energy_words: str = ""
+    hunger_rose: bool = False
+    energy_fell: bool = False
     gap: str = ""
     options: list[dict[str, str]] = field(default_factory=list)
     cautions: tuple[str, ...] = ()
@@ -147,8 +151,28 @@ def _causes(view: PlateauView, p: PlateauResult, u: Units) -> None:
         view.metabolic_expected = u.e(p.metabolic_expected_kcal, signed=True)
     if p.hunger_change is not None:
         view.hunger_change = u.number(p.hunger_change, 1, signed=True)
+        view.hunger_words = rating_words(p.hunger_change)
+        view.hunger_rose = p.hunger_change >= RATING_SMALL
     if p.energy_change is not None:
         view.energy_change = u.number(p.energy_change, 1, signed=True)
+        view.energy_words = rating_words(p.energy_change)
+        view.energy_fell = p.energy_change <= -RATING_SMALL
+
+
+# A change in a mean 1-10 rating of less than one point reads as "about the same", two
+# points or more as "clearly" (common practice, no single source).
+RATING_SMALL = 1.0
+RATING_CLEAR = 2.0
+
+
+def rating_words(change: float) -> str:
+    """A change in a mean 1-10 rating in words, ending with the comparison word; judged on
+    the change as printed (one decimal)."""
+    change = round(change, 1)
+    if abs(change) < RATING_SMALL:
+        return "about the same as"
+    size = "clearly" if abs(change) >= RATING_CLEAR else "a little"
+    return f"{size} {'higher' if change > 0 else 'lower'} than"
 
 
 def _option(code: str, values: dict[str, float], u: Units) -> dict[str, str]:
@@ -221,6 +245,11 @@ class CausesDrawing(Flowable):
         c.restoreState()
 
 
+def showing_causes(view: PlateauView) -> bool:
+    """Whether the client report shows the causes (words and drawing) for this status."""
+    return bool(view.rows) and view.status in ("stalled", "slower", "gaining")
+
+
 def plateau_flowables(
     a: ClientAnalysis,
     config: Config,
@@ -236,11 +265,29 @@ def plateau_flowables(
     words = Wording(config, "report/plateau.j2")
     out: list[Flowable] = []
     out += blocks(words.text(macro, view), theme, heading_hook=heading_hook)
-    if view.rows and macro == "client" and view.status in ("stalled", "slower", "gaining"):
+    if macro == "client" and showing_causes(view):
+        # the causes in words on the left, the small drawing with its key on the right
         names = dict(words.labels["cause_names"])
-        out.append(Spacer(1, 1 * mm))
-        out.append(CausesDrawing(view, names, theme, width))
-        out += blocks(words.text("drawing_caption", view), theme)
+        left_w = 0.58 * width
+        right_w = width - left_w
+        text = blocks(words.text("client_causes", view), theme)
+        drawing: list[Flowable] = [CausesDrawing(view, names, theme, right_w - 3 * mm)]
+        drawing += blocks(words.text("drawing_caption", view), theme)
+        table = Table([[text, drawing]], colWidths=[left_w, right_w])
+        table.setStyle(
+            TableStyle(
+                [
+                    ("VALIGN", (0, 0), (-1, -1), "TOP"),
+                    ("LEFTPADDING", (0, 0), (-1, -1), 0),
+                    ("RIGHTPADDING", (0, 0), (0, 0), 4 * mm),
+                    ("RIGHTPADDING", (1, 0), (1, 0), 0),
+                    ("LEFTPADDING", (1, 0), (1, 0), 3 * mm),
+                    ("TOPPADDING", (0, 0), (-1, -1), 1 * mm),
+                    ("BOTTOMPADDING", (0, 0), (-1, -1), 1 * mm),
+                ]
+            )
+        )
+        out.append(table)
     if macro == "client":
         out += blocks(words.text("client_options", view), theme)
     return out
