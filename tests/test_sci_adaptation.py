@@ -13,6 +13,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
+from reportgen.results import Estimate
 from reportgen.science.activity import (
     kcal_per_1000_steps,
     step_energy_change_kcal,
@@ -20,6 +21,7 @@ from reportgen.science.activity import (
 )
 from reportgen.science.adaptation import (
     NOT_DISTINGUISHABLE,
+    assess_phase_adaptation,
     at_share_of_step,
     body_size_change_kcal,
     combine_adaptation,
@@ -212,3 +214,43 @@ def test_glycogen_step_and_time_constant() -> None:
     m, s = glycogen_remaining_share(7.0)
     assert math.exp(-7 / 3) < m < math.exp(-0.7)
     assert s > 0.05
+
+
+def _est(v: float, sd: float) -> Estimate:
+    return Estimate(v, v - Z80 * sd, v + Z80 * sd)
+
+
+def test_phase_assessment_reads_fewer_steps_as_activity() -> None:
+    # Baseline TDEE 2600 (SE 50), cut: observed 2050, expected 2250 -> 200 below expected,
+    # of which 3000 fewer steps at 80 kg = -84 kcal/day (ACSM, see test_step_cost_acsm).
+    res = assess_phase_adaptation(
+        observed_tdee=_est(2050.0, 40.0),
+        expected_tdee=_est(2250.0, 55.0),
+        baseline_tdee_kcal=2600.0,
+        baseline_tdee_se_kcal=50.0,
+        baseline_intake_kcal=2600.0,
+        baseline_intake_se_kcal=30.0,
+        baseline_deficit_kcal=0.0,
+        phase_deficit=_est(500.0, 40.0),
+        logged_intake_kcal=1550.0,
+        logged_intake_se_kcal=25.0,
+        body_size_kcal=-60.0,
+        first_day=0,
+        days=84,
+        activity=(-84.0, 17.0),
+    )
+    ch = res.change
+    assert ch.total.value == pytest.approx(-550.0)
+    assert ch.body_size.value == pytest.approx(-350.0)
+    assert ch.activity.value == pytest.approx(-84.0)
+    assert ch.metabolic.value == pytest.approx(-116.0)  # -550 + 350 + 84 (the parts add up)
+    # the combined metabolic part lies between the data (-116) and the literature value
+    ev = res.evidence
+    assert ev.literature.value is not None and ev.combined.value is not None
+    assert min(-116.0, ev.literature.value) <= ev.combined.value <= max(-116.0, ev.literature.value)
+    assert res.adaptation.value == pytest.approx(ev.combined.value - 84.0)
+    # weight says the cut was (-500 - 60 + AT)/0.9 (Hall & Chow 2011 form, betaTEF 0.10),
+    # with AT the Hall 2011 term for the first pass's cut (-560/0.9) over 84 days
+    at = 0.14 * (-560.0 / 0.9) * at_share_of_step(0, 84, 14.0)
+    assert res.intake_change_kcal == pytest.approx((-560.0 + at) / 0.9, rel=1e-12)
+    assert res.implied_intake.value == pytest.approx(2600.0 + res.intake_change_kcal)

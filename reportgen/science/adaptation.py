@@ -45,6 +45,8 @@ from dataclasses import dataclass
 from reportgen.results import Estimate
 from reportgen.science._checks import finite
 from reportgen.science.hall import HALL_2011, HallParams
+from reportgen.science.implied_intake import implied_intake as _implied
+from reportgen.science.implied_intake import implied_intake_change_kcal
 from reportgen.science.trend import Z80
 
 # Between-person spread of adaptation relative to its mean: Leibel et al. 1995 report the
@@ -411,3 +413,129 @@ def decompose_expenditure_change(
         metabolic=_interval(rem, rsd),
         activity_measured=measured,
     )
+
+
+def _sd(e: Estimate) -> float:
+    if e.low is None or e.high is None:
+        return 0.0
+    return (e.high - e.low) / (2.0 * Z80)
+
+
+@dataclass(frozen=True)
+class PhaseAdaptation:
+    """Everything said about a phase's expenditure against the client's baseline."""
+
+    evidence: AdaptationEvidence  # of the metabolic part (steps logged) or the whole
+    adaptation: Estimate  # combined: metabolic + activity (the whole when not measured)
+    change: ExpenditureChange  # observed change from the baseline in parts (data alone)
+    implied_intake: Estimate  # intake implied by weight [kcal/day]
+    logging_gap: Estimate  # logged minus implied intake [kcal/day]
+    intake_change_kcal: float  # cut implied by weight, used for the literature value
+
+
+def assess_phase_adaptation(
+    observed_tdee: Estimate,
+    expected_tdee: Estimate,
+    baseline_tdee_kcal: float,
+    baseline_tdee_se_kcal: float,
+    baseline_intake_kcal: float,
+    baseline_intake_se_kcal: float,
+    baseline_deficit_kcal: float,
+    phase_deficit: Estimate,
+    logged_intake_kcal: float | None,
+    logged_intake_se_kcal: float,
+    body_size_kcal: float,
+    first_day: float,
+    days: int,
+    activity: tuple[float, float] | None,
+    params: HallParams = HALL_2011,
+) -> PhaseAdaptation:
+    """Adaptation of one phase against the client's baseline, with its parts and the logging check.
+
+    Parameters
+    ----------
+    observed_tdee, expected_tdee : Estimate
+        The phase's observed TDEE (intake minus stored energy) and its expected TDEE
+        (baseline scaled to the phase's body size, thermic effect and tissue
+        turnover; its interval includes the baseline's own noise). [kcal/day]
+    baseline_tdee_kcal, baseline_tdee_se_kcal : float
+        The baseline's observed TDEE and its SE. [kcal/day]
+    baseline_intake_kcal, baseline_intake_se_kcal, baseline_deficit_kcal : float
+        The baseline's mean logged intake, its SE and its realised deficit. [kcal/day]
+    phase_deficit : Estimate
+        The phase's realised deficit (energy drawn from stores). [kcal/day]
+    logged_intake_kcal, logged_intake_se_kcal : float or None, float
+        The phase's mean logged intake and its SE. [kcal/day]
+    body_size_kcal : float
+        Change in expenditure from fat, lean and weight change alone
+        (:func:`body_size_change_kcal`). [kcal/day]
+    first_day, days : float, int
+        Days from the intake change to the window's start, and its length. [day]
+    activity : (mean, sd) or None
+        Change in step expenditure (:func:`reportgen.science.activity.step_energy_change_kcal`).
+
+    Returns
+    -------
+    PhaseAdaptation
+
+    Notes
+    -----
+    1. The cut is taken from the weights, not the log: the intake change implied
+       by weight (Hall & Chow 2011) with the literature adaptation, iterated once.
+    2. The literature expectation for that cut and window
+       (:func:`literature_adaptation_kcal`).
+    3. The data: observed minus expected, less the change in step expenditure when
+       steps are logged (so that fewer steps are not read as metabolism).
+    4. :func:`combine_adaptation` with a logging-drift component sized by
+       :func:`logging_drift_sd_kcal`.
+    5. The combined adaptation adds the activity part back.
+    """
+    if not (observed_tdee.known and expected_tdee.known and phase_deficit.known):
+        raise ValueError("observed, expected TDEE and the phase deficit are needed")
+    assert observed_tdee.value is not None and expected_tdee.value is not None
+    assert phase_deficit.value is not None
+    d_def = phase_deficit.value - baseline_deficit_kcal
+    d_def_se = math.hypot(_sd(phase_deficit), 0.0)
+    cut = implied_intake_change_kcal(d_def, body_size_kcal, 0.0, 0.0, params)
+    lit_mean, lit_sd = literature_adaptation_kcal(min(cut, 0.0), first_day, days, params)
+    cut = implied_intake_change_kcal(d_def, body_size_kcal, lit_mean, 0.0, params)
+    lit_mean, lit_sd = literature_adaptation_kcal(min(cut, 0.0), first_day, days, params)
+
+    obs_sd, exp_sd = _sd(observed_tdee), _sd(expected_tdee)
+    total = observed_tdee.value - baseline_tdee_kcal
+    total_se = math.hypot(obs_sd, baseline_tdee_se_kcal)
+    body = expected_tdee.value - baseline_tdee_kcal
+    body_sd = math.sqrt(max(exp_sd * exp_sd - baseline_tdee_se_kcal**2, 0.0))
+    act_m, act_sd = activity if activity is not None else (None, None)
+    change = decompose_expenditure_change(total, total_se, body, body_sd, act_m, act_sd)
+    rem = change.metabolic
+    assert rem.value is not None
+    rem_sd = math.sqrt(obs_sd * obs_sd + exp_sd * exp_sd + (act_sd or 0.0) ** 2)
+    drift = logging_drift_sd_kcal(logged_intake_kcal) if logged_intake_kcal else 0.0
+    ev = combine_adaptation(rem.value, max(rem_sd, 1.0), lit_mean, lit_sd, drift)
+    comb = ev.combined
+    assert comb.value is not None and comb.low is not None and comb.high is not None
+    if activity is not None:
+        a_m, a_sd = activity
+        lo_h, hi_h = comb.value - comb.low, comb.high - comb.value
+        adaptation = Estimate(
+            comb.value + a_m,
+            comb.value + a_m - math.hypot(lo_h, Z80 * a_sd),
+            comb.value + a_m + math.hypot(hi_h, Z80 * a_sd),
+        )
+    else:
+        adaptation = comb
+    imp = _implied(
+        baseline_intake_kcal,
+        baseline_intake_se_kcal,
+        d_def,
+        d_def_se,
+        body_size_kcal,
+        lit_mean,
+        lit_sd,
+        logged_intake_kcal,
+        logged_intake_se_kcal,
+        0.0,
+        params,
+    )
+    return PhaseAdaptation(ev, adaptation, change, imp.implied, imp.gap, cut)
