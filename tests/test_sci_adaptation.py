@@ -250,7 +250,10 @@ def test_phase_assessment_reads_fewer_steps_as_activity() -> None:
     assert min(-116.0, ev.literature.value) <= ev.combined.value <= max(-116.0, ev.literature.value)
     assert res.adaptation.value == pytest.approx(ev.combined.value - 84.0)
     # weight says the cut was (-500 - 60 + AT)/0.9 (Hall & Chow 2011 form, betaTEF 0.10),
-    # with AT the Hall 2011 term for the first pass's cut (-560/0.9) over 84 days
-    at = 0.14 * (-560.0 / 0.9) * at_share_of_step(0, 84, 14.0)
-    assert res.intake_change_kcal == pytest.approx((-560.0 + at) / 0.9, rel=1e-12)
+    # with AT the Hall 2011 term for the cut, two passes from AT = 0 over 84 days
+    share = at_share_of_step(0, 84, 14.0)
+    cut = -560.0 / 0.9
+    for _ in range(3):
+        cut = (-560.0 + 0.14 * cut * share) / 0.9
+    assert res.intake_change_kcal == pytest.approx(cut, rel=1e-12)
     assert res.implied_intake.value == pytest.approx(2600.0 + res.intake_change_kcal)

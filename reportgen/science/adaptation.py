@@ -481,7 +481,8 @@ def assess_phase_adaptation(
     Notes
     -----
     1. The cut is taken from the weights, not the log: the intake change implied
-       by weight (Hall & Chow 2011) with the literature adaptation, iterated once.
+       by weight (Hall & Chow 2011) with the literature adaptation for that cut
+       (two fixed-point passes from AT = 0).
     2. The literature expectation for that cut and window
        (:func:`literature_adaptation_kcal`).
     3. The data: observed minus expected, less the change in step expenditure when
@@ -538,4 +539,7 @@ def assess_phase_adaptation(
         0.0,
         params,
     )
-    return PhaseAdaptation(ev, adaptation, change, imp.implied, imp.gap, cut)
+    assert imp.implied.value is not None
+    return PhaseAdaptation(
+        ev, adaptation, change, imp.implied, imp.gap, imp.implied.value - baseline_intake_kcal
+    )
