@@ -253,7 +253,7 @@ def test_phase_assessment_reads_fewer_steps_as_activity() -> None:
     # with AT the Hall 2011 term for the cut, two passes from AT = 0 over 84 days
     share = at_share_of_step(0, 84, 14.0)
     cut = -560.0 / 0.9
-    for _ in range(3):
+    for _ in range(2):
         cut = (-560.0 + 0.14 * cut * share) / 0.9
     assert res.intake_change_kcal == pytest.approx(cut, rel=1e-12)
     assert res.implied_intake.value == pytest.approx(2600.0 + res.intake_change_kcal)
