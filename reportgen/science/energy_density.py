@@ -89,7 +89,7 @@ def energy_density_with_spread(
 
     Notes
     -----
-    Check (science notes table 4.3, computed there from the same equations):
+    Check (computed from Hall 2007's curve with Hall 2008's densities):
     F0 20 kg, dBW -10 kg gives dF -6.166, dL -3.834 and 6518 kcal/kg.
     """
     f = _req("fat_mass_kg", fat_mass_kg)
