@@ -49,7 +49,8 @@ def ar1_mean_variance_factor(phi: float, n: float) -> float:
         raise ValueError(f"n must be >= 1, got {n!r}")
     if phi == 0.0:
         return 1.0
-    return (1 + phi) / (1 - phi) - 2 * phi * (1 - phi**n) / (n * (1 - phi) ** 2)
+    p, m = float(phi), float(n)
+    return (1 + p) / (1 - p) - 2 * p * (1 - math.pow(p, m)) / (m * (1 - p) ** 2)
 
 
 def widen_level_variance(
