@@ -71,6 +71,11 @@ LOGGING_DRIFT_SD_FRACTION = 0.15
 # deficit is more likely logging or data (replaces a fixed share of TDEE).  Judgment: 2.5 SD
 # is outside the 99 % range of the literature spread.
 IMPLAUSIBLE_Z = 2.5
+# Without logged steps the data's "adaptation" also holds any change in activity, which
+# the literature AT term does not: spontaneous activity often falls during a diet (Leibel
+# et al. 1995: non-resting expenditure fell about as much as resting).  SD added to the
+# literature expectation when steps are not logged (judgment).
+UNMEASURED_ACTIVITY_SD_KCAL = 60.0
 NOT_DISTINGUISHABLE = "not distinguishable from no adaptation"
 
 
@@ -489,7 +494,9 @@ def assess_phase_adaptation(
        steps are logged (so that fewer steps are not read as metabolism).
     4. :func:`combine_adaptation` with a logging-drift component sized by
        :func:`logging_drift_sd_kcal`.
-    5. The combined adaptation adds the activity part back.
+    5. The combined adaptation adds the activity part back.  Without logged steps
+       the literature value gets an extra 60 kcal/day of spread for activity
+       changes it does not describe (judgment).
     """
     if not (observed_tdee.known and expected_tdee.known and phase_deficit.known):
         raise ValueError("observed, expected TDEE and the phase deficit are needed")
@@ -501,6 +508,8 @@ def assess_phase_adaptation(
     lit_mean, lit_sd = literature_adaptation_kcal(min(cut, 0.0), first_day, days, params)
     cut = implied_intake_change_kcal(d_def, body_size_kcal, lit_mean, 0.0, params)
     lit_mean, lit_sd = literature_adaptation_kcal(min(cut, 0.0), first_day, days, params)
+    if activity is None:
+        lit_sd = math.hypot(lit_sd, UNMEASURED_ACTIVITY_SD_KCAL)
 
     obs_sd, exp_sd = _sd(observed_tdee), _sd(expected_tdee)
     total = observed_tdee.value - baseline_tdee_kcal
