@@ -47,7 +47,8 @@ PHASE_NOTE_CODES: tuple[str, ...] = (
     "composition-change-from-skinfolds",  # fat/lean change from two skinfold sessions
     "composition-change-from-forbes",  # fat/lean change from the Forbes partition
 )
-# ClientAnalysis.notes ("skinfold-session-unusable" carries ":<ISO date>"):
+# ClientAnalysis.notes ("skinfold-session-unusable" carries ":<ISO date>:<reason>",
+# "resting-equations-unavailable" ":<reason>"; reasons from science.errors.NOT_COMPUTABLE_REASONS):
 ANALYSIS_NOTE_CODES: tuple[str, ...] = (
     "too-few-weigh-ins",
     "bodycomp-needs-sex-age-weight",

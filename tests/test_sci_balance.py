@@ -183,3 +183,63 @@ def test_intake_mean_se() -> None:
     y = 2000 + rng.normal(0, 400, 20)
     # fewer logged days of a varying intake: larger than the logging part alone
     assert intake_mean_se_kcal(y, 40) > 0.1 * float(y.mean()) / math.sqrt(20)
+
+
+def test_expenditure_path_matches_statsmodels_kalman_smoother() -> None:
+    """Reference library: statsmodels' Kalman smoother on the same state-space model.
+
+    State [W, E]: W' = W - E/rho + I/rho + u, E' = E + v, y = W + e, with the
+    documented variances (logging noise 10 % of intake, 0.05 kg weight process noise,
+    the mean and SD of the logged intakes on unlogged days, a glycogen-and-water shift
+    after a phase start, weigh-in variance r / robust weight) and the same known
+    initial state.  statsmodels' smoother is an independent implementation, so the
+    paths agree to rounding.
+    """
+    from reportgen.science.balance import (
+        EXPENDITURE_RW_SD_KCAL,
+        INTAKE_LOG_NOISE_FRACTION,
+        WEIGHT_PROCESS_SD_KG,
+    )
+    from reportgen.science.rates import SHIFT_PRIOR_SD_KG, SHIFT_TAU_DAYS
+
+    kalman_smoother = pytest.importorskip("statsmodels.tsa.statespace.kalman_smoother")
+    rng = np.random.default_rng(11)
+    n, rho, noise_sd, shift_day = 100, 7200.0, 0.4, 40
+    weight = _line(n, -0.06) + rng.normal(0, noise_sd, n)
+    weight[1:][rng.random(n - 1) < 0.25] = np.nan
+    intake = 2000 + rng.normal(0, 250, n)
+    intake[rng.random(n) < 0.2] = np.nan
+    robust = np.where(np.isfinite(weight), 1.0, np.nan)
+    robust[[5, 60]] = 0.2  # two down-weighted spikes
+    ours = expenditure_path(weight, intake, rho, noise_sd, robust, shift_days=(shift_day,))
+
+    logged = intake[np.isfinite(intake)]
+    filled = np.where(np.isfinite(intake), intake, logged.mean())
+    intake_sd = np.where(np.isfinite(intake), INTAKE_LOG_NOISE_FRACTION * intake, logged.std())
+    weight_var = (intake_sd / rho) ** 2 + WEIGHT_PROCESS_SD_KG**2
+    after_shift = np.arange(n) - shift_day
+    in_shift = (after_shift >= 0) & (after_shift < 5 * SHIFT_TAU_DAYS)
+    weight_var += np.where(
+        in_shift,
+        SHIFT_PRIOR_SD_KG**2
+        * (1 - math.exp(-1 / SHIFT_TAU_DAYS))
+        * np.exp(-after_shift / SHIFT_TAU_DAYS),
+        0.0,
+    )
+    smoother = kalman_smoother.KalmanSmoother(k_endog=1, k_states=2, k_posdef=2)
+    smoother.bind(weight.reshape(1, n))
+    smoother["design"] = np.array([[1.0, 0.0]])
+    smoother["obs_cov"] = (noise_sd**2 / np.nan_to_num(robust, nan=1.0)).reshape(1, 1, n)
+    smoother["transition"] = np.array([[1.0, -1.0 / rho], [0.0, 1.0]])
+    smoother["state_intercept"] = np.vstack([filled / rho, np.zeros(n)])
+    smoother["selection"] = np.eye(2)
+    state_cov = np.zeros((2, 2, n))
+    state_cov[0, 0] = weight_var
+    state_cov[1, 1] = EXPENDITURE_RW_SD_KCAL**2
+    smoother["state_cov"] = state_cov
+    first_weight = float(weight[np.isfinite(weight)][0])
+    smoother.initialize_known(np.array([first_weight, logged.mean()]), np.diag([4.0, 1000.0**2]))
+    reference = smoother.smooth()
+    assert np.allclose(ours.tdee_kcal, reference.smoothed_state[1], rtol=0, atol=1e-6)
+    assert np.allclose(ours.weight_kg, reference.smoothed_state[0], rtol=0, atol=1e-9)
+    assert np.allclose(ours.sd_kcal, np.sqrt(reference.smoothed_state_cov[1, 1]), rtol=0, atol=1e-6)

@@ -55,15 +55,15 @@ def test_first_weeks_baseline_does_not_count_glycogen_loss_as_tissue() -> None:
 
 def test_start_of_data_step_is_fitted_only_for_an_intake_change() -> None:
     """A first phase at maintenance gets no glycogen step at the start of the data."""
-    from reportgen.analysis import _start_shift_index
+    from reportgen.analysis.context import start_shift_index
 
     sim = simulated(5)
     log = sim.record.log
     first = sorted(sim.record.phases, key=lambda p: p.start)[0]
     assert first.kind == "maintenance"
-    assert _start_shift_index(sim.record.phases, log, sim.record.phases[-1].start) is None
+    assert start_shift_index(sim.record.phases, log, sim.record.phases[-1].start) is None
     nb = simulated(5, maintenance_first=False)
-    assert _start_shift_index(nb.record.phases, nb.record.log, nb.record.phases[-1].start) == 0
+    assert start_shift_index(nb.record.phases, nb.record.log, nb.record.phases[-1].start) == 0
 
 
 def test_short_phase_after_an_intake_change_has_no_expenditure_estimate() -> None:

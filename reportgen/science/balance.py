@@ -34,6 +34,7 @@ from reportgen.science.composition import (
     energy_density_kcal_per_kg,
     partition_weight_change_hall,
 )
+from reportgen.science.kalman import InitialState, TwoStateModel, kalman_smoother
 from reportgen.science.rates import (
     SHIFT_PRIOR_SD_KG,
     SHIFT_TAU_DAYS,
@@ -416,17 +417,8 @@ def expenditure_path(
     mean_i = float(logged.mean()) if logged.size else 2000.0
     sd_i = float(logged.std()) if logged.size > 1 else 500.0
     r = max(noise_sd_kg, 0.05) ** 2
-    qe = rw_sd_kcal**2
     wts = np.ones(n) if robust_weights is None else np.nan_to_num(robust_weights, nan=1.0)
     first = np.nonzero(np.isfinite(w))[0]
-    a0 = float(w[first[0]]) if first.size else 70.0
-    a1 = mean_i
-    p00, p01, p11 = 4.0, 0.0, 1000.0**2
-    fa0 = [0.0] * n
-    fa1 = [0.0] * n
-    f00 = [0.0] * n
-    f01 = [0.0] * n
-    f11 = [0.0] * n
     u = [0.0] * n
     qw = [0.0] * n
     for t in range(n):
@@ -444,58 +436,22 @@ def expenditure_path(
                 * (1 - math.exp(-1 / SHIFT_TAU_DAYS))
                 * math.exp(-(d - k) / SHIFT_TAU_DAYS)
             )
-    inv = 1.0 / rho
-    for t in range(n):
-        yt = w[t]
-        if yt == yt and wts[t] > 0:
-            f = p00 + r / wts[t]
-            v = yt - a0
-            k0 = p00 / f
-            k1 = p01 / f
-            a0 += k0 * v
-            a1 += k1 * v
-            p11 -= k1 * p01
-            p01 -= k0 * p01
-            p00 -= k0 * p00
-        fa0[t], fa1[t], f00[t], f01[t], f11[t] = a0, a1, p00, p01, p11
-        # predict with T = [[1, -1/rho], [0, 1]]
-        a0 = a0 + u[t] - inv * a1
-        n00 = p00 - 2.0 * inv * p01 + inv * inv * p11 + qw[t]
-        n01 = p01 - inv * p11
-        p00, p01, p11 = n00, n01, p11 + qe
-    s_e = [0.0] * n
-    s_v = [0.0] * n
-    s_w = [0.0] * n
-    sa0, sa1 = fa0[-1], fa1[-1]
-    sp00, sp01, sp11 = f00[-1], f01[-1], f11[-1]
-    s_w[-1], s_e[-1], s_v[-1] = sa0, sa1, sp11
-    for t in range(n - 2, -1, -1):
-        c00, c01, c11 = f00[t], f01[t], f11[t]
-        q00 = c00 - 2.0 * inv * c01 + inv * inv * c11 + qw[t]
-        q01 = c01 - inv * c11
-        q11 = c11 + qe
-        det = q00 * q11 - q01 * q01
-        i00, i01, i11 = q11 / det, -q01 / det, q00 / det
-        # P T' = [[c00 - inv c01, c01], [c01 - inv c11, c11]]
-        m00, m01 = c00 - inv * c01, c01
-        m10, m11 = c01 - inv * c11, c11
-        j00 = m00 * i00 + m01 * i01
-        j01 = m00 * i01 + m01 * i11
-        j10 = m10 * i00 + m11 * i01
-        j11 = m10 * i01 + m11 * i11
-        d0 = sa0 - (fa0[t] + u[t] - inv * fa1[t])
-        d1 = sa1 - fa1[t]
-        sa0 = fa0[t] + j00 * d0 + j01 * d1
-        sa1 = fa1[t] + j10 * d0 + j11 * d1
-        e00, e01, e11 = sp00 - q00, sp01 - q01, sp11 - q11
-        t00 = j00 * e00 + j01 * e01
-        t01 = j00 * e01 + j01 * e11
-        t10 = j10 * e00 + j11 * e01
-        t11 = j10 * e01 + j11 * e11
-        sp00 = c00 + t00 * j00 + t01 * j01
-        sp01 = c01 + t00 * j10 + t01 * j11
-        sp11 = c11 + t10 * j10 + t11 * j11
-        s_w[t], s_e[t], s_v[t] = sa0, sa1, sp11
+    # weigh-ins with a zero robust weight are left out; the others have variance r / weight
+    weight_list, weight_of = w.tolist(), wts.tolist()
+    used = [v if wt > 0 else math.nan for v, wt in zip(weight_list, weight_of, strict=True)]
+    obs_var = [r / wt if wt > 0 else math.inf for wt in weight_of]
+    # W_{t+1} = W_t - E_t / rho + I_t / rho: coupling -1/rho, input I_t / rho
+    model = TwoStateModel(coupling=-(1.0 / rho), inputs=u, first_var=qw, second_var=rw_sd_kcal**2)
+    start = InitialState(
+        first=float(w[first[0]]) if first.size else 70.0,
+        second=mean_i,
+        var_first=4.0,
+        cov=0.0,
+        var_second=1000.0**2,
+    )
+    states = kalman_smoother(used, obs_var, model, start).smoothed
+    assert states is not None
+    s_w, s_e, s_v = states.first, states.second, states.second_var
     return ExpenditurePath(
         tdee_kcal=np.asarray(s_e),
         sd_kcal=np.sqrt(np.maximum(np.asarray(s_v), 0.0)),

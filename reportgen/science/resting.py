@@ -24,6 +24,7 @@ from __future__ import annotations
 from reportgen.io.model import Sex
 from reportgen.results import MethodUsed
 from reportgen.science._checks import finite
+from reportgen.science.errors import NotComputable
 
 # Mifflin et al. 1990: 10 W + 6.25 H - 5 A + 5 (men) / - 161 (women) (published, abstract).
 MSJ = (10.0, 6.25, 5.0)
@@ -121,6 +122,11 @@ def _whs(sex: object, weight_kg: float, height_cm: float, age_years: float) -> S
     s = _sex(sex)
     _positive("weight_kg", weight_kg)
     _positive("height_cm", height_cm)
+    if age_years == 0:
+        # valid data (an infant) but outside every equation here
+        raise NotComputable(
+            "age-outside-equation", "the resting equations are not defined at age 0 years"
+        )
     _positive("age_years", age_years)
     return s
 
@@ -406,6 +412,14 @@ def resting_kcal_all(
     dict of str to float
         Code -> resting expenditure [kcal/day], in the order of
         :data:`RESTING_METHODS`.  "schofield-1985" is omitted under 18.
+
+    Raises
+    ------
+    NotComputable
+        Reason "age-outside-equation" at age 0.
+    ValueError
+        For an unknown sex or a weight, height or lean mass that is not a positive
+        number.
     """
     out = {
         "mifflin-st-jeor": resting_kcal_mifflin_st_jeor(sex, weight_kg, height_cm, age_years),

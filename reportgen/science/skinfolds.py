@@ -57,6 +57,7 @@ from reportgen.science.density import (
     body_fat_se_pct,
     density_plausible,
 )
+from reportgen.science.errors import NotComputable
 from reportgen.science.units import bmi_kg_m2
 
 # ---------------------------------------------------------------------------
@@ -529,10 +530,12 @@ def estimate_body_fat(
 
     Raises
     ------
+    NotComputable
+        Reason "skinfold-sites-missing" when the sites needed (or, with "auto",
+        any equation's sites) were not measured (the message names them), or
+        "skinfold-no-density" for a sum far outside any equation's range.
     ValueError
-        For an unknown sex, equation or conversion, a non-positive skinfold,
-        or when the sites needed (or, with "auto", any equation's sites) are
-        missing; the message names them.
+        For an unknown sex, equation or conversion, or a non-positive skinfold.
     """
     sex = _sex_check(sex)
     _check_age(age_years)
@@ -550,17 +553,19 @@ def estimate_body_fat(
         if chosen is None:
             three = SITES_3_MEN if sex == "male" else SITES_3_WOMEN
             have = ", ".join(sorted(present)) or "none"
-            raise ValueError(
+            raise NotComputable(
+                "skinfold-sites-missing",
                 f"no skinfold equation fits the sites measured ({have}); need the 3-site set "
                 f"({', '.join(three)}), all seven ({', '.join(SITES_7)}) or the 4-site set "
-                f"({', '.join(SITES_4_DW)})"
+                f"({', '.join(SITES_4_DW)})",
             )
         equation = chosen
     needed = _required_sites(equation, sex)
     missing = [s for s in needed if s not in present]
     if missing:
-        raise ValueError(
-            f"{equation} needs skinfold sites that were not measured: {', '.join(missing)}"
+        raise NotComputable(
+            "skinfold-sites-missing",
+            f"{equation} needs skinfold sites that were not measured: {', '.join(missing)}",
         )
     total = math.fsum(present[s] for s in needed)
     warnings: list[str] = []
@@ -624,9 +629,10 @@ def estimate_body_fat_jackson_pollock_7_log(
     present = _present(sites_mm)
     missing = [s for s in SITES_7 if s not in present]
     if missing:
-        raise ValueError(
+        raise NotComputable(
+            "skinfold-sites-missing",
             f"jackson-pollock-7-log needs skinfold sites that were not measured: "
-            f"{', '.join(missing)}"
+            f"{', '.join(missing)}",
         )
     total = math.fsum(present[s] for s in SITES_7)
     density = body_density_jackson_pollock_7_log(total, age_years)
@@ -656,7 +662,10 @@ def _finish(
     reference: str,
 ) -> BodyFatEstimate:
     if density <= 0:  # only for absurd sums far outside any published range
-        raise ValueError(f"{equation}: sum of skinfolds {total} mm gives no usable body density")
+        raise NotComputable(
+            "skinfold-no-density",
+            f"{equation}: sum of skinfolds {total} mm gives no usable body density",
+        )
     if not density_plausible(density):
         warnings.append("density-implausible")
     bf = body_fat_pct(density, conversion)

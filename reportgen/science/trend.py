@@ -29,6 +29,7 @@ import numpy as np
 
 from reportgen.io.model import DateArray, FloatArray
 from reportgen.results import TrendSeries
+from reportgen.science.kalman import InitialState, TwoStateModel, kalman_smoother
 
 Z80 = 1.2815515655446004  # two-sided 80 % normal quantile, scipy.stats.norm.ppf(0.9)
 
@@ -44,6 +45,7 @@ SLOPE_RATIOS: tuple[float, ...] = (2e-6, 5e-5)
 ROBUST_C = 2.5
 _DIFFUSE = 1e6  # variance of the diffuse initial level, in units of r
 _DIFFUSE_SLOPE = 1e4  # variance of the initial slope, in units of r
+_DIFFUSE_START = InitialState(0.0, 0.0, _DIFFUSE, 0.0, _DIFFUSE_SLOPE)
 
 
 @dataclass(frozen=True)
@@ -83,90 +85,23 @@ def _filter(
     ``y`` holds NaN on missing days; ``h`` is the observation-variance multiplier of
     each day (1 normally, larger for down-weighted spikes).  Returns the sum of
     v^2/F, the sum of log F over the likelihood terms, their count, and the smoothed
-    (level, level var, slope, slope var) when ``smooth``.  Scalar arithmetic on
-    Python floats is faster than numpy for 2x2 matrices.
+    (level, level var, slope, slope var) when ``smooth``.  The level is the first
+    state of :func:`reportgen.science.kalman.kalman_smoother` with coupling 1 (the
+    slope moves it) and no input; the first two weigh-ins only initialise the
+    diffuse states.
     """
     n = len(y)
-    a0 = a1 = 0.0
-    p00, p01, p11 = _DIFFUSE, 0.0, _DIFFUSE_SLOPE
-    ssq = 0.0
-    slogf = 0.0
-    m = 0
-    seen = 0
-    if smooth:
-        fa0 = [0.0] * n
-        fa1 = [0.0] * n
-        f00 = [0.0] * n
-        f01 = [0.0] * n
-        f11 = [0.0] * n
-    for t in range(n):
-        yt = y[t]
-        if yt == yt:  # observed (NaN != NaN)
-            f = p00 + h[t]
-            v = yt - a0
-            k0 = p00 / f
-            k1 = p01 / f
-            a0 += k0 * v
-            a1 += k1 * v
-            p11 -= k1 * p01
-            p01 -= k0 * p01
-            p00 -= k0 * p00
-            seen += 1
-            if seen > 2:  # the first two observations only initialise the diffuse states
-                ssq += v * v / f
-                slogf += math.log(f)
-                m += 1
-        if smooth:
-            fa0[t] = a0
-            fa1[t] = a1
-            f00[t] = p00
-            f01[t] = p01
-            f11[t] = p11
-        # predict: T = [[1, 1], [0, 1]], Q = diag(ql, qs)
-        a0 += a1
-        p00 = p00 + 2.0 * p01 + p11 + ql
-        p01 = p01 + p11
-        p11 = p11 + qs
-    if not smooth:
-        return ssq, slogf, m, None
-    # Rauch-Tung-Striebel smoother, backwards.
-    s0 = [0.0] * n
-    s1 = [0.0] * n
-    v00 = [0.0] * n
-    v11 = [0.0] * n
-    sa0, sa1 = fa0[n - 1], fa1[n - 1]
-    sp00, sp01, sp11 = f00[n - 1], f01[n - 1], f11[n - 1]
-    s0[n - 1], s1[n - 1], v00[n - 1], v11[n - 1] = sa0, sa1, sp00, sp11
-    for t in range(n - 2, -1, -1):
-        c00, c01, c11 = f00[t], f01[t], f11[t]
-        # predicted covariance of t+1 given t
-        q00 = c00 + 2.0 * c01 + c11 + ql
-        q01 = c01 + c11
-        q11 = c11 + qs
-        det = q00 * q11 - q01 * q01
-        i00, i01, i11 = q11 / det, -q01 / det, q00 / det
-        # J = P T' Pred^-1, with P T' = [[c00 + c01, c01], [c01 + c11, c11]]
-        m00, m01 = c00 + c01, c01
-        m10, m11 = c01 + c11, c11
-        j00 = m00 * i00 + m01 * i01
-        j01 = m00 * i01 + m01 * i11
-        j10 = m10 * i00 + m11 * i01
-        j11 = m10 * i01 + m11 * i11
-        d0 = sa0 - (fa0[t] + fa1[t])
-        d1 = sa1 - fa1[t]
-        sa0 = fa0[t] + j00 * d0 + j01 * d1
-        sa1 = fa1[t] + j10 * d0 + j11 * d1
-        e00, e01, e11 = sp00 - q00, sp01 - q01, sp11 - q11
-        # P_s = P + J (P_s' - Pred) J'
-        t00 = j00 * e00 + j01 * e01
-        t01 = j00 * e01 + j01 * e11
-        t10 = j10 * e00 + j11 * e01
-        t11 = j10 * e01 + j11 * e11
-        sp00 = c00 + t00 * j00 + t01 * j01
-        sp01 = c01 + t00 * j10 + t01 * j11
-        sp11 = c11 + t10 * j10 + t11 * j11
-        s0[t], s1[t], v00[t], v11[t] = sa0, sa1, sp00, sp11
-    return ssq, slogf, m, (s0, v00, s1, v11)
+    model = TwoStateModel(coupling=1.0, inputs=[0.0] * n, first_var=[ql] * n, second_var=qs)
+    out = kalman_smoother(y, h, model, _DIFFUSE_START, smooth=smooth, diffuse_observations=2)
+    if out.smoothed is None:
+        return out.sum_sq, out.sum_log_f, out.terms, None
+    states = out.smoothed
+    return (
+        out.sum_sq,
+        out.sum_log_f,
+        out.terms,
+        (states.first, states.first_var, states.second, states.second_var),
+    )
 
 
 def _fit(y: list[float], h: list[float]) -> tuple[float, float, float]:
