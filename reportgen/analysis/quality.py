@@ -87,9 +87,7 @@ def flags(
     log = ctx.log
     client = ctx.record.client
     intake_start = max(log.n_days - FLAG_INTAKE_DAYS, 0)
-    latest_adaptation_pct = next(
-        (p.adaptation_pct.value for p in reversed(phases) if p.adaptation_pct.known), None
-    )
+    latest = next((p for p in reversed(phases) if p.adaptation_data_kcal.known), None)
     return safety_flags(
         FlagInputs(
             sex=client.sex,
@@ -100,7 +98,11 @@ def flags(
             mean_intake_kcal=finite_mean(log.intake_kcal[intake_start:]) if log.n_days else None,
             weekly_rates_pct=weekly_rates_pct(trend.fit, log.n_days),
             bodyfat_pct=composition.latest_bodyfat_pct,
-            adaptation_pct=latest_adaptation_pct,
+            adaptation_implausible=latest is not None and latest.adaptation_implausible,
+            adaptation_data_kcal=None if latest is None else latest.adaptation_data_kcal.value,
+            adaptation_typical_kcal=(
+                None if latest is None else latest.adaptation_typical_kcal.value
+            ),
         )
     )
 

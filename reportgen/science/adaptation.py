@@ -58,9 +58,12 @@ BETWEEN_PERSON_CV = 0.6
 # Hall model (from memory) gives for that cut.  A factor of two either way as 80 % range is
 # ln 2 / 1.28 = 0.54 on the log scale; as a relative SD we take 0.5 (judgment).
 COEFFICIENT_CV = 0.5
-# Floor for the spread: a small cut still leaves room for changes in spontaneous activity
-# (Leibel 1995: non-resting expenditure fell as much as resting).  Judgment.
-LITERATURE_SD_FLOOR_KCAL = 40.0
+# Absolute between-person spread: Leibel et al. 1995 give SDs of 3-5 kcal/kg FFM/day for
+# the fall in TEE after >= 10 % loss, i.e. 165-275 kcal/day at 55 kg FFM (published SDs,
+# kcal computed here); an 8-16 week moderate diet loses about a third to half of that
+# weight, so we take 90 kcal/day (judgment: linear scaling with the loss).  Non-resting
+# expenditure fell as much as resting in that study, so this includes activity.
+LITERATURE_SD_FLOOR_KCAL = 90.0
 # Logging drift: self-reported intake is commonly 20-50 % below measured expenditure and the
 # gap can change during a diet (Lichtman et al. 1992; Schoeller 1995, Metabolism 44 Suppl 2:
 # 18-22).  Prior probability that a client's logging changed when the diet started, and the
@@ -131,8 +134,9 @@ def literature_adaptation_kcal(
     Hall et al. 2011's AT term after a step dEI: AT(t) = betaAT dEI (1 - exp(-t/tauAT)).
     The spread combines the between-person SD of Leibel et al. 1995 (SD/mean
     0.5-0.63) with the uncertainty of betaAT itself (Müller et al. 2015 measured
-    about half of it), with a floor of 40 kcal/day for activity changes
-    (judgment).  Valid for intake changes of up to about 50 % of maintenance
+    about half of it), combined with an absolute spread of 90 kcal/day scaled
+    from Leibel et al. 1995's SDs (judgment).  Valid for intake changes of up to
+    about 50 % of maintenance
     over weeks to months; it says nothing about the years-long adaptation after
     extreme losses (Fothergill et al. 2016 report -499 +/- 207 kcal/day of
     residual *resting* expenditure six years on).
@@ -430,8 +434,8 @@ def _sd(e: Estimate) -> float:
 class PhaseAdaptation:
     """Everything said about a phase's expenditure against the client's baseline."""
 
-    evidence: AdaptationEvidence  # of the metabolic part (steps logged) or the whole
-    adaptation: Estimate  # combined: metabolic + activity (the whole when not measured)
+    evidence: AdaptationEvidence  # data alone, typical, combined (all: observed - expected)
+    adaptation: Estimate  # the combined estimate (= evidence.combined)
     change: ExpenditureChange  # observed change from the baseline in parts (data alone)
     implied_intake: Estimate  # intake implied by weight [kcal/day]
     logging_gap: Estimate  # logged minus implied intake [kcal/day]
@@ -490,13 +494,15 @@ def assess_phase_adaptation(
        (two fixed-point passes from AT = 0).
     2. The literature expectation for that cut and window
        (:func:`literature_adaptation_kcal`).
-    3. The data: observed minus expected, less the change in step expenditure when
-       steps are logged (so that fewer steps are not read as metabolism).
+    3. The data: observed minus expected.  The "typical" value on the same footing:
+       the literature's metabolic term plus the measured change in step
+       expenditure (so that fewer steps are not read as metabolism); without logged
+       steps the literature value gets an extra 60 kcal/day of spread for activity
+       changes it does not describe (judgment).
     4. :func:`combine_adaptation` with a logging-drift component sized by
        :func:`logging_drift_sd_kcal`.
-    5. The combined adaptation adds the activity part back.  Without logged steps
-       the literature value gets an extra 60 kcal/day of spread for activity
-       changes it does not describe (judgment).
+    5. The parts of the change from the baseline (data alone): body size,
+       activity, metabolic remainder (:func:`decompose_expenditure_change`).
     """
     if not (observed_tdee.known and expected_tdee.known and phase_deficit.known):
         raise ValueError("observed, expected TDEE and the phase deficit are needed")
@@ -518,23 +524,15 @@ def assess_phase_adaptation(
     body_sd = math.sqrt(max(exp_sd * exp_sd - baseline_tdee_se_kcal**2, 0.0))
     act_m, act_sd = activity if activity is not None else (None, None)
     change = decompose_expenditure_change(total, total_se, body, body_sd, act_m, act_sd)
-    rem = change.metabolic
-    assert rem.value is not None
-    rem_sd = math.sqrt(obs_sd * obs_sd + exp_sd * exp_sd + (act_sd or 0.0) ** 2)
+    # On the same footing as the data (observed - expected, which holds any activity
+    # change): the literature's metabolic term plus the measured change in steps.
+    typical_m = lit_mean + (act_m or 0.0)
+    typical_sd = math.hypot(lit_sd, act_sd or 0.0)
+    data = observed_tdee.value - expected_tdee.value
+    data_se = max(math.hypot(obs_sd, exp_sd), 1.0)
     drift = logging_drift_sd_kcal(logged_intake_kcal) if logged_intake_kcal else 0.0
-    ev = combine_adaptation(rem.value, max(rem_sd, 1.0), lit_mean, lit_sd, drift)
-    comb = ev.combined
-    assert comb.value is not None and comb.low is not None and comb.high is not None
-    if activity is not None:
-        a_m, a_sd = activity
-        lo_h, hi_h = comb.value - comb.low, comb.high - comb.value
-        adaptation = Estimate(
-            comb.value + a_m,
-            comb.value + a_m - math.hypot(lo_h, Z80 * a_sd),
-            comb.value + a_m + math.hypot(hi_h, Z80 * a_sd),
-        )
-    else:
-        adaptation = comb
+    ev = combine_adaptation(data, data_se, typical_m, typical_sd, drift)
+    adaptation = ev.combined
     imp = _implied(
         baseline_intake_kcal,
         baseline_intake_se_kcal,
