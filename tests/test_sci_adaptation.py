@@ -188,11 +188,11 @@ def test_energy_density_check_value_and_spread() -> None:
     assert rho == pytest.approx(6518.0, abs=1.0)
     # the lean share halved (resistance training, high protein) moves rho by
     # (rhoF - rhoL) x p / 2 = 7624 x 0.3834 / 2 (computed here), which the log-normal
-    # spread puts at its 10th percentile (factor of two at Z80 log-SDs, judgment)
+    # spread puts at its 5th percentile (factor of two at 1.645 log-SDs, judgment)
     p = 3.834 / 10.0
     half_rho = 9440 * (1 - p / 2) + 1816 * p / 2
     assert abs(half_rho - rho) == pytest.approx(7624 * p / 2, rel=1e-3)
-    assert sd == pytest.approx(7624 * p * math.log(2) / Z80, rel=1e-3)
+    assert sd == pytest.approx(7624 * p * math.log(2) / 1.6448536, rel=1e-3)
     _, sd_fat = energy_density_with_spread(20.0, -10.0, fat_se_kg=3.0)
     assert sd_fat > sd
 
@@ -201,7 +201,7 @@ def test_skinfold_partition_pulls_towards_measurement() -> None:
     # 80 kg 25 % -> 76 kg 22 % (science notes §4.5, computed there): dF -3.28, dL -0.72
     share, sd = lean_share_from_skinfolds(-3.28, -0.72, 0.5, 0.35)
     assert 0.18 < share < 0.35
-    assert sd < 0.35 * math.log(2) / Z80
+    assert sd < 0.35 * math.log(2) / 1.6448536
     assert lean_share_from_skinfolds(0.0, 0.0, 0.5, 0.3)[0] == 0.3
 
 

@@ -123,6 +123,33 @@ def _adapt_state(est: Estimate, pct: Estimate, implausible: bool) -> str:
     return "below" if est.value < 0 else "above"
 
 
+def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
+    """What the data say about each candidate cause of expenditure below expected."""
+    if not p.adaptation_typical_kcal.known or p.adaptation_typical_kcal.value is None:
+        return {}
+    out = {"adapt_typical": u.e(abs(p.adaptation_typical_kcal.value))}
+    act = p.activity_change_kcal
+    if act.known and act.value is not None:
+        out["adapt_activity"] = (
+            "fewer" if act.value < 0 else "more"
+        ) + f" steps, worth about {u.e(abs(act.value))}"
+    else:
+        out["adapt_activity"] = "not measured (steps not logged)"
+    gap = p.logging_gap_kcal
+    if gap.known and gap.value is not None and gap.low is not None and gap.high is not None:
+        if gap.high < 0:
+            out["adapt_logging"] = (
+                f"your weight suggests about {u.e(abs(gap.value))} more eaten than logged"
+            )
+        elif gap.low > 0:
+            out["adapt_logging"] = (
+                f"your weight suggests about {u.e(gap.value)} less eaten than logged"
+            )
+        else:
+            out["adapt_logging"] = "logged intake is in line with what your weight suggests"
+    return out
+
+
 def _phase_row(u: Units, p: PhaseResult) -> dict[str, str]:
     def est(e: Estimate, kind: str) -> str:
         return u.fmt(e.value, kind, unit=False) if e.known else "–"
@@ -254,6 +281,11 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "bf_last_date": u.d(a.bodycomp[-1].date) if a.bodycomp else "",
         "adapt_state": "unknown",
         "adapt_abs": "",
+        # "expenditure below expected" and its three candidate causes (empty when the
+        # client has no own baseline to compare with)
+        "adapt_typical": "",
+        "adapt_activity": "",
+        "adapt_logging": "",
         "adapt_large": False,
         "signals": [_signal_view(u, s) for s in a.signals],
         "notable_signals": [_signal_view(u, s) for s in a.signals if s.size in SIGNAL_NOTABLE],
@@ -274,6 +306,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
             story["adapt_abs"] = u.e(abs(ph.adaptation_kcal.value))
         pct = ph.adaptation_pct.value
         story["adapt_large"] = bool(pct is not None and abs(pct) >= ADAPT_LARGE_PCT)
+        story.update(_adapt_causes(u, ph))
     pr = a.projection
     if pr is not None and len(pr.weight_kg):
         story["projection_end"] = u.w(float(pr.weight_kg[-1]))

@@ -34,6 +34,7 @@ from reportgen.science.composition import (
     energy_density_kcal_per_kg,
     partition_weight_change_hall,
 )
+from reportgen.science.energy_density import LEAN_SHARE_LOG_SD, energy_density_with_spread
 from reportgen.science.kalman import InitialState, TwoStateModel, kalman_smoother
 from reportgen.science.rates import (
     SHIFT_PRIOR_SD_KG,
@@ -199,6 +200,7 @@ def window_balance(
     robust_weights: FloatArray | None = None,
     noise: NoiseModel | None = None,
     rate: WindowRate | None = None,
+    lean_share_log_sd: float = LEAN_SHARE_LOG_SD,
 ) -> WindowBalance:
     """Realised deficit and observed TDEE over one window, with 80 % intervals.
 
@@ -238,9 +240,11 @@ def window_balance(
     glycogen-and-water shift inside the window (1052 kcal/kg) when the rate
     comes from :func:`reportgen.science.rates.segment_rate`; TDEE = mean intake +
     deficit.
-    Var(deficit) = rho^2 SE(rate)^2 + rate^2 s_rho^2 with s_rho half the spread of
-    rho over F +/- SE(F) (judgment: the notes' bracket [Hall rho, 7700] would assume
-    pure adipose loss, which Hall 2008 shows is wrong for F < 30 kg);
+    Var(deficit) = rho^2 SE(rate)^2 + rate^2 s_rho^2 with s_rho combining half the
+    spread of rho over F +/- SE(F) and the between-person spread of the fat/lean
+    partition around Forbes' curve (``lean_share_log_sd``, log-SD of the lean share;
+    :func:`reportgen.science.energy_density.energy_density_with_spread`; 0 switches
+    it off, e.g. when measured composition has pinned the partition);
     Var(TDEE) = Var(deficit) + s_I^2 / n_I.  Intervals are +/- 1.2816 SD (80 %).
     """
     w = np.asarray(weight_kg, dtype=float)
@@ -294,6 +298,10 @@ def window_balance(
         rho_lo, rho_hi = min(r_a, r_b), max(r_a, r_b)
         d_fat, d_lean = partition_weight_change_hall(fat_start_kg, change)
     s_rho = (rho_hi - rho_lo) / 2.0
+    if fat_start_kg is not None and lean_share_log_sd > 0:
+        # people differ around Forbes' curve (training, protein): partition spread
+        _, s_part = energy_density_with_spread(fat_start_kg, change, 0.0, lean_share_log_sd)
+        s_rho = math.hypot(s_rho, s_part)
     # energy of the glycogen-and-water shift inside the window (0 unless fitted)
     g = GLYCOGEN_WATER_KCAL_PER_KG / days
     deficit = -(rho * rate.rate_kg_per_day + g * rate.shift_kg)
