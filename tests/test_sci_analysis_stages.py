@@ -278,6 +278,7 @@ def test_the_stages_assemble_the_analysis(stages: ClientStages) -> None:
         "hall-2008-energy-density",
         "expenditure-state-space",
         "hall-2011",
+        "adaptation-combined",
     ]
 
 

@@ -46,6 +46,7 @@ class ClientStages:
             (METHODS["hall-2008-energy-density"],) if energy_analysis else (),
             self.expenditure.methods,
             (METHODS["hall-2011"],) if self.projection is not None else (),
+            (METHODS["adaptation-combined"],) if any(self.adaptations) else (),
         )
 
     def notes(self) -> tuple[str, ...]:
