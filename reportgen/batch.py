@@ -25,6 +25,7 @@ import os
 import re
 import resource
 import sys
+import tempfile
 import time
 import traceback
 from collections import deque
@@ -38,6 +39,7 @@ from typing import TYPE_CHECKING
 from reportgen.analysis import analyse_client
 from reportgen.atomic import remove_temp_files, write_bytes_atomic
 from reportgen.config import Config
+from reportgen.io import guard
 from reportgen.io.book import read_client, read_roster
 from reportgen.io.model import Client, Phase, Problem
 from reportgen.manifest import (
@@ -55,6 +57,7 @@ from reportgen.report import (
     render_practitioner_summary,
 )
 from reportgen.report.overview_model import OverviewLine
+from reportgen.report.wording import TemplateProblem
 from reportgen.results import ClientAnalysis
 from reportgen.summary import SummaryRow, month_bounds, summary_csv, summary_rows
 
@@ -164,11 +167,18 @@ def _peak_rss_mb() -> float:
     return rss / (1024.0 * 1024.0 if sys.platform == "darwin" else 1024.0)  # pragma: no cover
 
 
-def _input_hashes(book: Path, used: tuple[str, ...], known: dict[str, str]) -> dict[str, str]:
-    """sha256 of the files a record was read from (book-level ones hashed once by the parent)."""
-    todo = tuple(rel for rel in used if rel not in known)
-    hashes = hash_inputs(book, todo)
-    hashes.update({rel: known[rel] for rel in used if rel in known})
+def _input_hashes(
+    book: Path, used: tuple[str, ...], known: dict[str, str], parsed: dict[str, str]
+) -> dict[str, str]:
+    """sha256 of the files a record was read from.
+
+    ``parsed`` holds the hashes of the exact bytes the readers parsed (see
+    :func:`reportgen.io.guard.recording`); book-level files come from ``known`` (the
+    parent's reading).  Only a file neither covers is hashed from disk.
+    """
+    have = {**parsed, **known}
+    hashes = hash_inputs(book, tuple(rel for rel in used if rel not in have))
+    hashes.update({rel: have[rel] for rel in used if rel in have})
     return dict(sorted(hashes.items()))
 
 
@@ -219,15 +229,16 @@ def process_client(task: ClientTask) -> ClientOutcome:
 
     try:
         t0 = time.perf_counter()
-        record = read_client(
-            book,
-            client,
-            task.phases,
-            month_bounds(task.month)[1],
-            today=task.today,
-            roster_problems=task.roster_problems,
-        )
-        inputs = _input_hashes(book, record.source_files, task.roster_inputs)
+        with guard.recording() as parsed:  # hashes of the very bytes that are parsed
+            record = read_client(
+                book,
+                client,
+                task.phases,
+                month_bounds(task.month)[1],
+                today=task.today,
+                roster_problems=task.roster_problems,
+            )
+        inputs = _input_hashes(book, record.source_files, task.roster_inputs, parsed)
         warnings = tuple(p.as_dict() for p in record.warnings)
         t1 = time.perf_counter()
         timings["read"] = t1 - t0
@@ -255,6 +266,8 @@ def process_client(task: ClientTask) -> ClientOutcome:
             files[kind] = {"path": name, "sha256": sha256_bytes(data)}
         timings["write"] = time.perf_counter() - t4
         timings["cpu"] = time.process_time() - cpu0  # CPU seconds: comparable under load
+    except TemplateProblem as exc:
+        return failed((str(exc),))
     except Exception as exc:
         tb = traceback.format_exc()
         first = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
@@ -413,6 +426,13 @@ def _pool(tasks: list[ClientTask], workers: int) -> Iterator[ClientOutcome]:
             yield _isolated(task)
 
 
+def _client_files(task: ClientTask) -> list[str]:
+    """The client's own input files that exist, to name in a message about a crash."""
+    cid = task.client.client_id
+    candidates = (f"logs/{cid}.csv", f"logs/{cid}.xlsx", f"skinfolds/{cid}.csv")
+    return [rel for rel in candidates if os.path.lexists(Path(task.book_dir) / rel)]
+
+
 def _isolated(task: ClientTask) -> ClientOutcome:
     """Run one task alone in a fresh one-worker pool (after a pool broke)."""
     with ProcessPoolExecutor(
@@ -422,8 +442,11 @@ def _isolated(task: ClientTask) -> ClientOutcome:
         try:
             return fut.result()
         except BrokenProcessPool:
+            files = _client_files(task)
             return _lost_outcome(
-                task, "the worker process stopped unexpectedly while making this client's reports"
+                task,
+                "the worker process stopped unexpectedly while making this client's reports"
+                + (f" (from {', '.join(files)})" if files else ""),
             )
         except Exception as exc:
             return _lost_outcome(
@@ -515,6 +538,38 @@ def _folder_lock(folder: Path) -> Iterator[None]:
         os.close(fd)
 
 
+def prepare_month_dir(out_dir: Path, month: str) -> Path:
+    """Create (or reuse) ``out_dir/<month>`` and make sure the batch can write there.
+
+    Every way it cannot be used (the output folder is a file or sits under one, is
+    read-only, or the month folder is a symbolic link that would send files elsewhere) is a
+    :class:`BatchUsageError` with one line saying what to do.
+    """
+    month_dir = out_dir / month
+    if month_dir.is_symlink():
+        raise BatchUsageError(
+            f"{month_dir} is a symbolic link; reportgen writes only inside the output folder "
+            "itself. Remove the link or choose another --out"
+        )
+    for parent in (out_dir, *out_dir.parents):
+        if parent.exists():
+            if not parent.is_dir():
+                raise BatchUsageError(
+                    f"cannot use --out {out_dir}: {parent} is a file, not a folder"
+                )
+            break
+    try:
+        month_dir.mkdir(parents=True, exist_ok=True)
+        if not month_dir.is_dir():
+            raise NotADirectoryError(f"{month_dir} is not a folder")
+        with tempfile.NamedTemporaryFile(dir=month_dir, prefix=".reportgen-probe-"):
+            pass
+    except OSError as exc:
+        reason = exc.strerror or str(exc)
+        raise BatchUsageError(f"cannot write to the output folder {month_dir} ({reason})") from None
+    return month_dir
+
+
 def _select_clients(clients: tuple[Client, ...], wanted: Iterable[str] | None) -> list[Client]:
     chosen = sorted(clients, key=lambda c: c.client_id)
     if wanted is None:
@@ -555,18 +610,18 @@ def run_batch(
     if workers < 1:
         raise BatchUsageError("--workers must be at least 1")
 
-    roster = read_roster(book_dir)
+    with guard.recording() as parsed:
+        roster = read_roster(book_dir)
     clients = _select_clients(roster.clients, client_ids)
     roster_ids = {c.client_id for c in roster.clients}
     book_problems = [
         p.as_dict() for p in roster.problems if p.client_id is None or p.client_id not in roster_ids
     ]
-    roster_inputs = dict(sorted(hash_inputs(book_dir, roster.source_files).items()))
+    roster_inputs = _input_hashes(book_dir, roster.source_files, {}, parsed)
 
     with contextlib.ExitStack() as stack:
         dask = stack.enter_context(connect_scheduler(scheduler)) if scheduler else None
-        month_dir = Path(out_dir) / month
-        month_dir.mkdir(parents=True, exist_ok=True)
+        month_dir = prepare_month_dir(Path(out_dir), month)
         stack.enter_context(_folder_lock(month_dir))
         remove_temp_files(month_dir)
         # The manifest is the month's seal: remove it until this run has finished.
@@ -642,6 +697,7 @@ def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> N
         book=book_dir,
         config_file=config_file,
         config=config.as_dict(),
+        config_sha256=config.source_sha256,
         files=result.files,
         clients={o.client_id: o.manifest_entry() for o in result.outcomes},
         book_problems=result.book_problems,

@@ -8,7 +8,9 @@ message that names the key, so a typo never silently falls back to a default.
 from __future__ import annotations
 
 import dataclasses
+import hashlib
 import json
+import math
 import re
 import textwrap
 import tomllib
@@ -96,10 +98,13 @@ class Config:
     analysis: AnalysisSettings = field(default_factory=AnalysisSettings)
     mail: MailSettings = field(default_factory=MailSettings)
     source: str | None = None  # the file it was read from, if any
+    # sha256 of the bytes read from that file (bookkeeping, not a setting: not compared)
+    source_sha256: str | None = field(default=None, compare=False)
 
     def as_dict(self) -> dict[str, Any]:
         d = dataclasses.asdict(self)
         d.pop("source")
+        d.pop("source_sha256")
         return d
 
     def resolve_path(self, value: str) -> Path | None:
@@ -148,6 +153,8 @@ def _coerce(table: str, key: str, value: Any, hint: Any) -> Any:
     if hint is float:
         if isinstance(value, bool) or not isinstance(value, int | float):
             raise ConfigError(f"{where} must be a number, got {value!r}")
+        if not math.isfinite(value):  # TOML allows nan and inf
+            raise ConfigError(f"{where} must be a finite number, got {value!r}")
         return float(value)
     if hint is str:
         if not isinstance(value, str):
@@ -248,11 +255,15 @@ def _logo_problem(cfg: Config) -> str | None:
     where = f"[practice] logo = {cfg.practice.logo!r}"
     if path.suffix.lower() not in (".png", ".svg"):
         return f"{where} must be a PNG or SVG file (.png or .svg)"
-    try:
-        head = path.read_bytes()[:4096]
-    except OSError:
+    from reportgen.io import guard
+
+    if guard.file_state(path) == "absent":
         rel = " (relative paths are taken from the configuration file's folder)"
         return f"{where}: no such file at {path}{rel if cfg.source else ''}"
+    try:  # type and size first: /dev/zero or a FIFO must neither hang nor fill memory
+        head = guard.read_input(path, str(path), guard.MAX_LOGO_BYTES, "logo image")[:4096]
+    except guard.InputRefused as exc:
+        return f"{where}: {exc.message}"
     if path.suffix.lower() == ".png" and not head.startswith(_PNG_MAGIC):
         return f"{where}: {path.name} is not a PNG image (save it again as PNG)"
     if path.suffix.lower() == ".svg" and b"<svg" not in head:
@@ -296,6 +307,10 @@ def _check(cfg: Config) -> list[str]:
                 "[analysis] target_rates_pct_per_week values must be above 0 and at most 1.5"
             )
             break
+    for table in _TABLES:
+        for key, value in dataclasses.asdict(getattr(cfg, table)).items():
+            if isinstance(value, str) and any(ord(c) < 32 or 0x7F <= ord(c) <= 0x9F for c in value):
+                out.append(f"[{table}] {key} holds a control character (line break, tab...)")
     m = cfg.mail
     if not 0 < m.port < 65536:
         out.append(f"[mail] port = {m.port} is not a port number")
@@ -327,7 +342,8 @@ def load_config(path: str | Path | None) -> Config:
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
         raise ConfigError(f"{p}: not valid TOML ({exc})") from exc
     try:
-        return config_from_dict(data, source=str(p))
+        cfg = config_from_dict(data, source=str(p))
+        return dataclasses.replace(cfg, source_sha256=hashlib.sha256(raw).hexdigest())
     except ConfigError as exc:
         raise ConfigError("\n".join(f"{p}: {line}" for line in str(exc).splitlines())) from None
 

@@ -73,6 +73,7 @@ def build_manifest(
     config_file: Path | None,
     config: dict[str, Any],
     files: dict[str, str],
+    config_sha256: str | None = None,
     clients: dict[str, ClientEntry],
     book_problems: list[dict[str, object]] | None = None,
 ) -> dict[str, Any]:
@@ -84,6 +85,7 @@ def build_manifest(
         "book": str(book.resolve()),
         "config_file": str(config_file.resolve()) if config_file is not None else None,
         "config": config,
+        "config_sha256": config_sha256,
         "files": dict(sorted(files.items())),
         "clients": {cid: clients[cid].as_dict() for cid in sorted(clients)},
         "book_problems": list(book_problems or []),

@@ -2,9 +2,14 @@
 
 from __future__ import annotations
 
+import contextlib
 from functools import cache
 from importlib import resources
 from pathlib import Path
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from jinja2 import Environment
 
 
 @cache
@@ -29,3 +34,18 @@ def font_path(bold: bool = False) -> Path:
 
     name = "DejaVuSans-Bold.ttf" if bold else "DejaVuSans.ttf"
     return Path(matplotlib.get_data_path()) / "fonts" / "ttf" / name
+
+
+def template_problem(exc: Exception, name: str, env: Environment | None = None) -> str:
+    """One line naming the template (and where it was found) and what is wrong with it."""
+    from jinja2.sandbox import SecurityError
+
+    where = name
+    if env is not None and env.loader is not None:
+        with contextlib.suppress(Exception):
+            where = f"{name} ({env.loader.get_source(env, name)[1]})"
+    line = getattr(exc, "lineno", None)
+    at = f", line {line}" if line else ""
+    kind = "unsafe operation" if isinstance(exc, SecurityError) else "error"
+    msg = str(getattr(exc, "message", None) or exc).strip().splitlines()
+    return f"template {where}{at}: {kind}: {msg[0] if msg else type(exc).__name__}"

@@ -41,7 +41,6 @@ UNIT_SYSTEMS: tuple[Units, ...] = ("metric", "imperial")
 ENERGY_UNITS: tuple[Energy, ...] = ("kcal", "kJ")
 
 KJ_PER_KCAL = 1.0 / KCAL_PER_KJ
-_CLIENT_ID = re.compile(r"^[A-Za-z0-9_-]+$")
 _LAST_ROW = 1048576  # Excel's last row: validation covers every row a coach can reach
 _AUTHOR = "reportgen"
 _HEADER_FONT = Font(bold=True)
@@ -415,10 +414,13 @@ def roster_workbook(client_ids: Sequence[str], units: Units = "metric") -> Workb
 
 def check_client_id(client_id: str) -> str:
     """The id itself, or :class:`ScaffoldError` saying what an id may contain."""
-    if not _CLIENT_ID.match(client_id) or len(client_id) > limits.MAX_CLIENT_ID_LEN:
+    from reportgen.io.guard import escape_controls
+    from reportgen.io.roster import CLIENT_ID_RE  # exactly the reader's rule
+
+    if not CLIENT_ID_RE.fullmatch(client_id):
         raise ScaffoldError(
-            f'client id "{client_id}" is not allowed: use letters, digits, - and _ '
-            f"(at most {limits.MAX_CLIENT_ID_LEN} characters), e.g. c001"
+            f'client id "{escape_controls(client_id)}" is not allowed: use letters, digits, - '
+            f"and _ (at most {limits.MAX_CLIENT_ID_LEN} characters), e.g. c001"
         )
     return client_id
 

@@ -74,6 +74,21 @@ DECIMALS: dict[str, int] = {
 
 SummaryRow = dict[str, str]
 
+#: Columns holding text from the book (ids, phase names); all others are numbers or dates.
+TEXT_COLUMNS: tuple[str, ...] = ("client_id", "phase", "status")
+#: A text cell starting with one of these is a formula (or starts one) in spreadsheet
+#: programs; such cells get a leading apostrophe (OWASP, "CSV Injection", from memory).
+FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
+
+
+def neutralise(text: str) -> str:
+    """A text cell made safe to open in a spreadsheet program: ``'=1+1`` for ``=1+1``.
+
+    A carriage return becomes a space (the writer would not quote it, and readers would
+    take it for the end of the row).
+    """
+    return ("'" + text if text.startswith(FORMULA_START) else text).replace("\r", " ")
+
 
 def format_number(value: float | None, decimals: int) -> str:
     """Fixed-decimal text; blank for a missing or non-finite value; never ``-0``."""
@@ -177,5 +192,6 @@ def summary_csv(rows: Iterable[SummaryRow]) -> bytes:
     )
     writer.writeheader()
     for row in sort_rows(rows):
-        writer.writerow(row)
+        # Only text from the book is neutralised: "-0.45" in a number column stays a number.
+        writer.writerow({k: neutralise(v) if k in TEXT_COLUMNS else v for k, v in row.items()})
     return buf.getvalue().encode("utf-8")

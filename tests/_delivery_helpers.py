@@ -279,6 +279,7 @@ def make_month(
         book=book,
         config_file=config_file,
         config=load_config(config_file).as_dict(),
+        config_sha256=load_config(config_file).source_sha256,
         files={},
         clients=entries,
     )

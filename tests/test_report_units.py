@@ -91,8 +91,9 @@ def test_line_markup_makes_headings_bullets_and_paragraphs() -> None:
 
 
 def test_a_template_using_a_missing_value_fails_loudly() -> None:
-    import jinja2
+    from reportgen.report.wording import TemplateProblem
 
     words = Wording(Config(), "report/client.j2")
-    with pytest.raises(jinja2.UndefinedError, match="has no attribute 'client'"):
+    # Every template error is a TemplateProblem naming the template and what is wrong.
+    with pytest.raises(TemplateProblem, match=r"report/client\.j2.*has no attribute 'client'"):
         words.text("header", object())

@@ -26,6 +26,9 @@ def _split_ids(value: str | None) -> list[str] | None:
 def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     from rich.console import Console
     from rich.table import Table
+    from rich.text import Text
+
+    from reportgen.io.guard import escape_controls as esc
 
     out = Console(highlight=False)
     err = Console(stderr=True, highlight=False)
@@ -37,13 +40,13 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
         for o in failed:
             if o.traceback:
                 err.print(f"[bold]{o.client_id}[/bold]: traceback", markup=True)
-                err.print(o.traceback, markup=False, end="")
+                err.print(esc(o.traceback, keep_newlines=True), markup=False, end="")
 
     if quiet:
         for o in failed:
-            err.print(f"{o.client_id}: {o.reason}", markup=False)
+            err.print(esc(f"{o.client_id}: {o.reason}"), markup=False)
         for e in result.errors:
-            err.print(e, markup=False)
+            err.print(esc(e), markup=False)
         return
 
     table = Table(title=f"reportgen batch {result.month}", title_justify="left")
@@ -65,11 +68,11 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
             "(manifest.json book_problems; `reportgen check` shows them)",
         )
     for o in failed:
-        table.add_row("", o.client_id, o.reason)
+        table.add_row("", Text(esc(o.client_id)), Text(esc(o.reason)))
     out.print(table)
     for e in result.errors:
-        err.print(e, markup=False)
-    out.print(f"Files are in {result.month_dir}", markup=False)
+        err.print(esc(e), markup=False)
+    out.print(esc(f"Files are in {result.month_dir}"), markup=False)
     if failed and not verbose and any(o.traceback for o in failed):
         out.print("Run again with --verbose to see the tracebacks of unexpected errors.")
 
@@ -183,10 +186,14 @@ def batch_command(
             on_outcome=on_outcome,
         )
     except InputError as exc:
-        click.echo(f"Error: the book cannot be read: {exc}", err=True)
+        from reportgen.io.guard import escape_controls
+
+        click.echo(f"Error: the book cannot be read: {escape_controls(exc)}", err=True)
         click.get_current_context().exit(2)
     except BatchUsageError as exc:
-        raise click.UsageError(str(exc)) from None
+        from reportgen.io.guard import escape_controls
+
+        raise click.UsageError(escape_controls(exc)) from None
     finally:
         if progress is not None:
             progress.stop()

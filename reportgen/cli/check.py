@@ -66,9 +66,11 @@ def check_command(book: Path, month: str | None, as_json: bool, today: dt.date |
         if as_json:
             click.echo(json.dumps({"unusable": exc.problem.as_dict()}, indent=2, sort_keys=True))
         else:
+            from reportgen.io.guard import escape_controls
+
             p = exc.problem
             where = f"{p.location}: " if p.file else ""
-            click.echo(f"reportgen check: {where}{p.message}", err=True)
+            click.echo(f"reportgen check: {escape_controls(where + p.message)}", err=True)
         sys.exit(EXIT_UNUSABLE)
 
     if as_json:
@@ -84,6 +86,7 @@ def _print_table(result: object) -> None:
     from rich.text import Text
 
     from reportgen.io.check import CheckResult
+    from reportgen.io.guard import escape_controls
 
     assert isinstance(result, CheckResult)
     console = Console(highlight=False, width=None if sys.stdout.isatty() else 160)
@@ -98,9 +101,9 @@ def _print_table(result: object) -> None:
             style = "bold red" if p.severity == "error" else "yellow"
             table.add_row(
                 Text(p.severity, style=style),
-                Text(p.client_id or "-"),
-                Text(p.location),
-                Text(p.message),
+                Text(escape_controls(p.client_id or "-")),
+                Text(escape_controls(p.location)),
+                Text(escape_controls(p.message)),
             )
         console.print(table)
     console.print(Text(result.summary()))

@@ -126,7 +126,9 @@ def send_command(
             progress=print_row,
         )
     except DeliveryError as exc:
-        click.echo(f"Error: {exc}", err=True)
+        from reportgen.io.guard import escape_controls
+
+        click.echo(f"Error: {escape_controls(exc, keep_newlines=True)}", err=True)
         raise SystemExit(2) from None
     print_summary(report)
     raise SystemExit(report.exit_code)

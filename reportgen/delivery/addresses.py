@@ -32,6 +32,8 @@ def check_address(value: str | None) -> tuple[str | None, str | None]:
     if value is None or not value.strip():
         return None, "no address"
     text = value.strip()
+    if any(ord(c) < 32 or 0x7F <= ord(c) <= 0x9F for c in text):
+        return None, f"{text!r} holds a control character (line break, tab, escape...)"
     if any(sep in text for sep in (",", ";", " ")):
         return None, f"{text!r} is not a single address (one address per cell)"
     if not text.isascii():

@@ -18,9 +18,10 @@ from pathlib import Path
 from typing import Literal
 
 import jinja2
+import jinja2.sandbox
 
 from reportgen.config import Config
-from reportgen.resources import templates_dir
+from reportgen.resources import template_problem, templates_dir
 
 # Header lines are not folded below the RFC 5322 hard limit of 998 characters: Python's
 # folder moves a long Message-ID or Subject whole onto a continuation line, and readers
@@ -78,7 +79,8 @@ def mail_environment(config: Config) -> jinja2.Environment:
     if override is not None and (override / "mail").is_dir():
         search.append(str(override / "mail"))
     search.append(str(templates_dir() / "mail"))
-    return jinja2.Environment(
+    # Sandboxed like the report templates: an override can word the mail, never run code.
+    return jinja2.sandbox.SandboxedEnvironment(
         loader=jinja2.FileSystemLoader(search),
         autoescape=lambda name: name is not None and name.endswith(".html.j2"),
         undefined=jinja2.StrictUndefined,
@@ -120,11 +122,22 @@ def render_content(
         "attachment": filename,
         "encrypted": encrypted,
     }
-    subject = env.get_template(f"{kind}_subject.txt.j2").render(context)
+    subject = _render(env, f"{kind}_subject.txt.j2", context)
     subject = " ".join(subject.split())  # one line, whatever the template's layout
-    text = env.get_template(f"{kind}.txt.j2").render(context)
-    html = env.get_template(f"{kind}.html.j2").render(context)
+    text = _render(env, f"{kind}.txt.j2", context)
+    html = _render(env, f"{kind}.html.j2", context)
     return MailContent(subject=subject, text=text, html=html)
+
+
+class MailTemplateError(ValueError):
+    """A mail template that cannot be rendered; the message names the template."""
+
+
+def _render(env: jinja2.Environment, name: str, context: dict[str, object]) -> str:
+    try:
+        return env.get_template(name).render(context)
+    except (jinja2.TemplateError, jinja2.sandbox.SecurityError) as exc:
+        raise MailTemplateError(template_problem(exc, name, env)) from None
 
 
 def build_message(
@@ -183,6 +196,8 @@ def templates_available(env: jinja2.Environment) -> list[str]:
                 env.get_template(name)
             except jinja2.TemplateNotFound:
                 missing.append(name)
+            except jinja2.TemplateError as exc:
+                raise MailTemplateError(template_problem(exc, name, env)) from None
     return missing
 
 

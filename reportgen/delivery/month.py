@@ -38,6 +38,7 @@ class Manifest:
     config_file: Path | None
     config: dict[str, Any]
     clients: dict[str, ManifestClient]
+    config_sha256: str | None = None
 
 
 def read_manifest(month_dir: Path) -> Manifest:
@@ -93,6 +94,7 @@ def read_manifest(month_dir: Path) -> Manifest:
         config_file=Path(cfg_file) if isinstance(cfg_file, str) and cfg_file else None,
         config=cfg if isinstance(cfg, dict) else {},
         clients=clients,
+        config_sha256=str(data["config_sha256"]) if data.get("config_sha256") else None,
     )
 
 

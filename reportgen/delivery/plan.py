@@ -22,6 +22,7 @@ from reportgen.delivery.month import (
 )
 from reportgen.delivery.protect import SecretError, derive_pdf_password, read_practice_secret
 from reportgen.delivery.smtp import ServerSettings, is_loopback
+from reportgen.io.guard import has_control
 from reportgen.manifest import sha256_file
 
 # Results that mean "this message is where it should be" for the exit code.
@@ -74,16 +75,45 @@ class Planned:
     message_id: str | None  # reused when resending an unconfirmed attempt
 
 
+#: Settings that name files or folders: never taken from a manifest without a trusted file.
+PATH_SETTINGS = (("report", "templates_dir"), ("practice", "logo"), ("mail", "secret_file"))
+
+
 def resolve_config(manifest: Manifest, options: SendOptions) -> Config:
-    """--config, else the batch's configuration file, else the settings stored in the manifest."""
+    """--config, else the batch's configuration file, else the settings stored in the manifest.
+
+    ``manifest.json`` sits in the output folder, where others may edit it, so a path read
+    from it is never trusted on its own: the configuration file it names is used only if its
+    bytes still have the sha256 the batch recorded, and stored settings that name files or
+    folders are refused.  Naming the file with ``--config`` always works.
+    """
     try:
         if options.config_file is not None:
             return load_config(options.config_file)
-        if manifest.config_file is not None and manifest.config_file.is_file():
-            return load_config(manifest.config_file)
+        if manifest.config_file is not None:
+            cfg = load_config(manifest.config_file) if manifest.config_file.is_file() else None
+            if cfg is None or manifest.config_sha256 is None:
+                raise DeliveryError(
+                    f"the manifest names the configuration {manifest.config_file}, which is "
+                    "missing or whose fingerprint the batch did not record; name the "
+                    "configuration with --config"
+                )
+            if cfg.source_sha256 != manifest.config_sha256:
+                raise DeliveryError(
+                    f"the configuration {manifest.config_file} named in the manifest is not the "
+                    "file the batch used (it has changed since, or the manifest was edited); "
+                    "name the configuration with --config"
+                )
+            return cfg
         if manifest.config:
-            source = str(manifest.config_file) if manifest.config_file else None
-            return config_from_dict(manifest.config, source=source)
+            for table, key in PATH_SETTINGS:
+                section = manifest.config.get(table)
+                if isinstance(section, dict) and section.get(key):
+                    raise DeliveryError(
+                        f"the manifest's stored settings name a file ([{table}] {key}) but no "
+                        "configuration file; name the configuration with --config"
+                    )
+            return config_from_dict(manifest.config, source=None)
         return Config()
     except ConfigError as exc:
         raise DeliveryError(str(exc)) from None
@@ -183,6 +213,12 @@ def plan_month(
                 if not copies or not raw:
                     continue
             address, why = check_address(raw)
+            name = client.name or mc.name
+            if address is not None and kind == "report" and has_control(name):
+                address, why = (
+                    None,
+                    f"the name {name!r} holds a control character (line break, tab...)",
+                )
             if address is None:
                 result = "skipped-no-address" if why == "no address" else "skipped-invalid-address"
                 rows.append(Row(cid, kind, (raw or "").strip() or None, result, why or ""))
@@ -241,11 +277,7 @@ def plan_month(
                     continue
             if state is not None and state.state == "unconfirmed":
                 mid = state.message_id  # same Message-ID: receivers can spot a duplicate
-            planned.append(
-                Planned(
-                    mc, kind, client.name or mc.name, address, mf.path, mf.sha256, password, mid
-                )
-            )
+            planned.append(Planned(mc, kind, name, address, mf.path, mf.sha256, password, mid))
     return planned, rows
 
 

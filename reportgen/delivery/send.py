@@ -15,6 +15,8 @@ import jinja2
 from reportgen.atomic import write_bytes_atomic
 from reportgen.config import Config
 from reportgen.delivery.ledger import (
+    LEDGER_NAME,
+    LOCK_NAME,
     Ledger,
     LedgerBusyError,
     read_ledger,
@@ -23,6 +25,7 @@ from reportgen.delivery.ledger import (
 )
 from reportgen.delivery.messages import (
     FILE_POLICY,
+    MailTemplateError,
     Sender,
     attachment_name,
     build_message,
@@ -104,7 +107,10 @@ def send_month(
     except ValueError as exc:
         raise DeliveryError(str(exc)) from None
     env = mail_environment(config)
-    missing = templates_available(env)
+    try:
+        missing = templates_available(env)
+    except MailTemplateError as exc:
+        raise DeliveryError(str(exc)) from None
     if missing:
         raise DeliveryError(f"mail templates not found: {', '.join(missing)}")
     server = server_settings(config, options)
@@ -132,6 +138,11 @@ def send_month(
         for row in skipped:
             emit(row)
         outbox = month_dir / OUTBOX
+        if outbox.is_symlink() or (outbox.exists() and not outbox.is_dir()):
+            raise DeliveryError(
+                f"{outbox} is a symbolic link or not a folder; the dry run writes only inside "
+                f"{month_dir}. Remove it and run again"
+            )
         outbox.mkdir(exist_ok=True)
         for old in outbox.glob("*.eml"):  # the outbox shows what the next run would send
             old.unlink()
@@ -147,6 +158,12 @@ def send_month(
             emit(Row(cid, item.kind, item.address, "written", f"{OUTBOX}/{name}"))
         return report
 
+    for name in (LEDGER_NAME, LOCK_NAME):
+        if (month_dir / name).is_symlink():
+            raise DeliveryError(
+                f"{month_dir / name} is a symbolic link; the ledger is kept only inside "
+                f"{month_dir}. Remove the link and run again"
+            )
     try:
         ledger = Ledger(month_dir)
     except LedgerBusyError as exc:
@@ -205,16 +222,19 @@ def _message(
     if item.pdf_password is not None:
         pdf = encrypt_pdf(pdf, item.pdf_password)
     filename = attachment_name(item.kind, month, cid)
-    content = render_content(
-        env,
-        item.kind,
-        config=config,
-        client_name=item.name,
-        client_id=cid,
-        month=month,
-        filename=filename,
-        encrypted=item.pdf_password is not None,
-    )
+    try:
+        content = render_content(
+            env,
+            item.kind,
+            config=config,
+            client_name=item.name,
+            client_id=cid,
+            month=month,
+            filename=filename,
+            encrypted=item.pdf_password is not None,
+        )
+    except MailTemplateError as exc:  # the same template for everyone: stop the run
+        raise DeliveryError(str(exc)) from None
     msg = build_message(
         sender=sender,
         to_address=item.address,

@@ -12,7 +12,7 @@ import datetime as dt
 from collections.abc import Iterable
 from pathlib import Path
 
-from reportgen.io import limits
+from reportgen.io import guard, limits
 from reportgen.io.daily import parse_daily
 from reportgen.io.model import (
     Client,
@@ -68,16 +68,15 @@ def _roster_file(book: Path) -> str:
 def _roster_table(book: Path, rel: str) -> tuple[Table | None, list[Problem]]:
     if rel.endswith(".csv"):
         return read_csv_table(book, rel)
-    sheets, names, problems = read_xlsx_sheets(book, rel, ("clients",))
+    # no sheet called "clients": the first sheet is the roster
+    sheets, _, problems = read_xlsx_sheets(book, rel, ("clients",), first_sheet=True)
     if sheets is None:
         return None, problems
-    if "clients" in sheets:
-        name, rows = sheets["clients"]
-    else:  # no sheet called "clients": the first sheet is the roster
-        from python_calamine import CalamineWorkbook
-
-        with CalamineWorkbook.from_path(str(book / rel)) as wb:
-            name, rows = names[0], wb.get_sheet_by_index(0).to_python(skip_empty_area=False)
+    if not sheets:
+        return None, [
+            Problem("error", "empty-file", f"{rel} has no sheets; it needs a clients sheet", rel)
+        ]
+    name, rows = sheets.get("clients") or sheets[""]
     table, more = build_table(rel, name, rows, None)
     return table, problems + more
 
@@ -94,7 +93,7 @@ def read_roster(book_dir: Path, today: dt.date | None = None) -> Roster:
         raise InputError(Problem("error", "missing-file", f"{book} is not a folder"))
     rel = _roster_file(book)
     table, problems = _roster_table(book, rel)
-    fatal = [p for p in problems if p.code in ("unreadable-file", "empty-file")]
+    fatal = [p for p in problems if p.code in ("unreadable-file", "empty-file", "file-too-large")]
     if table is None or fatal:
         raise InputError(fatal[0] if fatal else problems[0])
     clients, more = parse_roster(table, today)
@@ -103,7 +102,10 @@ def read_roster(book_dir: Path, today: dt.date | None = None) -> Roster:
         raise InputError(next(p for p in more if p.code == "missing-column"))
     phases: dict[str, tuple[Phase, ...]] = {}
     sources = [rel]
-    if (book / PHASES_FILE).is_file():
+    state = guard.file_state(book / PHASES_FILE)
+    if state not in ("absent", "regular"):  # never opened: a FIFO would block
+        problems += [_skipped(PHASES_FILE, state, c.client_id, "the phases") for c in clients]
+    elif state == "regular":
         sources.append(PHASES_FILE)
         ptable, pprobs = read_csv_table(book, PHASES_FILE)
         problems += pprobs
@@ -135,6 +137,18 @@ def read_roster(book_dir: Path, today: dt.date | None = None) -> Roster:
         phases=phases,
         problems=tuple(problems),
         source_files=tuple(sources),
+    )
+
+
+def _skipped(rel: str, state: str, client_id: str, what: str) -> Problem:
+    """A warning for a folder, FIFO, device or broken link where an optional file belongs."""
+    return Problem(
+        "warning",
+        "skipped-file",
+        f"{rel} is {state}, not a file reportgen can read; this client's report is made "
+        f"without {what} in it. Put the file there, or remove what is in its place",
+        file=rel,
+        client_id=client_id,
     )
 
 
@@ -174,7 +188,18 @@ def read_client(
     sheet_phases: list[tuple[int, Phase]] = []
     sheet_file = None
     csv_log, xlsx_log = f"logs/{cid}.csv", f"logs/{cid}.xlsx"
-    has_csv, has_xlsx = (book / csv_log).is_file(), (book / xlsx_log).is_file()
+    states = {rel: guard.file_state(book / rel) for rel in (csv_log, xlsx_log)}
+    has_csv, has_xlsx = states[csv_log] == "regular", states[xlsx_log] == "regular"
+    for rel, state in states.items():
+        if state not in ("absent", "regular") and not (has_csv or has_xlsx):
+            problems.append(
+                _client_problem(
+                    "unreadable-file",
+                    f"{rel} is {state}, not a file reportgen can read; put the daily log there",
+                    client,
+                    rel,
+                )
+            )
     daily_table: Table | None = None
     skin_tables: list[Table] = []
     if has_csv and has_xlsx:
@@ -187,15 +212,16 @@ def read_client(
             )
         )
     elif not has_csv and not has_xlsx:
-        problems.append(
-            _client_problem(
-                "missing-file",
-                f"no daily log: expected {csv_log} or {xlsx_log} (file names must match the "
-                "client_id exactly)",
-                client,
-                csv_log,
+        if set(states.values()) == {"absent"}:  # otherwise reported above
+            problems.append(
+                _client_problem(
+                    "missing-file",
+                    f"no daily log: expected {csv_log} or {xlsx_log} (file names must match "
+                    "the client_id exactly)",
+                    client,
+                    csv_log,
+                )
             )
-        )
     elif has_csv:
         sources.append(csv_log)
         daily_table, more = read_csv_table(book, csv_log, cid)
@@ -237,7 +263,10 @@ def read_client(
         problems += result.problems
 
     skin_csv = f"skinfolds/{cid}.csv"
-    if (book / skin_csv).is_file():
+    skin_state = guard.file_state(book / skin_csv)
+    if skin_state not in ("absent", "regular"):
+        problems.append(_skipped(skin_csv, skin_state, cid, "the skinfolds"))
+    if skin_state == "regular":
         sources.append(skin_csv)
         table, more = read_csv_table(book, skin_csv, cid)
         problems += more

@@ -13,6 +13,7 @@ an ``outlier`` warning even when it is also outside :data:`WEIGHT_KG`
 
 from __future__ import annotations
 
+import datetime as dt
 from typing import Final
 
 #: [kg] Below 25 kg no adolescent or adult is plausible; above 350 kg is beyond ordinary
@@ -41,3 +42,6 @@ ADULT_AGE_YEARS: Final = 18
 MAX_GAP_DAYS: Final = 7
 #: Longest client id (input contract).
 MAX_CLIENT_ID_LEN: Final = 40
+#: Dates a phase may start or end on: no client data predates 1900, and a plan running past
+#: 2199 is a typo (year 9999 also leaves no room for date arithmetic).  Common practice.
+DATE_RANGE: Final = (dt.date(1900, 1, 1), dt.date(2199, 12, 31))

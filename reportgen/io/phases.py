@@ -63,6 +63,15 @@ def parse_phases(
             except CellError as e:
                 err(e.code, e.message, c)
                 dates[c] = None
+            day = dates[c]
+            if day is not None and not limits.DATE_RANGE[0] <= day <= limits.DATE_RANGE[1]:
+                err(
+                    "out-of-range",
+                    f"{raw.get(c, c)} {day} is outside {limits.DATE_RANGE[0].year}-"
+                    f"{limits.DATE_RANGE[1].year}; correct the year",
+                    c,
+                )
+                dates[c] = None
         start, end = dates["start"], dates["end"]
         if start is None and not any(b.column == raw["start"] for b in bad):
             err("missing-value", f"phase in row {row} has no start date; add it", "start")

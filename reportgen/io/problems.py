@@ -32,6 +32,8 @@ PROBLEM_CODES: Final[dict[str, tuple[Severity, str]]] = {
     "no-data": ("error", "a daily log without a dated row up to the month end"),
     "unknown-client": ("error", "a phase for a client not in the roster"),
     "overlapping-phases": ("error", "two phases of one client overlap"),
+    "file-too-large": ("error", "a file beyond the size, row, column or cell limits, not read"),
+    "cell-too-long": ("error", "a cell longer than 10000 characters; its row is left out"),
     # warnings: the report is still made and lists them
     "outlier": ("warning", "an isolated weigh-in excluded from the analysis"),
     "future-date": ("warning", "a row dated after today, ignored"),
@@ -42,5 +44,6 @@ PROBLEM_CODES: Final[dict[str, tuple[Severity, str]]] = {
     "duplicate-row": ("warning", "a row repeating another row exactly, ignored"),
     "special-handling": ("warning", "a minor or pregnant client: no deficit analysis"),
     "missing-detail": ("warning", "sex, birth date or height blank in the roster"),
+    "skipped-file": ("warning", "a folder, FIFO, device or broken link where a file belongs"),
     "unused-file": ("warning", "a file in logs/ or skinfolds/ that no client reads (check only)"),
 }

@@ -71,7 +71,7 @@ def parse_roster(table: Table, today: dt.date) -> tuple[tuple[Client, ...], list
         if c and c not in ROSTER_COLUMNS
     ]
     clients: list[Client] = []
-    seen: dict[str, int] = {}
+    seen: dict[str, tuple[int, str]] = {}
     for row, cells in table.rows:
         bad: list[Problem] = []
 
@@ -104,17 +104,25 @@ def parse_roster(table: Table, today: dt.date) -> tuple[tuple[Client, ...], list
             )
             problems.extend(bad)
             continue
-        if cid in seen:
+        # Ids differing only in case are one id: on a case-insensitive disk their files collide.
+        if cid.lower() in seen:
+            first_row, first_id = seen[cid.lower()]
+            same = (
+                f'client_id "{cid}" appears in rows {first_row} and {row}'
+                if first_id == cid
+                else f'client_id "{cid}" in row {row} differs from "{first_id}" in row '
+                f"{first_row} only in upper/lower case (their files would be the same on many "
+                "disks)"
+            )
             err(
                 "duplicate-client",
-                f'client_id "{cid}" appears in rows {seen[cid]} and {row}; give each client '
-                "one row and a unique id",
+                f"{same}; give each client one row and a unique id",
                 "client_id",
                 cid,
             )
             problems.extend(bad)
             continue
-        seen[cid] = row
+        seen[cid.lower()] = (row, cid)
 
         def get(c: str, fn: Callable[[Cell, str], T], cid: str = cid) -> T | None:
             try:

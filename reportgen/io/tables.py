@@ -17,6 +17,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import cast
 
+from reportgen.io import guard
 from reportgen.io.model import Problem, Severity
 
 #: A cell as the readers deliver it: text from CSV; text, number, bool or date/time from XLSX.
@@ -129,6 +130,9 @@ def build_table(
     header = list(rows[header_at])
     while header and is_blank(header[-1]):
         header.pop()
+    refused = _refuse_header(header, file, where, header_at + 1, client_id)
+    if refused is not None:
+        return None, [*problems, refused]
     raw = tuple(cell_text(c).strip() for c in header)
     names = tuple(n.lower() for n in raw)
     seen: dict[str, int] = {}
@@ -153,6 +157,10 @@ def build_table(
     for i in range(header_at + 1, len(rows)):
         r = rows[i]
         if _blank_row(r, text_only):
+            continue
+        too_long = _long_cell_problem(r, names, raw, file, where, i + 1, client_id)
+        if too_long is not None:
+            problems.append(too_long)
             continue
         cells = tuple(r[:width]) + (None,) * max(0, width - len(r))
         if len(r) > width and any(not is_blank(c) for c in r[width:]):
@@ -184,6 +192,64 @@ def build_table(
             )
         )
     return Table(file, sheet, names, raw, tuple(out), header_at + 1), problems
+
+
+def _refuse_header(
+    header: list[Cell], file: str, where: str, row: int, client_id: str | None
+) -> Problem | None:
+    if len(header) > guard.MAX_COLUMNS:
+        return _problem(
+            "file-too-large",
+            f"{where} has {len(header)} columns in its header row, more than the "
+            f"{guard.MAX_COLUMNS} reportgen reads; is it the right file?",
+            file,
+            client_id,
+            row=row,
+        )
+    if guard.long_cell(header) is not None:
+        return _problem(
+            "cell-too-long",
+            f"the header row of {where} has a cell longer than {guard.MAX_CELL_CHARS} "
+            "characters; is it the right file?",
+            file,
+            client_id,
+            row=row,
+        )
+    return None
+
+
+def _long_cell_problem(
+    r: Sequence[Cell],
+    names: tuple[str, ...],
+    raw: tuple[str, ...],
+    file: str,
+    where: str,
+    row: int,
+    client_id: str | None,
+) -> Problem | None:
+    """An error for a row holding a cell beyond :data:`guard.MAX_CELL_CHARS` (row left out)."""
+    pos = guard.long_cell(r)
+    if pos is None:
+        return None
+    cid = client_id
+    if cid is None and "client_id" in names:  # a roster or phases row: name its client
+        at = names.index("client_id")
+        text = r[at] if at < len(r) else None
+        if isinstance(text, str) and 0 < len(text.strip()) <= guard.MAX_CELL_CHARS:
+            cid = text.strip()
+    column = raw[pos] if pos < len(raw) else None
+    return Problem(
+        "error",
+        "cell-too-long",
+        f"row {row} of {where} has a cell of {len(str(r[pos]))} characters"
+        + (f" in column {column}" if column else "")
+        + f", more than the {guard.MAX_CELL_CHARS} reportgen reads; the row is left out. "
+        "Shorten the cell",
+        file=file,
+        row=row,
+        column=column,
+        client_id=cid,
+    )
 
 
 def _blank_row(r: Sequence[Cell], text_only: bool) -> bool:
@@ -224,12 +290,10 @@ def read_csv_table(
 ) -> tuple[Table | None, list[Problem]]:
     """Read ``book_dir/rel`` as comma-separated text (never modifies the file)."""
     try:
-        data = (book_dir / rel).read_bytes()
-    except OSError as exc:
-        reason = exc.strerror or type(exc).__name__
-        return None, [
-            _problem("unreadable-file", f"{rel} cannot be read ({reason})", rel, client_id)
-        ]
+        data = guard.read_input(book_dir / rel, rel, guard.MAX_CSV_BYTES, "CSV file")
+        guard.check_text_rows(data, rel)
+    except guard.InputRefused as exc:
+        return None, [_problem(exc.code, exc.message, rel, client_id)]
     text, problems = decode_text(data, rel, client_id)
     try:
         rows = list(csv.reader(io.StringIO(text, newline=""), strict=False))
@@ -248,18 +312,30 @@ def read_csv_table(
 
 
 def read_xlsx_sheets(
-    book_dir: Path, rel: str, wanted: tuple[str, ...], client_id: str | None = None
+    book_dir: Path,
+    rel: str,
+    wanted: tuple[str, ...],
+    client_id: str | None = None,
+    *,
+    first_sheet: bool = False,
 ) -> tuple[dict[str, tuple[str, Sequence[Sequence[Cell]]]] | None, tuple[str, ...], list[Problem]]:
     """Read the ``wanted`` sheets of a workbook with calamine (never modifies the file).
 
-    Returns ``{normalised name: (name as written, rows)}``, all sheet names, and problems.
+    Returns ``{normalised name: (name as written, rows)}``, all sheet names, and problems;
+    with ``first_sheet``, the first sheet comes under the key ``""`` when none is wanted.
+    The file is read once through :mod:`reportgen.io.guard` (type, size and extent checks).
     Sheet names match case-insensitively.  Real date cells arrive as dates: calamine applies
     the workbook's 1900 or 1904 date system.
     """
     from python_calamine import CalamineWorkbook
 
     try:
-        wb = CalamineWorkbook.from_path(str(book_dir / rel))
+        data = guard.read_input(book_dir / rel, rel, guard.MAX_WORKBOOK_BYTES, "workbook")
+        guard.check_workbook(data, rel)
+    except guard.InputRefused as exc:
+        return None, (), [_problem(exc.code, exc.message, rel, client_id)]
+    try:
+        wb = CalamineWorkbook.from_filelike(io.BytesIO(data))
         try:
             names = tuple(wb.sheet_names)
             found: dict[str, tuple[str, Sequence[Sequence[Cell]]]] = {}
@@ -268,6 +344,9 @@ def read_xlsx_sheets(
                 if key in wanted and key not in found:
                     rows = wb.get_sheet_by_name(name).to_python(skip_empty_area=False)
                     found[key] = (name, rows)
+            if first_sheet and names and not found:  # e.g. a roster whose sheet is not "clients"
+                rows = wb.get_sheet_by_index(0).to_python(skip_empty_area=False)
+                found[""] = (names[0], rows)
         finally:
             wb.close()
     except Exception as exc:  # calamine raises several unrelated types for broken files

@@ -85,13 +85,65 @@ def _chart_font_file(
     """
     src = font_path()
     recipe = f"v2:{src}:{src.stat().st_size}:{FONT_TABLES_DROPPED}:{family}:{ranges}"
-    stamp = hashlib.sha256(recipe.encode())
+    stamp = hashlib.sha256(recipe.encode()).hexdigest()[:16]
     if folder is None:
-        uid = os.getuid() if hasattr(os, "getuid") else 0
-        folder = Path(tempfile.gettempdir()) / f"reportgen-{uid}"
-    target = folder / f"chart-font-{stamp.hexdigest()[:16]}.ttf"
-    if target.is_file():
-        return target
+        folder = font_cache_folder()
+    # The file name carries the hash of its own bytes: a copy is loaded only if it still
+    # has them (a damaged or replaced file is rebuilt, never handed to the font loader).
+    for found in sorted(folder.glob(f"chart-font-{stamp}-*.ttf")):
+        if _verified(found):
+            return found
+    data = _build_chart_font(src, family, ranges)
+    target = folder / f"chart-font-{stamp}-{hashlib.sha256(data).hexdigest()[:32]}.ttf"
+    folder.mkdir(parents=True, exist_ok=True, mode=0o700)
+    fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
+    with os.fdopen(fd, "wb") as fh:
+        fh.write(data)
+    os.replace(tmp, target)  # atomic: concurrent workers never see half a file
+    return target
+
+
+def _verified(path: Path) -> bool:
+    """A regular file (not a link) of ours whose sha256 matches the one in its name."""
+    import stat
+
+    try:
+        st = path.lstat()
+        if not stat.S_ISREG(st.st_mode) or (hasattr(os, "getuid") and st.st_uid != os.getuid()):
+            return False
+        want = path.stem.rsplit("-", 1)[-1]
+        return hashlib.sha256(path.read_bytes()).hexdigest()[: len(want)] == want
+    except OSError:
+        return False
+
+
+@cache
+def font_cache_folder() -> Path:
+    """A per-user folder for the chart fonts, private to this user (mode 0700).
+
+    The platform's cache folder (``$XDG_CACHE_HOME`` or ``~/.cache``, under ``reportgen``),
+    never the shared temporary folder, where another user could plant a file under a name
+    that is easy to predict.  If that folder cannot be made private, a fresh private
+    temporary folder is used for this process.
+    """
+    import stat
+
+    base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
+    folder = Path(base) / "reportgen" / "fonts"
+    try:
+        folder.mkdir(parents=True, exist_ok=True, mode=0o700)
+        st = folder.lstat()
+        uid = os.getuid() if hasattr(os, "getuid") else st.st_uid
+        if not stat.S_ISDIR(st.st_mode) or st.st_uid != uid:
+            raise PermissionError(f"{folder} is not a folder of this user")
+        if st.st_mode & 0o077:
+            folder.chmod(0o700)
+        return folder
+    except OSError:
+        return Path(tempfile.mkdtemp(prefix="reportgen-fonts-"))  # mode 0700, unpredictable
+
+
+def _build_chart_font(src: Path, family: str, ranges: tuple[tuple[int, int], ...]) -> bytes:
     from fontTools import subset
 
     options = subset.Options()
@@ -112,12 +164,9 @@ def _chart_font_file(
     # keep DejaVu's own head.modified: a save-time timestamp would make the embedded subsets,
     # and so every PDF, differ between machines or after the cache is cleared
     font.recalcTimestamp = False
-    folder.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
-    with os.fdopen(fd, "wb") as fh:
-        font.save(fh)
-    os.replace(tmp, target)  # atomic: concurrent workers never see half a file
-    return target
+    buf = io.BytesIO()
+    font.save(buf)
+    return buf.getvalue()
 
 
 @cache

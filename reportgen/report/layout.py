@@ -65,6 +65,10 @@ def logo_flowable(config: Config) -> Flowable | None:
         return None
     if not path.is_file():
         raise LogoError(f"{path}: logo file not found")
+    from reportgen.io.guard import MAX_LOGO_BYTES
+
+    if path.stat().st_size > MAX_LOGO_BYTES:
+        raise LogoError(f"{path}: the logo is larger than {MAX_LOGO_BYTES / 1e6:.0f} MB")
     if path.suffix.lower() == ".svg":
         import copy
 

@@ -22,11 +22,12 @@ from pathlib import Path
 from typing import Any
 
 import jinja2
+import jinja2.sandbox
 from markupsafe import Markup, escape
 from reportlab.platypus import Flowable
 
 from reportgen.config import Config
-from reportgen.resources import templates_dir
+from reportgen.resources import template_problem, templates_dir
 
 from .para import Paragraph
 from .theme import Theme
@@ -38,7 +39,9 @@ def _environment(override: str) -> jinja2.Environment:
     if override:
         loaders.append(jinja2.FileSystemLoader(override))
     loaders.append(jinja2.FileSystemLoader(str(templates_dir())))
-    return jinja2.Environment(
+    # Sandboxed: a template (the practice's override folder may be shared or copied from
+    # elsewhere) can format values but never reach Python internals or run commands.
+    return jinja2.sandbox.SandboxedEnvironment(
         loader=jinja2.ChoiceLoader(loaders),
         autoescape=True,
         undefined=jinja2.StrictUndefined,
@@ -53,17 +56,42 @@ def environment(config: Config) -> jinja2.Environment:
     return _environment(str(folder) if folder else "")
 
 
+class TemplateProblem(ValueError):
+    """A template that cannot be used (syntax, a missing value, an unsafe operation)."""
+
+
 class Wording:
-    """The macros and label tables of one template file, e.g. ``report/client.j2``."""
+    """The macros and label tables of one template file, e.g. ``report/client.j2``.
+
+    Any template error (syntax, undefined value, an operation the sandbox refuses) becomes a
+    :class:`TemplateProblem` naming the template.
+    """
 
     def __init__(self, config: Config, name: str) -> None:
-        self._module = environment(config).get_template(name).module
+        env = environment(config)
+        self._name = name
+        self._env = env
+        try:
+            self._module = env.get_template(name).module
+        except (jinja2.TemplateError, jinja2.sandbox.SecurityError) as exc:
+            raise TemplateProblem(template_problem(exc, name, env)) from None
 
     def __getattr__(self, name: str) -> Any:
-        return getattr(self._module, name)
+        value = getattr(self._module, name)
+        if isinstance(value, jinja2.runtime.Macro):
+            macro = value
+
+            def call(*args: Any, **kwargs: Any) -> Any:
+                try:
+                    return macro(*args, **kwargs)
+                except (jinja2.TemplateError, jinja2.sandbox.SecurityError) as exc:
+                    raise TemplateProblem(template_problem(exc, self._name, self._env)) from None
+
+            return call
+        return value
 
     def text(self, macro: str, *args: Any) -> str:
-        fn: Callable[..., Any] = getattr(self._module, macro)
+        fn: Callable[..., Any] = getattr(self, macro)
         return str(fn(*args))
 
 
