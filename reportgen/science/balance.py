@@ -1,13 +1,13 @@
 """Energy balance: stored energy, realised deficit, observed TDEE and a daily expenditure path.
 
 Observed TDEE over a window = mean logged intake + realised deficit, where the
-realised deficit is the energy drawn from body stores per day (science notes
-§4.4).  The energy per kg of the weight change comes from Hall 2008's tissue
-energy densities and Forbes' fat/lean partition (``reportgen.science.composition``),
-with the client's fat mass from the latest skinfold result or the BMI-based
+realised deficit is the energy drawn from body stores per day.  The energy per
+kg of the weight change comes from Hall 2008's tissue energy densities and
+Forbes' fat/lean partition (``reportgen.science.composition``), with the
+client's fat mass from the latest skinfold result or the BMI-based
 fallback.
 
-The 80 % interval (science notes §4.5) combines, as independent parts:
+The 80 % interval combines, as independent parts:
 
 * the rate's standard error from :func:`reportgen.science.rates.window_rate`,
   which allows for autocorrelated water swings (AR(1) plus white noise);
@@ -45,7 +45,7 @@ from reportgen.science.rates import (
 )
 from reportgen.science.trend import Z80
 
-MIN_DAYS = 14  # no expenditure from fewer days (science notes §4.4, §8: common practice)
+MIN_DAYS = 14  # no expenditure from fewer days (common practice: glycogen and water)
 MIN_WEIGH_INS = 8  # judgment: fewer weigh-ins than this cannot pin a rate
 MIN_INTAKE_DAYS = 7  # judgment: a mean intake from fewer logged days is not used
 KCAL_PER_KG_SPREADSHEET = 7700.0  # the constant a spreadsheet typically uses (common practice)
@@ -87,7 +87,7 @@ def observed_tdee_kcal(
     days: float,
     energy_density_kcal_per_kg_: float,
 ) -> float:
-    """Observed TDEE = mean intake - rho dW / days (science notes §4.4).
+    """Observed TDEE = mean intake - rho dW / days (energy balance; Hall 2008 for rho).
 
     Parameters
     ----------
@@ -103,7 +103,7 @@ def observed_tdee_kcal(
     Returns
     -------
     float
-        [kcal/day].  Check value (notes §10 item 33, computed there): 2000 kcal/day,
+        [kcal/day].  Check value (computed here): 2000 kcal/day,
         -1.0 kg in 14 days, 7700 kcal/kg gives 2550.
     """
     return mean_intake_kcal - energy_density_kcal_per_kg_ * weight_change_kg / days
@@ -112,8 +112,8 @@ def observed_tdee_kcal(
 def rate_se_iid_kg_per_day(noise_sd_kg: float, n_days: int) -> float:
     """Least-squares slope SE for n consecutive daily weights with independent noise.
 
-    sigma sqrt(12 / (n (n^2 - 1))) [kg/day] (science notes §4.5; the standard
-    regression result).  Check value (notes §10 item 50): n 14, sigma 0.5, times
+    sigma sqrt(12 / (n (n^2 - 1))) [kg/day] (the standard
+    regression result).  Check value (computed here): n 14, sigma 0.5, times
     7700 kcal/kg gives 255 kcal/day.
     """
     if n_days < 2:
