@@ -250,3 +250,15 @@ def test_expenditure_path_matches_statsmodels_kalman_smoother() -> None:
     assert np.allclose(ours.tdee_kcal, reference.smoothed_state[1], rtol=0, atol=1e-6)
     assert np.allclose(ours.weight_kg, reference.smoothed_state[0], rtol=0, atol=1e-9)
     assert np.allclose(ours.sd_kcal, np.sqrt(reference.smoothed_state_cov[1, 1]), rtol=0, atol=1e-6)
+
+
+def test_measured_partition_replaces_forbes() -> None:
+    # Serial skinfolds put the lean share at 0.20 (SD 0.05): rho = 9440 x 0.8 + 1816 x 0.2
+    # = 7915.2 kcal/kg (Hall 2008 densities, computed here), deficit = 0.1 x rho.
+    w = _line(28, -0.1)
+    b = window_balance(w, np.full(28, 2000.0), 20.0, 0.0, lean_share=(0.2, 0.05))
+    assert b.energy_density_kcal_per_kg == pytest.approx(7915.2, rel=1e-12)
+    assert b.deficit_kcal.value == pytest.approx(791.52, rel=1e-9)
+    assert b.fat_change_kg == pytest.approx(-2.24, rel=1e-9)
+    half = b.deficit_kcal.high - b.deficit_kcal.value  # type: ignore[operator]
+    assert half == pytest.approx(Z80 * 0.1 * (9440 - 1816) * 0.05, rel=1e-3)

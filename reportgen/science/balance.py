@@ -201,6 +201,7 @@ def window_balance(
     noise: NoiseModel | None = None,
     rate: WindowRate | None = None,
     lean_share_log_sd: float = LEAN_SHARE_LOG_SD,
+    lean_share: tuple[float, float] | None = None,
 ) -> WindowBalance:
     """Realised deficit and observed TDEE over one window, with 80 % intervals.
 
@@ -244,7 +245,9 @@ def window_balance(
     spread of rho over F +/- SE(F) and the between-person spread of the fat/lean
     partition around Forbes' curve (``lean_share_log_sd``, log-SD of the lean share;
     :func:`reportgen.science.energy_density.energy_density_with_spread`; 0 switches
-    it off, e.g. when measured composition has pinned the partition);
+    it off); with ``lean_share`` (share, SD) from the client's serial skinfolds
+    (:func:`reportgen.science.energy_density.lean_share_from_skinfolds`) the
+    partition is the measured one instead of Forbes' curve;
     Var(TDEE) = Var(deficit) + s_I^2 / n_I.  Intervals are +/- 1.2816 SD (80 %).
     """
     w = np.asarray(weight_kg, dtype=float)
@@ -298,7 +301,14 @@ def window_balance(
         rho_lo, rho_hi = min(r_a, r_b), max(r_a, r_b)
         d_fat, d_lean = partition_weight_change_hall(fat_start_kg, change)
     s_rho = (rho_hi - rho_lo) / 2.0
-    if fat_start_kg is not None and lean_share_log_sd > 0:
+    if lean_share is not None and fat_start_kg is not None:
+        # the client's own measured composition change informs the partition (the
+        # intake-balance method of CALERIE, Racette et al. 2012)
+        p_lean, p_sd = lean_share
+        rho = RHO_FAT_KCAL_PER_KG * (1.0 - p_lean) + RHO_LEAN_KCAL_PER_KG * p_lean
+        s_rho = math.hypot(s_rho, (RHO_FAT_KCAL_PER_KG - RHO_LEAN_KCAL_PER_KG) * p_sd)
+        d_fat, d_lean = (1.0 - p_lean) * change, p_lean * change
+    elif fat_start_kg is not None and lean_share_log_sd > 0:
         # people differ around Forbes' curve (training, protein): partition spread
         _, s_part = energy_density_with_spread(fat_start_kg, change, 0.0, lean_share_log_sd)
         s_rho = math.hypot(s_rho, s_part)
