@@ -16,11 +16,17 @@ import textwrap
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, get_args, get_origin, get_type_hints
+from typing import Any, Literal, get_args, get_origin, get_type_hints
+
+from reportgen.choices import BODYFAT_EQUATIONS as BODYFAT_EQUATIONS
+from reportgen.choices import BOOK_DATE_ORDERS as BOOK_DATE_ORDERS
+from reportgen.choices import DENSITY_CONVERSIONS as DENSITY_CONVERSIONS
+from reportgen.choices import ENERGY_UNITS as ENERGY_UNITS
+from reportgen.choices import MAIL_SECURITY as MAIL_SECURITY
 
 PAPER_SIZES = ("A4", "letter")
+PROJECTION_WEEKS_MAX = 26  # the analysis projects this far; a report shows its configured part
 WEIGHT_UNITS = ("kg", "lb")
-ENERGY_UNITS = ("kcal", "kJ")
 SECTIONS = (
     "overview",
     "charts",
@@ -29,14 +35,6 @@ SECTIONS = (
     "methods",
     "cautions",
 )
-BODYFAT_EQUATIONS = (
-    "auto",
-    "jackson-pollock-7",
-    "jackson-pollock-3",
-    "durnin-womersley-4",
-)
-DENSITY_CONVERSIONS = ("siri", "brozek")
-MAIL_SECURITY = ("starttls", "tls", "none")
 
 
 class ConfigError(ValueError):
@@ -74,6 +72,19 @@ class AnalysisSettings:
 
 
 @dataclass(frozen=True)
+class BookSettings:
+    date_order: str = "auto"  # for logs whose dates could be day-first or month-first
+
+    def date_order_setting(self) -> Literal["day-first", "month-first"] | None:
+        """The order for the readers; None for "auto" (decide from the values or refuse)."""
+        if self.date_order == "day-first":
+            return "day-first"
+        if self.date_order == "month-first":
+            return "month-first"
+        return None
+
+
+@dataclass(frozen=True)
 class MailSettings:
     host: str = "localhost"
     port: int = 587
@@ -96,6 +107,7 @@ class Config:
     practice: PracticeSettings = field(default_factory=PracticeSettings)
     report: ReportSettings = field(default_factory=ReportSettings)
     analysis: AnalysisSettings = field(default_factory=AnalysisSettings)
+    book: BookSettings = field(default_factory=BookSettings)
     mail: MailSettings = field(default_factory=MailSettings)
     source: str | None = None  # the file it was read from, if any
     # sha256 of the bytes read from that file (bookkeeping, not a setting: not compared)
@@ -121,6 +133,7 @@ _TABLES = {
     "practice": PracticeSettings,
     "report": ReportSettings,
     "analysis": AnalysisSettings,
+    "book": BookSettings,
     "mail": MailSettings,
 }
 _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
@@ -130,6 +143,7 @@ _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
     ("analysis", "bodyfat_equation"): BODYFAT_EQUATIONS,
     ("analysis", "density_conversion"): DENSITY_CONVERSIONS,
     ("mail", "security"): MAIL_SECURITY,
+    ("book", "date_order"): BOOK_DATE_ORDERS,
 }
 _COLOUR = re.compile(r"^#[0-9A-Fa-f]{6}$")
 
@@ -180,6 +194,11 @@ def _table_problems(table: str, value: Any) -> tuple[dict[str, Any], list[str]]:
             problems.append(str(exc))
             continue
         choices = _CHOICES.get((table, key))
+        if choices and isinstance(coerced, str) and coerced not in choices:
+            # choices are matched without regard to case ("Letter" is letter)
+            same = [c for c in choices if c.casefold() == coerced.strip().casefold()]
+            if same:
+                coerced = same[0]
         if choices and coerced not in choices:
             problems.append(
                 f"[{table}] {key} = {v!r} is not allowed; use one of: {', '.join(choices)}"
@@ -287,8 +306,8 @@ def _check(cfg: Config) -> list[str]:
         out.append(f"[report] sections lists {', '.join(dupes)} more than once")
     if "cautions" not in r.sections:
         out.append('[report] sections must include "cautions": every report carries them')
-    if not 1 <= r.projection_weeks <= 26:
-        out.append("[report] projection_weeks must be between 1 and 26")
+    if not 1 <= r.projection_weeks <= PROJECTION_WEEKS_MAX:
+        out.append(f"[report] projection_weeks must be between 1 and {PROJECTION_WEEKS_MAX}")
     problem = _date_format_problem(r.date_format)
     if problem:
         out.append(problem)
@@ -364,6 +383,7 @@ SECTION_DOCS: dict[str, str] = {
     "practice": "Your practice, as printed on every report and summary.",
     "report": "How the client reports look.",
     "analysis": "Methods and assumptions of the analysis.",
+    "book": "How the client book is read.",
     "mail": "How `reportgen send` delivers the reports by e-mail.",
 }
 
@@ -404,6 +424,12 @@ SETTING_DOCS: dict[str, dict[str, str]] = {
         "for expected expenditure only when a client has no usable maintenance baseline.",
         "target_rates_pct_per_week": "Weekly loss rates (% of body weight per week, each above "
         "0 and at most 1.5) for which the report shows the intake needed.",
+    },
+    "book": {
+        "date_order": "How dates such as 03/04/2026 are read when no date in a log settles "
+        "it (no day above 12): auto refuses such a log with a message; day-first reads "
+        "03/04/2026 as 3 April, month-first as March 4. A log whose dates settle it is "
+        "always read that way.",
     },
     "mail": {
         "host": "SMTP server that sends the mail.",

@@ -23,12 +23,13 @@ from _batch_helpers import (
 )
 from pypdf import PdfReader
 
+from reportgen.month import ReportMonth
 from reportgen.results import Estimate, PhaseResult
-from reportgen.summary import DECIMALS, SUMMARY_COLUMNS, month_bounds
+from reportgen.summary import DECIMALS, SUMMARY_COLUMNS
 
 __all__ = ["reference_run"]  # the shared session fixture
 
-SAMPLE_IDS = [f"c{n:03d}" for n in range(1, 11)]
+SAMPLE_IDS = [f"c{n:03d}" for n in range(1, 13)]
 GOOD_IDS = [c for c in SAMPLE_IDS if c != FAILING_CLIENT]
 
 
@@ -46,7 +47,7 @@ def test_reference_run_writes_exactly_the_expected_files(reference_run: Referenc
     expected = sorted(
         [f"{c}.pdf" for c in GOOD_IDS]
         + [f"{c}-practitioner.pdf" for c in GOOD_IDS]
-        + ["overview.pdf", "summary.csv", "manifest.json"]
+        + ["overview.pdf", "methods.pdf", "summary.csv", "manifest.json"]
     )
     assert names == expected
     for name in names:
@@ -77,7 +78,7 @@ def test_manifest_contents_and_hashes(reference_run: ReferenceRun) -> None:
     assert m["config_file"] is None
     assert m["config"]["report"]["paper"] == "A4"
     assert m["book_problems"] == []
-    assert sorted(m["files"]) == ["overview.pdf", "summary.csv"]
+    assert sorted(m["files"]) == ["methods.pdf", "overview.pdf", "summary.csv"]
     for name, digest in m["files"].items():
         assert hashlib.sha256((month_dir / name).read_bytes()).hexdigest() == digest
     assert list(m["clients"]) == SAMPLE_IDS
@@ -123,7 +124,7 @@ def _analyse(book: Path, cid: str):  # type: ignore[no-untyped-def]
         book,
         client,
         roster.phases.get(cid, ()),
-        month_bounds(MONTH)[1],
+        ReportMonth(MONTH).last_day,
         roster_problems=tuple(p for p in roster.problems if p.client_id == cid),
     )
     assert record.ok
@@ -147,7 +148,7 @@ def test_summary_rows_match_the_analysis(reference_run: ReferenceRun, cid: str) 
     rows = [r for r in reader if r["client_id"] == cid]
 
     analysis = _analyse(reference_run.book, cid)
-    first, last = month_bounds(MONTH)
+    first, last = ReportMonth(MONTH).first_day, ReportMonth(MONTH).last_day
     overlapping: list[PhaseResult] = [
         p for p in analysis.phases if p.start <= last and (p.end is None or p.end >= first)
     ]
@@ -232,6 +233,7 @@ def test_subset_of_clients_exit_zero(reference_run: ReferenceRun, tmp_path: Path
             "c003.pdf",
             "c003-practitioner.pdf",
             "manifest.json",
+            "methods.pdf",
             "overview.pdf",
             "summary.csv",
         ]

@@ -22,9 +22,9 @@ from reportgen.delivery.ledger import (
 from reportgen.delivery.messages import (
     attachment_name,
     mail_environment,
-    month_label,
     render_content,
 )
+from reportgen.month import ReportMonth
 
 # --- addresses -------------------------------------------------------------------------
 
@@ -167,8 +167,8 @@ def test_ledger_appends_on_a_fresh_line_and_locks_the_month(tmp_path: Path) -> N
 
 
 def test_month_label_and_attachment_names() -> None:
-    assert month_label("2026-11") == "November 2026"
-    assert month_label("2027-01") == "January 2027"
+    assert ReportMonth("2026-11").label == "November 2026"
+    assert ReportMonth("2027-01").label == "January 2027"
     assert attachment_name("report", "2026-11", "c001") == "report-2026-11-c001.pdf"
     assert attachment_name("practitioner", "2026-11", "ab_c-1") == (
         "practitioner-summary-2026-11-ab_c-1.pdf"
@@ -182,16 +182,42 @@ def test_html_body_escapes_client_text_and_text_body_keeps_it() -> None:
         env,
         "report",
         config=Config(),
-        client_name="Tom & <Jerry>",
+        client_name="<Tom> & Jerry",
+        client_id="c001",
+        month=ReportMonth("2026-11"),
+        filename="report-2026-11-c001.pdf",
+        encrypted=False,
+    )
+    assert "Hello &lt;Tom&gt;," in content.html  # greeted by first name, escaped
+    assert "Hello <Tom>," in content.text
+    assert "meant only for &lt;Tom&gt; &amp; Jerry" in content.html
+    assert content.subject == "Your monthly report for November 2026"  # no practice name set
+    assert "password" not in content.text
+
+
+@pytest.mark.parametrize(
+    ("roster_name", "greeted"),
+    [
+        ("Tamsin Greaves", "Tamsin"),  # first name when the roster has one
+        ("Amara Okafor-Lindqvist", "Amara"),
+        ("Madonna", "Madonna"),  # a single name as written
+        ("J. Smith", "J. Smith"),  # an initial is not a first name
+    ],
+)
+def test_messages_greet_by_first_name_where_the_roster_allows(
+    roster_name: str, greeted: str
+) -> None:
+    content = render_content(
+        mail_environment(Config()),
+        "report",
+        config=Config(),
+        client_name=roster_name,
         client_id="c001",
         month="2026-11",
         filename="report-2026-11-c001.pdf",
         encrypted=False,
     )
-    assert "Hello Tom &amp; &lt;Jerry&gt;," in content.html
-    assert "Hello Tom & <Jerry>," in content.text
-    assert content.subject == "Your monthly report for November 2026"  # no practice name set
-    assert "password" not in content.text
+    assert content.text.startswith(f"Hello {greeted},\n")
 
 
 def test_practice_templates_override_the_shipped_ones(tmp_path: Path) -> None:
@@ -206,7 +232,7 @@ def test_practice_templates_override_the_shipped_ones(tmp_path: Path) -> None:
         config=config,
         client_name="Ana",
         client_id="c001",
-        month="2026-11",
+        month=ReportMonth("2026-11"),
         filename="f.pdf",
         encrypted=True,
     )

@@ -17,6 +17,7 @@ from reportgen.config import (
     SECTION_DOCS,
     SETTING_DOCS,
     AnalysisSettings,
+    BookSettings,
     Config,
     ConfigError,
     MailSettings,
@@ -33,6 +34,7 @@ TABLES = {
     "practice": PracticeSettings,
     "report": ReportSettings,
     "analysis": AnalysisSettings,
+    "book": BookSettings,
     "mail": MailSettings,
 }
 
@@ -112,6 +114,25 @@ def test_check_accepts_a_good_file(tmp_path: Path) -> None:
     r = CliRunner().invoke(main, ["settings", "check", str(path)], catch_exceptions=False)
     assert r.exit_code == 0, r.output
     assert r.output.strip() == f"{path}: OK (5 settings differ from the defaults)"
+
+
+@pytest.mark.parametrize(
+    ("toml", "key", "value"),
+    [
+        ('[report]\npaper = "Letter"\n', "paper", "letter"),
+        ('[report]\npaper = "a4"\n', "paper", "A4"),
+        ('[report]\nweight_unit = "KG"\n', "weight_unit", "kg"),
+        ('[report]\nenergy_unit = "KJ"\n', "energy_unit", "kJ"),
+    ],
+)
+def test_choices_are_accepted_whatever_their_case(
+    tmp_path: Path, toml: str, key: str, value: str
+) -> None:
+    path = tmp_path / "practice.toml"
+    path.write_text(toml, encoding="utf-8")
+    r = CliRunner().invoke(main, ["settings", "check", str(path)], catch_exceptions=False)
+    assert r.exit_code == 0, r.output
+    assert getattr(load_config(path).report, key) == value  # stored in its canonical spelling
 
 
 @pytest.mark.parametrize(

@@ -8,6 +8,9 @@ from typing import TYPE_CHECKING
 
 import click
 
+from reportgen.cli.params import REPORT_MONTH
+from reportgen.month import ReportMonth
+
 if TYPE_CHECKING:
     from reportgen.batch import BatchResult
 
@@ -33,8 +36,9 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     out = Console(highlight=False)
     err = Console(stderr=True, highlight=False)
     failed = result.failed
-    with_warnings = [o for o in result.outcomes if o.warnings]
-    n_warnings = sum(len(o.warnings) for o in result.outcomes)
+    # warnings are counted among the clients done: a failed client is counted once, as failed
+    with_warnings = [o for o in result.succeeded if o.warnings]
+    n_warnings = sum(len(o.warnings) for o in with_warnings)
 
     if verbose:
         for o in failed:
@@ -55,7 +59,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     table.add_column("")
     table.add_row("done", str(len(result.succeeded)), "")
     table.add_row(
-        "warnings",
+        "  of these with warnings",
         str(len(with_warnings)),
         f"{n_warnings} in all, listed in manifest.json" if n_warnings else "",
     )
@@ -68,7 +72,8 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
             "(manifest.json book_problems; `reportgen check` shows them)",
         )
     for o in failed:
-        table.add_row("", Text(esc(o.client_id)), Text(esc(o.reason)))
+        who = f"{o.name}: {o.reason}" if o.name else o.reason
+        table.add_row("", Text(esc(o.client_id)), Text(esc(who)))
     out.print(table)
     for e in result.errors:
         err.print(esc(e), markup=False)
@@ -79,7 +84,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
 
 @click.command("batch")
 @click.argument("book", type=click.Path(file_okay=False, path_type=Path))
-@click.option("--month", required=True, metavar="YYYY-MM", help="The report month, e.g. 2026-11.")
+@click.option("--month", required=True, type=REPORT_MONTH, help="The report month, e.g. 2026-11.")
 @click.option(
     "--out",
     "out_dir",
@@ -91,7 +96,8 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     "--workers",
     type=click.IntRange(min=1),
     default=None,
-    help="Worker processes (default: one per core; 1 runs everything in this process).",
+    help="Worker processes (default: one per core; 1 makes the clients one after another in "
+    "a single worker).",
 )
 @click.option(
     "--clients",
@@ -117,7 +123,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
 )
 def batch_command(
     book: Path,
-    month: str,
+    month: ReportMonth,
     out_dir: Path,
     workers: int | None,
     clients: str | None,
@@ -131,14 +137,10 @@ def batch_command(
     Exit code 0 when every client succeeded, 1 when some failed (the others
     are still written), 2 for a usage error or an unreadable book.
     """
-    from reportgen.batch import BatchUsageError, parse_month, run_batch
+    from reportgen.batch import BatchUsageError, run_batch
     from reportgen.config import ConfigError, load_config
     from reportgen.io.model import InputError
 
-    try:
-        parse_month(month)
-    except BatchUsageError as exc:
-        raise click.BadParameter(str(exc), param_hint="--month") from None
     ids = _split_ids(clients)
     try:
         config = load_config(config_file)

@@ -27,21 +27,25 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Final
 
-#: [bytes] Largest CSV file read: a daily log of 100 years is about 2 MB; 20 MB leaves room for
-#: wide exports while keeping parsing well under a second and memory under 1 GB.
+from reportgen.io.model import Problem
+
+#: [bytes] Largest CSV file read: a daily log of 54 years is well under 1 MB; 20 MB leaves
+#: room for wide exports while keeping memory far under 1 GB (rows and cells are limited too).
 MAX_CSV_BYTES: Final = 20 * 1024 * 1024
 #: [bytes] Largest workbook file read (compressed size on disk).
 MAX_WORKBOOK_BYTES: Final = 20 * 1024 * 1024
 #: [bytes] Largest total uncompressed size of a workbook's parts: beyond this a small file can
 #: expand to gigabytes (an archive bomb).  Real logs are a few hundred kB uncompressed.
 MAX_WORKBOOK_UNCOMPRESSED: Final = 100 * 1024 * 1024
-#: Most data rows in one file or sheet: 100000 days is 270 years of daily entries.
-MAX_ROWS: Final = 100_000
+#: Most data rows in one file or sheet: 20000 days is 54 years of daily entries, and a roster
+#: of 20000 clients is a very large practice.  Reading and checking that many rows takes a few
+#: seconds; an export repeated to millions of rows is refused at once instead.
+MAX_ROWS: Final = 20_000
 #: Most columns in one file or sheet: the widest input has about 20 named columns.
 MAX_COLUMNS: Final = 200
 #: Most cells (rows x columns) one sheet may span: keeps the spreadsheet reader's memory
 #: bounded (each cell becomes a Python object of about 50-100 bytes).
-MAX_CELLS: Final = 2_000_000
+MAX_CELLS: Final = 1_000_000
 #: [characters] Longest single cell: a name or a note is far shorter; a longer cell is damage
 #: (or an attempt to exhaust memory), reported for its row only.
 MAX_CELL_CHARS: Final = 10_000
@@ -170,12 +174,24 @@ def read_input(path: Path, rel: str, max_bytes: int, what: str = "file") -> byte
 
 
 def check_text_rows(data: bytes, rel: str) -> None:
-    """Refuse a CSV with more lines than :data:`MAX_ROWS` (counted before parsing)."""
+    """Refuse a CSV beyond :data:`MAX_ROWS` lines or :data:`MAX_CELLS` cells.
+
+    Counted on the bytes before parsing (line breaks, and separators plus line breaks for
+    cells; quoted commas count too, so this is an upper bound), so the refusal is fast and
+    the parse that follows has bounded memory.
+    """
     lines = data.count(b"\n")
     if lines > MAX_ROWS + 1:
         raise InputRefused(
             f"{rel} has {lines} lines, more than the {MAX_ROWS} rows reportgen reads from one "
             "file; is it the right file (an export repeated many times)?",
+            "file-too-large",
+        )
+    cells = data.count(b",") + data.count(b";") + data.count(b"\t") + lines + 1
+    if cells > MAX_CELLS:
+        raise InputRefused(
+            f"{rel} has about {cells} cells, more than the {MAX_CELLS} reportgen reads from one "
+            "file; is it the right file?",
             "file-too-large",
         )
 
@@ -307,6 +323,69 @@ def _scan_ods(zf: zipfile.ZipFile, info: zipfile.ZipInfo, rel: str) -> None:
                     f"reportgen reads ({MAX_CELLS} cells); delete the unused rows and columns",
                     "file-too-large",
                 )
+
+
+def header_problem(
+    header: Sequence[object], file: str, where: str, row: int, client_id: str | None
+) -> Problem | None:
+    if len(header) > MAX_COLUMNS:
+        return Problem(
+            "error",
+            "file-too-large",
+            f"{where} has {len(header)} columns in its header row, more than the "
+            f"{MAX_COLUMNS} reportgen reads; is it the right file?",
+            file=file,
+            row=row,
+            client_id=client_id,
+        )
+    if long_cell(header) is not None:
+        return Problem(
+            "error",
+            "cell-too-long",
+            f"the header row of {where} has a cell longer than {MAX_CELL_CHARS} "
+            "characters; is it the right file?",
+            file=file,
+            row=row,
+            client_id=client_id,
+        )
+    return None
+
+
+def long_cell_problem(
+    r: Sequence[object],
+    names: tuple[str, ...],
+    raw: tuple[str, ...],
+    file: str,
+    where: str,
+    row: int,
+    client_id: str | None,
+) -> Problem | None:
+    """An error for a row holding a cell beyond :data:`MAX_CELL_CHARS` (the row is left out).
+
+    For a table with a ``client_id`` column (roster, phases) the row's client is named.
+    """
+    pos = long_cell(r)
+    if pos is None:
+        return None
+    cid = client_id
+    if cid is None and "client_id" in names:  # a roster or phases row: name its client
+        at = names.index("client_id")
+        text = r[at] if at < len(r) else None
+        if isinstance(text, str) and 0 < len(text.strip()) <= MAX_CELL_CHARS:
+            cid = text.strip()
+    column = raw[pos] if pos < len(raw) else None
+    return Problem(
+        "error",
+        "cell-too-long",
+        f"row {row} of {where} has a cell of {len(str(r[pos]))} characters"
+        + (f" in column {column}" if column else "")
+        + f", more than the {MAX_CELL_CHARS} reportgen reads; the row is left out. "
+        "Shorten the cell",
+        file=file,
+        row=row,
+        column=column,
+        client_id=cid,
+    )
 
 
 def long_cell(row: Sequence[object]) -> int | None:

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-import calendar
+from collections.abc import Sequence
 from types import SimpleNamespace
 
 import numpy as np
@@ -10,6 +10,7 @@ from reportlab.lib.units import mm
 from reportlab.platypus import Flowable, Spacer
 
 from reportgen.config import Config
+from reportgen.month import ReportMonth
 from reportgen.results import ClientAnalysis
 
 from .layout import data_table, practice_header
@@ -18,7 +19,6 @@ from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
 from .theme import page_size, theme_for
 from .units import DASH, Units
-from .viewmodel import month_label
 from .wording import Wording, blocks, esc
 
 # Attention score: an urgent flag outranks any number of cautions, a caution any number of notes.
@@ -27,17 +27,12 @@ SEVERITY_WEIGHT = {"urgent": 10_000, "caution": 100, "info": 1}
 SPARSE_LOGGING_WEIGHT = 50
 
 
-def _month_bounds(month: str) -> tuple[np.datetime64, np.datetime64, int]:
-    year, mon = (int(p) for p in month.split("-"))
-    days = calendar.monthrange(year, mon)[1]
-    first = np.datetime64(f"{year:04d}-{mon:02d}-01", "D")
-    return first, first + days, days
-
-
 def make_overview_line(analysis: ClientAnalysis) -> OverviewLine:
     """The client's line in the overview (small and picklable: built in the worker)."""
     a = analysis
-    first, after, days = _month_bounds(a.month)
+    days = a.month.days
+    first = np.datetime64(a.month.first_day, "D")
+    after = first + days
     in_month = (a.log.dates >= first) & (a.log.dates < after)
     weights = a.log.weight_used_kg
     weight_days = int(np.sum(in_month & np.isfinite(weights)))
@@ -83,9 +78,15 @@ def sort_lines(lines: list[OverviewLine]) -> list[OverviewLine]:
 
 
 def render_overview(
-    lines: list[OverviewLine], failures: list[tuple[str, str]], month: str, config: Config
+    lines: list[OverviewLine],
+    failures: Sequence[tuple[str, str] | tuple[str, str, str]],
+    month: ReportMonth | str,
+    config: Config,
 ) -> bytes:
-    """The coach's overview of every client for the month as PDF bytes (landscape)."""
+    """The coach's overview of every client for the month as PDF bytes (landscape).
+
+    ``failures`` are (client id, reason) or (client id, name, reason): the clients without a
+    report, listed by name and id after the table."""
     theme = theme_for(config.report.accent_colour)
     words = Wording(config, "report/overview.j2")
     u = Units.from_config(config)
@@ -95,7 +96,7 @@ def render_overview(
     width = pagesize[0] - 2 * margin
     ordered = sort_lines(list(lines))
     vm = SimpleNamespace(
-        month=month_label(month),
+        month=ReportMonth(month).label,
         count=str(len(ordered)),
         attention=str(sum(1 for ln in ordered if ln.flags)),
         failed=str(len(failures)),
@@ -124,18 +125,23 @@ def render_overview(
             adapt += " (≈0)"
         elif ln.adaptation_pct is not None:
             adapt += f" ({u.pct(ln.adaptation_pct, dp=0, signed=True)})"
+        # no weigh-in in the month: the trend change and rate would be extrapolations
+        measured = ln.weight_days > 0
+        flags_cell = words.text("flags_cell", ln.flags)
+        if not measured:
+            flags_cell = words.text("no_data_cell") + (", " + flags_cell if flags_cell else "")
         rows.append(
             [
                 f"<b>{esc(ln.name)}</b><br/>{esc(ln.client_id)}",
                 words.text("phase_cell", view),
-                esc(u.w(ln.month_change_kg, signed=True, unit=False)),
-                esc(u.number(ln.weekly_rate_pct, 2, signed=True)),
+                esc(u.w(ln.month_change_kg if measured else None, signed=True, unit=False)),
+                esc(u.number(ln.weekly_rate_pct if measured else None, 2, signed=True)),
                 esc(u.e(ln.realised_deficit_kcal, unit=False)),
                 esc(u.e(ln.observed_tdee_kcal, unit=False)),
                 esc(adapt),
                 esc(u.number(ln.bodyfat_change_pct, 1, signed=True)),
                 esc(f"{ln.weight_days} / {ln.intake_days} of {ln.days_in_month}"),
-                words.text("flags_cell", ln.flags) or DASH,
+                flags_cell or DASH,
             ]
         )
     fr = [0.14, 0.15, 0.07, 0.06, 0.065, 0.075, 0.09, 0.06, 0.09, 0.19]
@@ -152,7 +158,12 @@ def render_overview(
         h = Paragraph(esc(L["failed"]), theme["h2"])
         mark_heading(h, 1)
         story.append(h)
-        frows = [[f"<b>{esc(cid)}</b>", esc(reason)] for cid, reason in sorted(failures)]
+        frows = []
+        for item in sorted(failures):
+            cid, reason = item[0], item[-1]
+            name = item[1] if len(item) == 3 else ""
+            who = f"<b>{esc(name)}</b><br/>{esc(cid)}" if name else f"<b>{esc(cid)}</b>"
+            frows.append([who, esc(reason)])
         story.append(
             data_table(
                 [esc(c) for c in L["failed_cols"]],
