@@ -254,9 +254,11 @@ def _flag_view(u: Units, f: Any) -> dict[str, Any]:
     elif f.code == "essential-fat":
         out["value"] = _beside(u, float(v["bodyfat_pct"]), float(v["threshold_pct"]), pct)
         out["limit"] = pct(float(v["threshold_pct"]))
-    elif f.code == "implausible-adaptation":
-        out["value"] = _beside(u, float(v["adaptation_pct"]), float(v["threshold_pct"]), pct)
-        out["limit"] = pct(float(v["threshold_pct"]))
+    elif f.code == "implausible-adaptation" and "adaptation_kcal" in v:
+        # the data alone against what the literature expects for this deficit
+        out["value"] = u.e(float(v["adaptation_kcal"]))
+        if "typical_kcal" in v:
+            out["limit"] = u.e(float(v["typical_kcal"]))
     return out
 
 
