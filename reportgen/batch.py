@@ -237,6 +237,7 @@ def process_client(task: ClientTask) -> ClientOutcome:
                 task.month.last_day,
                 today=task.today,
                 roster_problems=task.roster_problems,
+                date_order=task.config.book.date_order_setting(),
             )
         inputs = _input_hashes(book, record.source_files, task.roster_inputs, parsed)
         warnings = tuple(p.as_dict() for p in record.warnings)

@@ -20,6 +20,9 @@ BODYFAT_EQUATIONS: Final = (
 #: Body density to percent fat (science/density.py).
 DENSITY_CONVERSIONS: Final = ("siri", "brozek")
 
+#: How ambiguous daily-log dates are read: decided from the data, day-first or month-first.
+DATE_ORDERS: Final = ("auto", "day-first", "month-first")
+
 MailSecurity = Literal["starttls", "tls", "none"]
 #: SMTP connection security: STARTTLS (port 587), implicit TLS (port 465) or none.
 MAIL_SECURITY: Final[tuple[MailSecurity, ...]] = ("starttls", "tls", "none")

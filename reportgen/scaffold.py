@@ -35,6 +35,7 @@ from reportgen.choices import ENERGY_UNITS as ENERGY_UNITS
 from reportgen.choices import UNIT_SYSTEMS as UNIT_SYSTEMS
 from reportgen.choices import EnergyUnit, UnitSystem
 from reportgen.io import limits
+from reportgen.io.book import TABLE_TYPES
 from reportgen.io.model import PHASE_KINDS, SKINFOLD_SITES
 from reportgen.unit_constants import CM_PER_INCH, KCAL_PER_KJ, KG_PER_LB, KJ_PER_KCAL
 
@@ -520,10 +521,7 @@ def add_client(
     _check_options(units, energy)
     logs = book_dir / "logs"
     for existing in sorted(logs.glob("*")) if logs.is_dir() else []:
-        if existing.stem.lower() == client_id.lower() and existing.suffix.lower() in (
-            ".xlsx",
-            ".csv",
-        ):
+        if existing.stem.lower() == client_id.lower() and existing.suffix.lower() in TABLE_TYPES:
             raise ScaffoldError(
                 f"{existing.relative_to(book_dir)} already exists; nothing was changed"
             )

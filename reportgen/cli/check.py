@@ -40,8 +40,18 @@ def _today(_ctx: click.Context, _param: click.Parameter, value: str | None) -> d
     callback=_today,
     help="Date after which entries count as future dates (default: the computer's date).",
 )
+@click.option(
+    "--config",
+    "config_file",
+    type=click.Path(dir_okay=False, path_type=Path),
+    help="Practice configuration (TOML); its [book] settings decide how the book is read.",
+)
 def check_command(
-    book: Path, month: ReportMonth | None, as_json: bool, today: dt.date | None
+    book: Path,
+    month: ReportMonth | None,
+    as_json: bool,
+    today: dt.date | None,
+    config_file: Path | None,
 ) -> None:
     """Check the client book BOOK and list every problem found.
 
@@ -49,11 +59,18 @@ def check_command(
     with file:row:column. Exits 1 when any client has an error, 2 when the book cannot be
     used at all, 0 otherwise. Input files are only read, never changed.
     """
+    from reportgen.config import ConfigError, load_config
     from reportgen.io.check import check_book
     from reportgen.io.model import InputError
 
     try:
-        result = check_book(book, month=month, today=today)
+        config = load_config(config_file)
+    except ConfigError as exc:
+        raise click.BadParameter(str(exc), param_hint="--config") from None
+    try:
+        result = check_book(
+            book, month=month, today=today, date_order=config.book.date_order_setting()
+        )
     except InputError as exc:
         if as_json:
             click.echo(json.dumps({"unusable": exc.problem.as_dict()}, indent=2, sort_keys=True))
@@ -90,7 +107,7 @@ def _print_table(result: object) -> None:
         table.add_column("where (file:row:column)", overflow="fold")
         table.add_column("problem", ratio=1)
         for p in problems:
-            style = "bold red" if p.severity == "error" else "yellow"
+            style = {"error": "bold red", "warning": "yellow"}.get(p.severity, "cyan")
             table.add_row(
                 Text(p.severity, style=style),
                 Text(escape_controls(p.client_id or "-")),

@@ -68,6 +68,9 @@ def mail_environment(config: Config) -> jinja2.Environment:
     )
 
 
+_CONTROL = re.compile(r"[\x00-\x1f\x7f-\x9f]")
+
+
 @dataclass(frozen=True)
 class MailContent:
     subject: str
@@ -82,7 +85,7 @@ def render_content(
     config: Config,
     client_name: str,
     client_id: str,
-    month: ReportMonth,
+    month: ReportMonth | str,
     filename: str,
     encrypted: bool,
 ) -> MailContent:
@@ -98,12 +101,13 @@ def render_content(
         "client_name": client_name,
         "client_id": client_id,
         "month": month,
-        "month_label": month.label,
+        "month_label": ReportMonth(month).label,
         "attachment": filename,
         "encrypted": encrypted,
     }
     subject = _render(env, f"{kind}_subject.txt.j2", context)
     subject = " ".join(subject.split())  # one line, whatever the template's layout
+    subject = _CONTROL.sub("", subject)  # no control character ever reaches a header
     text = _render(env, f"{kind}.txt.j2", context)
     html = _render(env, f"{kind}.html.j2", context)
     return MailContent(subject=subject, text=text, html=html)

@@ -214,7 +214,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         intake.value = u.e(a.month_mean_intake_kcal)
         intake.detail = str(int(np.sum(_month_mask(a) & np.isfinite(a.log.intake_kcal))))
     else:
-        intake.reason = "no-intake"
+        intake.reason = "no-intake" if a.log.has_intake else "no-intake-logged"
     figs["intake"] = intake
 
     def phase_est(attr: str, kind: str, key: str) -> Figure:
@@ -254,6 +254,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         ),
         "weeks_in_deficit": str((ph.days_in_deficit or 0) // 7) if ph else "",
         "sessions": str(len(a.bodycomp)),
+        "scale_bodyfat": bool(np.isfinite(a.log.body_fat_pct).any()),
         "goal": "",
         "goal_date": "",
         "projection_weeks": str(config.report.projection_weeks),

@@ -229,7 +229,7 @@ def window_balance(
     WindowBalance
         Deficit and TDEE are ``Estimate.missing("too-few-days")`` for windows shorter
         than 14 days, "too-few-weigh-ins" with fewer than 8 weigh-ins, and TDEE is
-        "too-few-intake-days" with fewer than 7 logged intake days.
+        "too-few-intake-days" with fewer than 7 logged intake days ("no-intake-logged" with none).
 
     Notes
     -----
@@ -307,7 +307,10 @@ def window_balance(
     sd_def = math.sqrt(var_def)
     deficit_est = Estimate(deficit, deficit - Z80 * sd_def, deficit + Z80 * sd_def)
     if mean_i is None or intake_days < MIN_INTAKE_DAYS or se_i is None:
-        tdee_est = Estimate.missing("too-few-intake-days")
+        # a weight-only client (or window) is not short of data: intake is simply not logged
+        tdee_est = Estimate.missing(
+            "no-intake-logged" if intake_days == 0 else "too-few-intake-days"
+        )
         sd_tdee = None
     else:
         tdee = mean_i + deficit
