@@ -19,13 +19,12 @@ from pathlib import Path
 from typing import Any, Literal, get_args, get_origin, get_type_hints
 
 from reportgen.choices import BODYFAT_EQUATIONS as BODYFAT_EQUATIONS
-from reportgen.choices import BOOK_DATE_ORDERS as BOOK_DATE_ORDERS
+from reportgen.choices import DATE_ORDERS as DATE_ORDERS
 from reportgen.choices import DENSITY_CONVERSIONS as DENSITY_CONVERSIONS
 from reportgen.choices import ENERGY_UNITS as ENERGY_UNITS
 from reportgen.choices import MAIL_SECURITY as MAIL_SECURITY
 
 PAPER_SIZES = ("A4", "letter")
-PROJECTION_WEEKS_MAX = 26  # the analysis projects this far; a report shows its configured part
 WEIGHT_UNITS = ("kg", "lb")
 SECTIONS = (
     "overview",
@@ -143,7 +142,7 @@ _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
     ("analysis", "bodyfat_equation"): BODYFAT_EQUATIONS,
     ("analysis", "density_conversion"): DENSITY_CONVERSIONS,
     ("mail", "security"): MAIL_SECURITY,
-    ("book", "date_order"): BOOK_DATE_ORDERS,
+    ("book", "date_order"): DATE_ORDERS,
 }
 _COLOUR = re.compile(r"^#[0-9A-Fa-f]{6}$")
 
@@ -194,11 +193,6 @@ def _table_problems(table: str, value: Any) -> tuple[dict[str, Any], list[str]]:
             problems.append(str(exc))
             continue
         choices = _CHOICES.get((table, key))
-        if choices and isinstance(coerced, str) and coerced not in choices:
-            # choices are matched without regard to case ("Letter" is letter)
-            same = [c for c in choices if c.casefold() == coerced.strip().casefold()]
-            if same:
-                coerced = same[0]
         if choices and coerced not in choices:
             problems.append(
                 f"[{table}] {key} = {v!r} is not allowed; use one of: {', '.join(choices)}"
@@ -306,8 +300,8 @@ def _check(cfg: Config) -> list[str]:
         out.append(f"[report] sections lists {', '.join(dupes)} more than once")
     if "cautions" not in r.sections:
         out.append('[report] sections must include "cautions": every report carries them')
-    if not 1 <= r.projection_weeks <= PROJECTION_WEEKS_MAX:
-        out.append(f"[report] projection_weeks must be between 1 and {PROJECTION_WEEKS_MAX}")
+    if not 1 <= r.projection_weeks <= 26:
+        out.append("[report] projection_weeks must be between 1 and 26")
     problem = _date_format_problem(r.date_format)
     if problem:
         out.append(problem)
