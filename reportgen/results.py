@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 from typing import Literal
 
 from reportgen.io.model import Client, DailyLog, DateArray, FloatArray, Problem
+from reportgen.month import ReportMonth
 
 FlagSeverity = Literal["info", "caution", "urgent"]
 
@@ -225,7 +226,7 @@ class ClientAnalysis:
     """Everything computed for one client for one report month."""
 
     client: Client
-    month: str  # "YYYY-MM"
+    month: ReportMonth  # "YYYY-MM"
     as_of: dt.date  # last day of the report month (analysis cut-off)
     age_years: int | None
     minor: bool

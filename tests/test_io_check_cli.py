@@ -170,7 +170,7 @@ def test_roster_that_cannot_be_read_exits_two(tmp_path: Path) -> None:
 def test_bad_month_option(tmp_path: Path) -> None:
     code, _, err = run(str(write_book(tmp_path / "book")), "--month", "November")
     assert code == 2
-    assert 'month "November" is not of the form YYYY-MM' in err
+    assert "month 'November' is not in the form YYYY-MM" in err
 
 
 def test_check_has_help() -> None:

@@ -7,7 +7,6 @@ every stage reads it and none changes it.
 
 from __future__ import annotations
 
-import calendar
 import datetime as dt
 import math
 from dataclasses import dataclass
@@ -16,6 +15,7 @@ import numpy as np
 
 from reportgen.config import AnalysisSettings
 from reportgen.io.model import ClientRecord, DailyLog, FloatArray, Phase
+from reportgen.month import ReportMonth
 from reportgen.results import Estimate
 from reportgen.science import balance as energy_balance
 from reportgen.science.trend import Z80
@@ -53,7 +53,7 @@ class ClientContext:
 
     record: ClientRecord
     settings: AnalysisSettings
-    month: str
+    month: ReportMonth
     month_start: dt.date
     as_of: dt.date  # last day of the report month; later data are ignored
     log: DailyLog  # cut at ``as_of``
@@ -80,20 +80,11 @@ class ClientContext:
         return tuple(sorted({w.start_index for w in self.windows}))
 
 
-def month_bounds(month: str) -> tuple[dt.date, dt.date]:
-    """First and last day of the month "YYYY-MM"; ValueError for anything else."""
-    try:
-        year, month_number = (int(part) for part in month.split("-"))
-        first = dt.date(year, month_number, 1)
-    except (ValueError, TypeError) as exc:
-        raise ValueError(f"month must be YYYY-MM, got {month!r}") from exc
-    last_day = calendar.monthrange(year, month_number)[1]
-    return first, dt.date(year, month_number, last_day)
-
-
-def client_context(record: ClientRecord, month: str, settings: AnalysisSettings) -> ClientContext:
+def client_context(
+    record: ClientRecord, month: ReportMonth, settings: AnalysisSettings
+) -> ClientContext:
     """Cut the record at the end of ``month`` and lay its phases over the log."""
-    month_start, as_of = month_bounds(month)
+    month_start, as_of = month.first_day, month.last_day
     client = record.client
     log = cut_log(record.log, as_of)
     age = client.age_years(as_of)

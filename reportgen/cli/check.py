@@ -9,21 +9,12 @@ from pathlib import Path
 
 import click
 
+from reportgen.cli.params import REPORT_MONTH
+from reportgen.month import ReportMonth
+
 #: Exit codes: 0 no errors (warnings allowed), 1 some client or book-level error,
 #: 2 the book cannot be used at all (no or unreadable roster) or bad options.
 EXIT_OK, EXIT_ERRORS, EXIT_UNUSABLE = 0, 1, 2
-
-
-def _month(_ctx: click.Context, _param: click.Parameter, value: str | None) -> str | None:
-    if value is None:
-        return None
-    from reportgen.io.book import month_end_of
-
-    try:
-        month_end_of(value)
-    except ValueError as exc:
-        raise click.BadParameter(str(exc)) from None
-    return value
 
 
 def _today(_ctx: click.Context, _param: click.Parameter, value: str | None) -> dt.date | None:
@@ -39,8 +30,7 @@ def _today(_ctx: click.Context, _param: click.Parameter, value: str | None) -> d
 @click.argument("book", type=click.Path(path_type=Path))
 @click.option(
     "--month",
-    metavar="YYYY-MM",
-    callback=_month,
+    type=REPORT_MONTH,
     help="Report month to check for (default: the month of the latest data in the book).",
 )
 @click.option("--json", "as_json", is_flag=True, help="Print the problems as JSON for scripts.")
@@ -58,7 +48,7 @@ def _today(_ctx: click.Context, _param: click.Parameter, value: str | None) -> d
 )
 def check_command(
     book: Path,
-    month: str | None,
+    month: ReportMonth | None,
     as_json: bool,
     today: dt.date | None,
     config_file: Path | None,

@@ -7,7 +7,6 @@ writes to, moves or locks an input file.
 
 from __future__ import annotations
 
-import calendar
 import datetime as dt
 from collections.abc import Iterable
 from pathlib import Path
@@ -49,15 +48,6 @@ def _unsupported(book: Path, folder: str, stem: str) -> str | None:
         if path.stem == stem and path.suffix.lower() not in TABLE_TYPES and path.is_file():
             return f"{folder}/{path.name}" if folder else path.name
     return None
-
-
-def month_end_of(month: str) -> dt.date:
-    """Last day of ``"YYYY-MM"``."""
-    try:
-        year, mon = (int(x) for x in month.split("-"))
-        return dt.date(year, mon, calendar.monthrange(year, mon)[1])
-    except (ValueError, calendar.IllegalMonthError) as exc:
-        raise ValueError(f'month "{month}" is not of the form YYYY-MM (e.g. 2026-11)') from exc
 
 
 def _roster_file(book: Path) -> str:

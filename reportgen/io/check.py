@@ -10,9 +10,10 @@ from pathlib import Path
 import numpy as np
 
 from reportgen.io import limits
-from reportgen.io.book import TABLE_TYPES, month_end_of, read_client, read_roster
+from reportgen.io.book import TABLE_TYPES, read_client, read_roster
 from reportgen.io.dates import DateOrder
 from reportgen.io.model import ClientRecord, Problem, Roster
+from reportgen.month import ReportMonth
 
 
 @dataclass(frozen=True)
@@ -20,7 +21,7 @@ class CheckResult:
     """The outcome of :func:`check_book`."""
 
     book_dir: str
-    month: str
+    month: ReportMonth
     today: dt.date
     roster: Roster
     records: tuple[ClientRecord, ...]
@@ -88,7 +89,7 @@ def _order(p: Problem) -> tuple[str, str, int, str, str]:
 
 def check_book(
     book_dir: Path,
-    month: str | None = None,
+    month: ReportMonth | str | None = None,
     today: dt.date | None = None,
     *,
     date_order: DateOrder | None = None,
@@ -97,13 +98,14 @@ def check_book(
 
     ``month`` ("YYYY-MM") defaults to the month of the latest (non-future) data in the book.
     ``date_order`` is the ``[book] date_order`` setting.  Raises
-    :class:`~reportgen.io.model.InputError` only for an unusable book, and ``ValueError``
-    for a malformed ``month``.
+    :class:`~reportgen.io.model.InputError` only for an unusable book, and
+    :class:`~reportgen.month.InvalidMonth` (a ``ValueError``) for a malformed ``month``.
     """
     book = Path(book_dir)
     today = today or dt.date.today()
     roster = read_roster(book, today=today)
-    month_end = month_end_of(month) if month else today
+    report_month = ReportMonth(month) if month else None
+    month_end = report_month.last_day if report_month is not None else today
 
     def read_all(end: dt.date) -> list[ClientRecord]:
         return [
@@ -120,13 +122,13 @@ def check_book(
         ]
 
     records = read_all(month_end)
-    if month is None:
+    if report_month is None:
         latest = max(
             (r.log.dates[-1].astype(dt.date) for r in records if r.log.n_days),
             default=today,
         )
-        month = f"{latest.year:04d}-{latest.month:02d}"
-        month_end = month_end_of(month)
+        report_month = ReportMonth.containing(latest)
+        month_end = report_month.last_day
         # Data up to today was read; the month of the latest data holds all of it, so only
         # what depends on the month end itself (age) can differ: re-read those clients.
         records = [
@@ -144,18 +146,20 @@ def check_book(
             for r in records
         ]
     unused = tuple(_unused_files(book, roster, records))
-    empty = tuple(_month_without_data(records, month))
-    return CheckResult(str(book.resolve()), month, today, roster, tuple(records), unused, empty)
+    empty = tuple(_month_without_data(records, report_month))
+    return CheckResult(
+        str(book.resolve()), report_month, today, roster, tuple(records), unused, empty
+    )
 
 
-def _month_without_data(records: list[ClientRecord], month: str) -> list[Problem]:
+def _month_without_data(records: list[ClientRecord], month: ReportMonth) -> list[Problem]:
     """A warning for each client with no weigh-in (or no entry at all) in the report month.
 
     Such a client's report says so plainly; the check says it before the run.  Clients whose
     log could not be read have their own errors and get no warning here.
     """
-    end = np.datetime64(month_end_of(month), "D")
-    start = np.datetime64(f"{month}-01", "D")
+    end = np.datetime64(month.last_day, "D")
+    start = np.datetime64(month.first_day, "D")
     out = []
     for r in records:
         log = r.log

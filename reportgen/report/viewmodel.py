@@ -7,8 +7,6 @@ thresholds named below, so the wording stays free of numbers it would have to co
 
 from __future__ import annotations
 
-import calendar
-import datetime as dt
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -34,11 +32,6 @@ SIGNAL_NOTABLE = ("moderate", "large")
 # than the 5-15 % usually attributed to adaptation (common practice, no single source).
 ADAPT_LARGE_PCT = 15.0
 LONG_DEFICIT_DAYS = 84  # 12 weeks of continuous deficit: suggest a break (common practice)
-
-
-def month_label(month: str) -> str:
-    year, mon = (int(p) for p in month.split("-"))
-    return f"{calendar.month_name[mon]} {year}"
 
 
 @dataclass
@@ -320,7 +313,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     return ClientView(
         practice=practice_view(config),
         client={"name": a.client.name, "id": a.client.client_id},
-        month=month_label(a.month),
+        month=a.month.label,
         month_code=a.month,
         as_of=u.d(a.as_of),
         weight_unit=u.weight_unit,
@@ -347,9 +340,7 @@ def _direction(est: Estimate) -> str:
 
 
 def _month_mask(a: ClientAnalysis) -> np.ndarray:
-    year, mon = (int(p) for p in a.month.split("-"))
-    first = np.datetime64(dt.date(year, mon, 1), "D")
-    return a.log.dates >= first
+    return a.log.dates >= np.datetime64(a.month.first_day, "D")
 
 
 def _bodyfat_figure(a: ClientAnalysis, u: Units) -> Figure:

@@ -43,6 +43,7 @@ from reportgen.science.rates import (
     window_rate,
 )
 from reportgen.science.trend import Z80
+from reportgen.unit_constants import KJ_PER_KCAL
 
 MIN_DAYS = 14  # no expenditure from fewer days (science notes §4.4, §8: common practice)
 MIN_WEIGH_INS = 8  # judgment: fewer weigh-ins than this cannot pin a rate
@@ -50,7 +51,7 @@ MIN_INTAKE_DAYS = 7  # judgment: a mean intake from fewer logged days is not use
 KCAL_PER_KG_SPREADSHEET = 7700.0  # the constant a spreadsheet typically uses (common practice)
 # Glycogen 17.6 MJ/kg (Hall 2008, published) held with about 3 g of water per g (from
 # memory, unverified): 1052 kcal per kg of glycogen-with-water shift.
-GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / 4.184 / 4
+GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / KJ_PER_KCAL / 4
 FALLBACK_RHO_HALF_RANGE = 600.0  # judgment: bracket of 7700 when the fat mass is unknown
 
 
