@@ -18,9 +18,15 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Literal, get_args, get_origin, get_type_hints
 
+from reportgen.choices import BODYFAT_EQUATIONS as BODYFAT_EQUATIONS
+from reportgen.choices import BOOK_DATE_ORDERS as BOOK_DATE_ORDERS
+from reportgen.choices import DENSITY_CONVERSIONS as DENSITY_CONVERSIONS
+from reportgen.choices import ENERGY_UNITS as ENERGY_UNITS
+from reportgen.choices import MAIL_SECURITY as MAIL_SECURITY
+
 PAPER_SIZES = ("A4", "letter")
+PROJECTION_WEEKS_MAX = 26  # the analysis projects this far; a report shows its configured part
 WEIGHT_UNITS = ("kg", "lb")
-ENERGY_UNITS = ("kcal", "kJ")
 SECTIONS = (
     "overview",
     "charts",
@@ -29,15 +35,6 @@ SECTIONS = (
     "methods",
     "cautions",
 )
-BODYFAT_EQUATIONS = (
-    "auto",
-    "jackson-pollock-7",
-    "jackson-pollock-3",
-    "durnin-womersley-4",
-)
-DENSITY_CONVERSIONS = ("siri", "brozek")
-MAIL_SECURITY = ("starttls", "tls", "none")
-DATE_ORDERS = ("auto", "day-first", "month-first")
 
 
 class ConfigError(ValueError):
@@ -146,7 +143,7 @@ _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
     ("analysis", "bodyfat_equation"): BODYFAT_EQUATIONS,
     ("analysis", "density_conversion"): DENSITY_CONVERSIONS,
     ("mail", "security"): MAIL_SECURITY,
-    ("book", "date_order"): DATE_ORDERS,
+    ("book", "date_order"): BOOK_DATE_ORDERS,
 }
 _COLOUR = re.compile(r"^#[0-9A-Fa-f]{6}$")
 
@@ -197,6 +194,11 @@ def _table_problems(table: str, value: Any) -> tuple[dict[str, Any], list[str]]:
             problems.append(str(exc))
             continue
         choices = _CHOICES.get((table, key))
+        if choices and isinstance(coerced, str) and coerced not in choices:
+            # choices are matched without regard to case ("Letter" is letter)
+            same = [c for c in choices if c.casefold() == coerced.strip().casefold()]
+            if same:
+                coerced = same[0]
         if choices and coerced not in choices:
             problems.append(
                 f"[{table}] {key} = {v!r} is not allowed; use one of: {', '.join(choices)}"
@@ -304,8 +306,8 @@ def _check(cfg: Config) -> list[str]:
         out.append(f"[report] sections lists {', '.join(dupes)} more than once")
     if "cautions" not in r.sections:
         out.append('[report] sections must include "cautions": every report carries them')
-    if not 1 <= r.projection_weeks <= 26:
-        out.append("[report] projection_weeks must be between 1 and 26")
+    if not 1 <= r.projection_weeks <= PROJECTION_WEEKS_MAX:
+        out.append(f"[report] projection_weeks must be between 1 and {PROJECTION_WEEKS_MAX}")
     problem = _date_format_problem(r.date_format)
     if problem:
         out.append(problem)

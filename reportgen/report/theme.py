@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import cache
+from typing import Any
 
 from reportlab.lib import colors
 from reportlab.lib.enums import TA_LEFT, TA_RIGHT
@@ -36,7 +37,6 @@ PANEL = "#F2F4F5"  # table stripes, cards (L* 96)
 POINTS = "#8FA3B3"  # raw weigh-ins (L* 66)
 WARM = "#C76B1E"  # intake, lean mass (L* 55), reads mid-grey
 DEEP = "#3B2F63"  # second dark series: energy ratings, fat mass (L* 23)
-SOFT_WARM = "#F3D9BF"  # deficit gap fill (L* 88)
 OUTLIER = "#B0282E"  # excluded weigh-ins, drawn as crosses (L* 40)
 PHASE_FILLS = ("#EEF0EE", "#E2E6EA")  # alternating phase shading (L* 94 / 91)
 SEVERITY = {"urgent": "#B0282E", "caution": "#C76B1E", "info": "#5C6770"}
@@ -75,7 +75,9 @@ def missing_glyphs(text: str) -> str:
     report says so instead of failing silently.
     """
     register_fonts()
-    face = pdfmetrics.getFont(FONT).face
+    font = pdfmetrics.getFont(FONT)
+    assert isinstance(font, TTFont)  # registered by register_fonts()
+    face = font.face
     seen: list[str] = []
     for ch in text:
         if ord(ch) >= 32 and ord(ch) not in face.charToGlyph and ch not in seen:
@@ -116,7 +118,7 @@ def _styles(accent: colors.Color) -> dict[str, ParagraphStyle]:
         allowOrphans=0,
     )
 
-    def derive(name: str, **kw: object) -> ParagraphStyle:
+    def derive(name: str, **kw: Any) -> ParagraphStyle:
         return ParagraphStyle(name, parent=base, **kw)
 
     return {

@@ -47,6 +47,7 @@ import math
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
+from reportgen.choices import BODYFAT_EQUATIONS
 from reportgen.io.model import Sex
 from reportgen.results import MethodUsed
 from reportgen.science._checks import finite
@@ -67,9 +68,9 @@ SITES_3_MEN = ("chest", "abdominal", "thigh")  # Jackson & Pollock 1978
 SITES_3_WOMEN = ("triceps", "suprailiac", "thigh")  # Jackson, Pollock & Ward 1980
 SITES_4_DW = ("biceps", "triceps", "subscapular", "suprailiac")  # Durnin & Womersley 1974
 
-# Names a user may choose (configuration [analysis] bodyfat_equation); must equal
-# reportgen.config.BODYFAT_EQUATIONS (a test checks it).  The sex picks JP or JPW.
-EQUATIONS = ("auto", "jackson-pollock-7", "jackson-pollock-3", "durnin-womersley-4")
+# Names a user may choose (configuration [analysis] bodyfat_equation), defined once in
+# reportgen.choices.  The sex picks JP or JPW.
+EQUATIONS = BODYFAT_EQUATIONS
 
 # ---------------------------------------------------------------------------
 # Quadratic JP/JPW equations: Db = a - b*S + c*S^2 - d*age, SEE [g/ml].
@@ -177,9 +178,12 @@ class BodyFatEstimate:
     def method(self) -> MethodUsed:
         """The methods-page entry for this estimate."""
         if self.density_se_g_ml is not None:
-            see = f"SEE {self.density_se_g_ml:.4f} g/ml (about {self.se_pct:.1f} %BF here)"
+            see = (
+                f"standard error of estimate {self.density_se_g_ml:.4f} g/ml "
+                f"(about {self.se_pct:.1f} %BF here)"
+            )
         else:
-            see = f"SEE about {self.se_pct:.1f} %BF"
+            see = f"standard error of estimate about {self.se_pct:.1f} %BF"
         name = self.name
         if self.conversion in CONVERSION_NAMES:
             name = f"{name}; density to %BF by {CONVERSION_NAMES[self.conversion]}"
