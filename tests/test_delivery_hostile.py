@@ -151,6 +151,7 @@ def test_send_output_shows_control_characters_escaped(tmp_path: Path) -> None:
 def test_no_control_character_reaches_the_subject_from_an_override(tmp_path: Path) -> None:
     from reportgen.config import Config, ReportSettings
     from reportgen.delivery.messages import mail_environment, render_content
+    from reportgen.month import ReportMonth
 
     mail = tmp_path / "tpl" / "mail"
     mail.mkdir(parents=True)
@@ -162,7 +163,7 @@ def test_no_control_character_reaches_the_subject_from_an_override(tmp_path: Pat
         config=config,
         client_name="Eve\x1b[2J\x00\x85",
         client_id="c002",
-        month="2026-11",
+        month=ReportMonth("2026-11"),
         filename="report.pdf",
         encrypted=False,
     )
