@@ -1,6 +1,6 @@
 """Accuracy benchmark: reportgen's estimators against the spreadsheet method on simulated clients.
 
-Simulated clients (``reportgen.science.simulate``, invented data with known truth)
+Simulated clients (``reportgen.testing.simulate``, invented data with known truth)
 are analysed by the real ``reportgen.analysis.analyse_client``.  Scores per phase
 window of at least ``--min-weeks`` weeks:
 
@@ -36,8 +36,8 @@ from reportgen.analysis import analyse_client
 from reportgen.config import AnalysisSettings
 from reportgen.results import Estimate
 from reportgen.science.balance import spreadsheet_tdee_kcal
-from reportgen.science.simulate import SimulatedClient, simulate_client
 from reportgen.science.trend import ema
+from reportgen.testing.simulate import SimulatedClient, SimulationSpec, simulate_client
 
 
 @dataclass
@@ -173,15 +173,15 @@ def run(n_clients: int, seed: int, min_weeks: int, maintenance_first: bool = Tru
     settings = AnalysisSettings()
     for i in range(n_clients):
         if maintenance_first:
-            sim = simulate_client(rng, f"b{i:04d}", future_days=84)
+            sim = simulate_client(rng, SimulationSpec(client_id=f"b{i:04d}", future_days=84))
         else:
-            sim = simulate_client(
-                rng,
-                f"n{i:04d}",
+            spec = SimulationSpec(
+                client_id=f"n{i:04d}",
                 future_days=84,
                 maintenance_first=False,
                 lead_in_days=int(lead.integers(0, 8)),
             )
+            sim = simulate_client(rng, spec)
         score_client(sim, s, 7 * min_weeks, settings)
     return s
 

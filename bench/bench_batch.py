@@ -1,6 +1,6 @@
 """Benchmark of the month-end batch: reports per second, time split, memory, and the HTML route.
 
-Generates N simulated clients (the science simulator, ``reportgen.science.simulate``, written
+Generates N simulated clients (the science simulator, ``reportgen.testing.simulate``, written
 as a plain CSV book), runs the real batch end to end (``reportgen.batch.run_batch``) at each
 size with the given number of workers, and reports:
 
@@ -48,7 +48,7 @@ import numpy as np
 from reportgen.batch import ClientOutcome, run_batch
 from reportgen.io.limits import SKINFOLD_MM
 from reportgen.io.model import SKINFOLD_SITES, SkinfoldSession
-from reportgen.science.simulate import SimulatedClient, simulate_client
+from reportgen.testing.simulate import SimulatedClient, SimulationSpec, simulate_client
 
 MONTH = "2026-11"
 MONTH_END = dt.date(2026, 11, 30)
@@ -84,14 +84,14 @@ def _simulate_year(seed: int, k: int, cid: str, month_end: dt.date) -> Simulated
 
     def draw(lead_in_days: int) -> SimulatedClient:
         rng = np.random.default_rng([seed, k])
-        return simulate_client(
-            rng,
-            cid,
-            month_end,
+        spec = SimulationSpec(
+            client_id=cid,
+            month_end=month_end,
             two_deficits=True,
             maintenance_first=False,
             lead_in_days=lead_in_days,
         )
+        return simulate_client(rng, spec)
 
     plan_days = draw(0).record.log.n_days
     return draw(max(YEAR_DAYS - plan_days, 0))

@@ -22,7 +22,6 @@ import functools
 import inspect
 import multiprocessing
 import os
-import re
 import resource
 import sys
 import tempfile
@@ -50,6 +49,7 @@ from reportgen.manifest import (
     manifest_bytes,
     sha256_bytes,
 )
+from reportgen.month import InvalidMonth, ReportMonth
 from reportgen.report import (
     make_overview_line,
     render_client_report,
@@ -60,7 +60,7 @@ from reportgen.report.methods_doc import render_methods
 from reportgen.report.overview_model import OverviewLine
 from reportgen.report.wording import TemplateProblem
 from reportgen.results import ClientAnalysis, MethodUsed
-from reportgen.summary import SummaryRow, month_bounds, summary_csv, summary_rows
+from reportgen.summary import SummaryRow, summary_csv, summary_rows
 
 if TYPE_CHECKING:  # the cluster extra is optional at run time
     from dask.typing import Key
@@ -69,7 +69,6 @@ if TYPE_CHECKING:  # the cluster extra is optional at run time
 OVERVIEW_NAME = "overview.pdf"
 METHODS_NAME = "methods.pdf"
 SUMMARY_NAME = "summary.csv"
-_MONTH = re.compile(r"^\d{4}-(0[1-9]|1[0-2])$")
 DASK_CONNECT_TIMEOUT_S = 10.0
 
 
@@ -93,11 +92,12 @@ def usable_cores() -> int:
         return os.cpu_count() or 1
 
 
-def parse_month(month: str) -> dt.date:
-    """Last day of a ``YYYY-MM`` month; :class:`BatchUsageError` for anything else."""
-    if not _MONTH.match(month):
-        raise BatchUsageError(f"month {month!r} is not in the form YYYY-MM (e.g. 2026-11)")
-    return month_bounds(month)[1]
+def report_month(month: ReportMonth | str) -> ReportMonth:
+    """``month`` as a :class:`ReportMonth`; :class:`BatchUsageError` for anything else."""
+    try:
+        return ReportMonth(month)
+    except InvalidMonth as exc:
+        raise BatchUsageError(str(exc)) from None
 
 
 @dataclass(frozen=True)
@@ -106,7 +106,7 @@ class ClientTask:
 
     book_dir: str
     out_dir: str  # the month folder OUT/<YYYY-MM>
-    month: str
+    month: ReportMonth
     client: Client
     phases: tuple[Phase, ...]
     roster_problems: tuple[Problem, ...]
@@ -252,9 +252,10 @@ def process_client(task: ClientTask) -> ClientOutcome:
                 book,
                 client,
                 task.phases,
-                month_bounds(task.month)[1],
+                task.month.last_day,
                 today=task.today,
                 roster_problems=task.roster_problems,
+                date_order=task.config.book.date_order_setting(),
             )
         inputs = _input_hashes(book, record.source_files, task.roster_inputs, parsed)
         warnings = tuple(p.as_dict() for p in record.warnings)
@@ -520,7 +521,7 @@ def _dask(tasks: list[ClientTask], dask: DaskClient) -> Iterator[ClientOutcome]:
 
 @dataclass
 class BatchResult:
-    month: str
+    month: ReportMonth
     month_dir: Path
     outcomes: list[ClientOutcome]  # sorted by client id
     files: dict[str, str]  # month-level file -> sha256
@@ -606,7 +607,7 @@ def _select_clients(clients: tuple[Client, ...], wanted: Iterable[str] | None) -
 
 def run_batch(
     book_dir: Path,
-    month: str,
+    month: ReportMonth | str,
     out_dir: Path,
     *,
     config: Config | None = None,
@@ -624,7 +625,7 @@ def run_batch(
     asked; everything that goes wrong for one client ends up in that client's
     :class:`ClientOutcome` instead.
     """
-    parse_month(month)
+    month = report_month(month)
     config = config if config is not None else Config()
     book_dir = Path(book_dir).resolve()
     workers = workers if workers is not None else usable_cores()

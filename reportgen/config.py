@@ -16,7 +16,7 @@ import textwrap
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, get_args, get_origin, get_type_hints
+from typing import Any, Literal, get_args, get_origin, get_type_hints
 
 PAPER_SIZES = ("A4", "letter")
 PROJECTION_WEEKS_MAX = 26  # the analysis projects this far; a report shows its configured part
@@ -38,6 +38,7 @@ BODYFAT_EQUATIONS = (
 )
 DENSITY_CONVERSIONS = ("siri", "brozek")
 MAIL_SECURITY = ("starttls", "tls", "none")
+DATE_ORDERS = ("auto", "day-first", "month-first")
 
 
 class ConfigError(ValueError):
@@ -75,6 +76,19 @@ class AnalysisSettings:
 
 
 @dataclass(frozen=True)
+class BookSettings:
+    date_order: str = "auto"  # for logs whose dates could be day-first or month-first
+
+    def date_order_setting(self) -> Literal["day-first", "month-first"] | None:
+        """The order for the readers; None for "auto" (decide from the values or refuse)."""
+        if self.date_order == "day-first":
+            return "day-first"
+        if self.date_order == "month-first":
+            return "month-first"
+        return None
+
+
+@dataclass(frozen=True)
 class MailSettings:
     host: str = "localhost"
     port: int = 587
@@ -97,6 +111,7 @@ class Config:
     practice: PracticeSettings = field(default_factory=PracticeSettings)
     report: ReportSettings = field(default_factory=ReportSettings)
     analysis: AnalysisSettings = field(default_factory=AnalysisSettings)
+    book: BookSettings = field(default_factory=BookSettings)
     mail: MailSettings = field(default_factory=MailSettings)
     source: str | None = None  # the file it was read from, if any
     # sha256 of the bytes read from that file (bookkeeping, not a setting: not compared)
@@ -122,6 +137,7 @@ _TABLES = {
     "practice": PracticeSettings,
     "report": ReportSettings,
     "analysis": AnalysisSettings,
+    "book": BookSettings,
     "mail": MailSettings,
 }
 _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
@@ -131,6 +147,7 @@ _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
     ("analysis", "bodyfat_equation"): BODYFAT_EQUATIONS,
     ("analysis", "density_conversion"): DENSITY_CONVERSIONS,
     ("mail", "security"): MAIL_SECURITY,
+    ("book", "date_order"): DATE_ORDERS,
 }
 _COLOUR = re.compile(r"^#[0-9A-Fa-f]{6}$")
 
@@ -370,6 +387,7 @@ SECTION_DOCS: dict[str, str] = {
     "practice": "Your practice, as printed on every report and summary.",
     "report": "How the client reports look.",
     "analysis": "Methods and assumptions of the analysis.",
+    "book": "How the client book is read.",
     "mail": "How `reportgen send` delivers the reports by e-mail.",
 }
 
@@ -410,6 +428,12 @@ SETTING_DOCS: dict[str, dict[str, str]] = {
         "for expected expenditure only when a client has no usable maintenance baseline.",
         "target_rates_pct_per_week": "Weekly loss rates (% of body weight per week, each above "
         "0 and at most 1.5) for which the report shows the intake needed.",
+    },
+    "book": {
+        "date_order": "How dates such as 03/04/2026 are read when no date in a log settles "
+        "it (no day above 12): auto refuses such a log with a message; day-first reads "
+        "03/04/2026 as 3 April, month-first as March 4. A log whose dates settle it is "
+        "always read that way.",
     },
     "mail": {
         "host": "SMTP server that sends the mail.",

@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 from typing import Literal
 
 from reportgen.io.model import Client, DailyLog, DateArray, FloatArray, Problem
+from reportgen.month import ReportMonth
 
 FlagSeverity = Literal["info", "caution", "urgent"]
 
@@ -25,10 +26,12 @@ REASON_CODES: tuple[str, ...] = (
     "too-few-days",  # window shorter than 14 days (no expenditure from fewer)
     "too-few-weigh-ins",  # fewer than 8 weigh-ins in the window, or no trend at all
     "too-few-intake-days",  # fewer than 7 logged intake days in the window
+    "no-intake-logged",  # no intake at all in the window (a weight-only client)
     "special-handling",  # minor or pregnant client: no deficit or adaptation analysis
     "no-resting-equation",  # no baseline and no sex/age/height for a resting equation
     "no-observed",  # adaptation without an observed TDEE
     "no-expected",  # adaptation without an expected TDEE
+    "no-baseline",  # no phases: the report month as one window has no baseline to expect from
     "no-data-in-month",  # no trend data inside the report month
     "baseline-phase",  # adaptation of the baseline phase itself (it is the reference)
     "early-phase",  # under 14 usable days after the first 7 of a phase that changed intake
@@ -223,7 +226,7 @@ class ClientAnalysis:
     """Everything computed for one client for one report month."""
 
     client: Client
-    month: str  # "YYYY-MM"
+    month: ReportMonth  # "YYYY-MM"
     as_of: dt.date  # last day of the report month (analysis cut-off)
     age_years: int | None
     minor: bool

@@ -32,15 +32,15 @@ from openpyxl.worksheet.datavalidation import DataValidation
 from openpyxl.worksheet.worksheet import Worksheet
 
 from reportgen.io import limits
+from reportgen.io.book import TABLE_TYPES
 from reportgen.io.model import PHASE_KINDS, SKINFOLD_SITES
-from reportgen.io.units import CM_PER_IN, KCAL_PER_KJ, KG_PER_LB
+from reportgen.unit_constants import CM_PER_INCH, KCAL_PER_KJ, KG_PER_LB, KJ_PER_KCAL
 
 Units = Literal["metric", "imperial"]
 Energy = Literal["kcal", "kJ"]
 UNIT_SYSTEMS: tuple[Units, ...] = ("metric", "imperial")
 ENERGY_UNITS: tuple[Energy, ...] = ("kcal", "kJ")
 
-KJ_PER_KCAL = 1.0 / KCAL_PER_KJ
 _LAST_ROW = 1048576  # Excel's last row: validation covers every row a coach can reach
 _AUTHOR = "reportgen"
 _HEADER_FONT = Font(bold=True)
@@ -244,7 +244,7 @@ def roster_columns(units: Units = "metric") -> tuple[Column, ...]:
     """Columns of the ``clients.xlsx`` roster."""
     h_lo, h_hi = limits.HEIGHT_CM
     if units == "imperial":
-        in_lo, in_hi = _inside(h_lo, h_hi, CM_PER_IN)
+        in_lo, in_hi = _inside(h_lo, h_hi, CM_PER_INCH)
         height = Column(
             "height_in",
             f"Height in inches (in), e.g. 70.5; accepted {in_lo:g}-{in_hi:g} in.",
@@ -520,10 +520,7 @@ def add_client(
     _check_options(units, energy)
     logs = book_dir / "logs"
     for existing in sorted(logs.glob("*")) if logs.is_dir() else []:
-        if existing.stem.lower() == client_id.lower() and existing.suffix.lower() in (
-            ".xlsx",
-            ".csv",
-        ):
+        if existing.stem.lower() == client_id.lower() and existing.suffix.lower() in TABLE_TYPES:
             raise ScaffoldError(
                 f"{existing.relative_to(book_dir)} already exists; nothing was changed"
             )

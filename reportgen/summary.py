@@ -15,6 +15,7 @@ import io
 import math
 from collections.abc import Iterable
 
+from reportgen.month import ReportMonth
 from reportgen.results import ClientAnalysis, Estimate, PhaseResult
 
 SUMMARY_COLUMNS: tuple[str, ...] = (
@@ -103,16 +104,9 @@ def _date(value: dt.date | None) -> str:
     return "" if value is None else value.isoformat()
 
 
-def month_bounds(month: str) -> tuple[dt.date, dt.date]:
-    """First and last day of a ``YYYY-MM`` month."""
-    first = dt.date.fromisoformat(f"{month}-01")
-    nxt = dt.date(first.year + (first.month == 12), first.month % 12 + 1, 1)
-    return first, nxt - dt.timedelta(days=1)
-
-
-def overlaps_month(phase: PhaseResult, month: str) -> bool:
+def overlaps_month(phase: PhaseResult, month: ReportMonth) -> bool:
     """Whether the phase has at least one day inside the report month."""
-    first, last = month_bounds(month)
+    first, last = month.first_day, month.last_day
     return phase.start <= last and (phase.end is None or phase.end >= first)
 
 

@@ -2,7 +2,7 @@
 """Write the sample client book ``sample_inputs/`` (invented data, deterministic).
 
 The book belongs to an invented practice, *Kestrel Row Nutrition*, and holds
-ten invented clients with about four months of daily logs (August to November
+twelve invented clients with about four months of daily logs (August to November
 2026) for the report month 2026-11.  Each client's data comes from a small
 energy-balance simulation (Mifflin-St Jeor resting energy times an activity
 factor, a slow adaptive fall in expenditure during deficits, glycogen/water
@@ -117,6 +117,10 @@ class ClientSpec:
     referral_email: str = ""
     bom: bool = False
     extra_daily: dict[str, str] = field(default_factory=dict)
+    intake_logged: bool = True  # False: a weight-only client (no intake column)
+    skinfolds: bool = True
+    labelled_headers: bool = False  # "Weight (kg)", "Calories (kcal)", ... instead of weight_kg
+    day_first: bool = False  # dates written DD/MM/YYYY
 
 
 D = dt.date
@@ -219,8 +223,36 @@ CLIENTS: tuple[ClientSpec, ...] = (
         missing_frac=0.24, underlog=0.12, water_sd_kg=0.55, steps_base=None,
         sleep_step_h=0.5,
     ),
+    ClientSpec(
+        "c011", "Ines Albrecht", "female", "female", D(1979, 6, 23), 172.0,
+        "ines.albrecht@example.org", 86.2, 38.0, 1.45, D(2026, 8, 3), D(2026, 11, 30),
+        (PhaseSpec("Weigh-in only cut", D(2026, 8, 3), None, "deficit", 0.18, False),),
+        missing_frac=0.25, underlog=0.0, water_sd_kg=0.5, steps_base=None, ratings=False,
+        intake_logged=False, skinfolds=False,
+    ),
+    ClientSpec(
+        "c012", "Tomasz Brennan", "male", "male", D(1990, 10, 4), 181.0,
+        "t.brennan@example.com", 92.4, 25.0, 1.6, D(2026, 8, 1), D(2026, 11, 30),
+        (
+            PhaseSpec("Baseline", D(2026, 8, 1), D(2026, 8, 21), "maintenance"),
+            PhaseSpec("Winter cut", D(2026, 8, 22), None, "deficit", 0.21, True),
+        ),
+        missing_frac=0.10, underlog=0.07, water_sd_kg=0.55, steps_base=9200,
+        sleep_step_h=0.5, labelled_headers=True, day_first=True,
+    ),
 )
 # fmt: on
+
+#: Header as a coach writes it -> the canonical column it is read as (for labelled_headers).
+LABELLED_HEADERS = {
+    "date": "Date",
+    "weight_kg": "Weight (kg)",
+    "intake_kcal": "Calories (kcal)",
+    "steps": "Steps",
+    "hunger": "Hunger",
+    "energy": "Energy",
+    "sleep_h": "Sleep (h)",
+}
 
 PROBLEM_CLIENT = "c007"
 
@@ -398,7 +430,7 @@ def fmt_num(x: float, step: float) -> str:
 def daily_table(spec: ClientSpec, sim: Simulated) -> tuple[list[str], list[list[str]]]:
     wcol = "weight_lb" if spec.weight_unit == "lb" else "weight_kg"
     ecol = "intake_kj" if spec.energy_unit == "kJ" else "intake_kcal"
-    header = ["date", wcol, ecol]
+    header = ["date", wcol] + ([ecol] if spec.intake_logged else [])
     if spec.steps_base is not None:
         header.append("steps")
     if spec.ratings:
@@ -412,9 +444,12 @@ def daily_table(spec: ClientSpec, sim: Simulated) -> tuple[list[str], list[list[
             continue
         w = sim.weight_kg[k]
         e = sim.intake_kcal[k]
-        row = [day.isoformat()]
+        if not spec.intake_logged and math.isnan(w):
+            continue  # a weight-only log has no row for a day without a weigh-in
+        row = [day.strftime("%d/%m/%Y") if spec.day_first else day.isoformat()]
         row.append(fmt_num(w * LB_PER_KG, 0.2) if wcol == "weight_lb" else fmt_num(w, 0.1))
-        row.append(fmt_num(e * KJ_PER_KCAL, 10) if ecol == "intake_kj" else fmt_num(e, 1))
+        if spec.intake_logged:
+            row.append(fmt_num(e * KJ_PER_KCAL, 10) if ecol == "intake_kj" else fmt_num(e, 1))
         if spec.steps_base is not None:
             row.append(fmt_num(sim.steps[k], 1))
         if spec.ratings:
@@ -424,6 +459,8 @@ def daily_table(spec: ClientSpec, sim: Simulated) -> tuple[list[str], list[list[
         if "mood" in spec.extra_daily:
             row.append(fmt_num(sim.mood[k], 1))
         rows.append(row)
+    if spec.labelled_headers:
+        header = [LABELLED_HEADERS[h] for h in header]
     return header, rows
 
 
@@ -651,9 +688,11 @@ def build(out: Path) -> list[Path]:
         )
         if not spec.phases_in_workbook:
             phases_csv += phase_rows(spec, with_id=True)
+        deliberate += variations_read(spec, header, rows)
         if spec.fmt == "csv":
             put(f"logs/{spec.client_id}.csv", csv_bytes(header, rows, bom=spec.bom))
-            put(f"skinfolds/{spec.client_id}.csv", csv_bytes(sk_header, sk_rows))
+            if spec.skinfolds:
+                put(f"skinfolds/{spec.client_id}.csv", csv_bytes(sk_header, sk_rows))
         else:
             wb = Workbook()
             wb.remove(wb.active)
@@ -676,6 +715,33 @@ def build(out: Path) -> list[Path]:
     return written
 
 
+def variations_read(spec: ClientSpec, header: list[str], rows: list[list[str]]) -> list[Deliberate]:
+    """The notes ``reportgen check`` gives for a log written the way coaches write them."""
+    rel = f"logs/{spec.client_id}.{spec.fmt}"
+    out = []
+    if spec.labelled_headers:
+        read = [
+            f'"{h}" as {c}' for c, h in LABELLED_HEADERS.items() if h in header and h.lower() != c
+        ]
+        message = f"{rel}: read {', '.join(read)}"
+        out.append(Deliberate("note", "headers read as", rel, 1, None, "", message))
+    if spec.day_first:
+        first = next(r[0] for r in rows if int(r[0][:2]) > 12)
+        out.append(
+            Deliberate(
+                "note",
+                "date order",
+                rel,
+                1,
+                header[0],
+                "",
+                f'{rel}: {header[0]} read as day-first (DD/MM/YYYY): "{first}" can only be read '
+                "that way",
+            )
+        )
+    return out
+
+
 def expected_problems_md(problems: list[Deliberate]) -> str:
     lines = [
         "# Deliberate problems in the sample book",
@@ -686,12 +752,15 @@ def expected_problems_md(problems: list[Deliberate]) -> str:
         "row = 2); a header-level problem has no row.",
         "",
         f"Client `{PROBLEM_CLIENT}` has one error, so the month-end batch skips it with that",
-        "reason and reports the other nine clients.",
+        f"reason and reports the other {len(CLIENTS) - 1} clients. Notes are not problems: they",
+        "say how a log written the way coaches write them (headers with units, day-first dates)",
+        "was read.",
         "",
         "| severity | kind | file | row | column | value | note |",
         "|---|---|---|---|---|---|---|",
     ]
-    for p in problems:
+    order = {"error": 0, "warning": 0, "note": 1}  # notes after the problems
+    for p in sorted(problems, key=lambda p: order[p.severity]):
         row = "" if p.row is None else str(p.row)
         lines.append(
             f"| {p.severity} | {p.kind} | {p.file} | {row} | {p.column or ''} | "
@@ -707,7 +776,7 @@ Everything here is invented: the practice, the people, their e-mail addresses (a
 example.org / example.com) and every number. It was generated by
 `scripts/make_sample_inputs.py`; rerun it to regenerate byte-identical files.
 
-**Scenario.** *Kestrel Row Nutrition* is a small invented practice with one coach and ten
+**Scenario.** *Kestrel Row Nutrition* is a small invented practice with one coach and twelve
 clients on fat-loss programmes. The report month is **November 2026**; logs run from early
 August 2026 to the end of November.
 
@@ -723,6 +792,8 @@ August 2026 to the end of November.
 | c008 | Tamsin Greaves, F 26 | CSV, UTF-8 BOM | kg, **kJ** | deficit, break, deficit | JP3, x3 |
 | c009 | Rafael Iturbe, M 64 | XLSX + phases | kg, kcal, no ratings | baseline, deficit | JP7 |
 | c010 | Nadia Vos, F 19 | CSV | kg, kcal, no steps | deficit (running), patchy | JP3 |
+| c011 | Ines Albrecht, F 47 | CSV, **weight only** | kg, no intake | deficit (running) | none |
+| c012 | Tomasz Brennan, M 36 | CSV, **unit headers, DD/MM/YYYY** | kg, kcal | deficit | JP3 |
 
 x3: three readings per site (otherwise two).
 
@@ -739,7 +810,7 @@ rhythm, an occasional salty-meal spike, 6-24 % of days not logged, intake under-
 0.1 kg or 0.2 lb, calipers to 0.2 or 0.5 mm.
 
 `EXPECTED_PROBLEMS.md` lists the deliberate problems in c007's log, which `reportgen check`
-must find (and nothing else).
+must find (and nothing else), and the notes it gives on how c012's log was read.
 """
 
 

@@ -22,16 +22,17 @@ def tree_hashes(root: Path) -> dict[str, str]:
     }
 
 
-def expected_problems(book: Path) -> set[tuple[str, str, int | None, str | None, str]]:
+def expected_problems(book: Path) -> set[tuple[str, str, int | None, str | None, str | None]]:
     """(severity, file, row, column, value) of each row of ``EXPECTED_PROBLEMS.md``."""
     out = set()
     for line in (book / "EXPECTED_PROBLEMS.md").read_text(encoding="utf-8").splitlines():
-        m = re.match(r"^\| (error|warning) \|", line)
+        m = re.match(r"^\| (error|warning|note) \|", line)
         if not m:
             continue
         cells = [c.strip() for c in line.strip().strip("|").split("|")]
         severity, _kind, file, row, column, value = cells[:6]
-        out.add((severity, file, int(row) if row else None, column or None, value.strip("`")))
+        row_n = int(row) if row else None
+        out.add((severity, file, row_n, column or None, value.strip("`") or None))
     return out
 
 

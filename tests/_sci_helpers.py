@@ -4,16 +4,18 @@ from __future__ import annotations
 
 import datetime as dt
 from dataclasses import replace
+from typing import Any
 
 import numpy as np
 
 from reportgen.io.model import Client, ClientRecord, DailyLog, Phase, Problem
-from reportgen.science.simulate import SimulatedClient, simulate_client
+from reportgen.testing.simulate import SimulatedClient, SimulationSpec, simulate_client
 
 
-def simulated(seed: int = 7, **kwargs: object) -> SimulatedClient:
-    """A simulated client (invented data) from a fixed seed."""
-    return simulate_client(np.random.default_rng(seed), f"s{seed:03d}", **kwargs)  # type: ignore[arg-type]
+def simulated(seed: int = 7, **fixed: Any) -> SimulatedClient:
+    """A simulated client (invented data) from a fixed seed; ``fixed``: SimulationSpec fields."""
+    spec = replace(SimulationSpec(client_id=f"s{seed:03d}"), **fixed)
+    return simulate_client(np.random.default_rng(seed), spec)
 
 
 def with_client(sim: SimulatedClient, **changes: object) -> ClientRecord:

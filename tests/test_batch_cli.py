@@ -13,7 +13,7 @@ def test_bad_month_is_a_usage_error(tmp_path: Path) -> None:
     out = tmp_path / "out"
     r = run_cli([tmp_path, "--month", "2026-13", "--out", out])
     assert r.exit_code == 2
-    assert "YYYY-MM" in r.output
+    assert "month '2026-13' has no month 13; use 01 to 12" in r.output
     r = run_cli([tmp_path, "--month", "Nov 2026", "--out", out])
     assert r.exit_code == 2
     assert not out.exists()

@@ -20,12 +20,12 @@ from reportgen.manifest import (
     manifest_bytes,
     sha256_bytes,
 )
+from reportgen.month import ReportMonth
 from reportgen.results import Estimate, PhaseResult
 from reportgen.summary import (
     DECIMALS,
     SUMMARY_COLUMNS,
     format_number,
-    month_bounds,
     overlaps_month,
     phase_row,
     summary_csv,
@@ -130,9 +130,13 @@ def test_format_number_round_trips_within_half_a_unit(x: float) -> None:
 
 
 def test_month_bounds() -> None:
-    assert month_bounds("2026-11") == (dt.date(2026, 11, 1), dt.date(2026, 11, 30))
-    assert month_bounds("2026-12") == (dt.date(2026, 12, 1), dt.date(2026, 12, 31))
-    assert month_bounds("2028-02") == (dt.date(2028, 2, 1), dt.date(2028, 2, 29))  # leap year
+    def bounds(text: str) -> tuple[dt.date, dt.date]:
+        month = ReportMonth(text)
+        return month.first_day, month.last_day
+
+    assert bounds("2026-11") == (dt.date(2026, 11, 1), dt.date(2026, 11, 30))
+    assert bounds("2026-12") == (dt.date(2026, 12, 1), dt.date(2026, 12, 31))
+    assert bounds("2028-02") == (dt.date(2028, 2, 1), dt.date(2028, 2, 29))  # leap year
 
 
 def _phase(start: dt.date, end: dt.date | None, **kw: object) -> PhaseResult:
@@ -183,7 +187,7 @@ def _phase(start: dt.date, end: dt.date | None, **kw: object) -> PhaseResult:
     ],
 )
 def test_overlaps_month(start: dt.date, end: dt.date | None, expected: bool) -> None:
-    assert overlaps_month(_phase(start, end), "2026-11") is expected
+    assert overlaps_month(_phase(start, end), ReportMonth("2026-11")) is expected
 
 
 def test_unknown_values_are_blank_never_zero() -> None:
@@ -298,7 +302,7 @@ def test_manifest_is_sorted_stable_and_hashes_inputs(tmp_path: Path) -> None:
         inputs=inputs,
     )
     m = build_manifest(
-        month="2026-11",
+        month=ReportMonth("2026-11"),
         book=book,
         config_file=None,
         config={"report": {"paper": "A4"}},

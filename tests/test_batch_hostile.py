@@ -7,7 +7,7 @@ hang or exhaust the machine (subprocess with resource limits and a time-out).
 from __future__ import annotations
 
 import json
-import shutil
+import subprocess
 from pathlib import Path
 
 import pytest
@@ -134,19 +134,27 @@ def test_unusable_output_folder_is_a_usage_error(
         out = tmp_path / "afile" / "out"
         month_out = out
     else:
-        if os.geteuid() == 0:
-            pytest.skip("root writes into read-only folders")
         out = tmp_path / "ro"
         out.mkdir()
-        out.chmod(0o555)
         month_out = out
-    res = _cli("batch", sample_book, "--month", MONTH, "--out", out, "--clients", "c001",
-               "--workers", 1, "--quiet")  # fmt: skip
+        if os.geteuid() != 0:
+            out.chmod(0o555)
+        else:  # root ignores permission bits; the immutable flag stops root too (ext4)
+            made = subprocess.run(["chattr", "+i", str(out)], capture_output=True, check=False)
+            if made.returncode != 0:
+                pytest.skip("root writes into read-only folders and chattr is not available")
+    try:
+        res = _cli("batch", sample_book, "--month", MONTH, "--out", out, "--clients", "c001",
+                   "--workers", 1, "--quiet")  # fmt: skip
+    finally:
+        if case == "read-only":
+            if os.geteuid() == 0:
+                subprocess.run(["chattr", "-i", str(out)], check=False)
+            out.chmod(0o755)
     assert res.exit_code == 2, res.output  # type: ignore[attr-defined]
     text = res.output.strip()  # type: ignore[attr-defined]
     assert "Traceback" not in text and str(month_out) in text
     assert len([ln for ln in text.splitlines() if ln.startswith("Error")]) == 1
-    shutil.rmtree(tmp_path / "ro", ignore_errors=True)
 
 
 def test_summary_csv_neutralises_formulas_but_keeps_negative_numbers() -> None:

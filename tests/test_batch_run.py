@@ -23,12 +23,13 @@ from _batch_helpers import (
 )
 from pypdf import PdfReader
 
+from reportgen.month import ReportMonth
 from reportgen.results import Estimate, PhaseResult
-from reportgen.summary import DECIMALS, SUMMARY_COLUMNS, month_bounds
+from reportgen.summary import DECIMALS, SUMMARY_COLUMNS
 
 __all__ = ["reference_run"]  # the shared session fixture
 
-SAMPLE_IDS = [f"c{n:03d}" for n in range(1, 11)]
+SAMPLE_IDS = [f"c{n:03d}" for n in range(1, 13)]
 GOOD_IDS = [c for c in SAMPLE_IDS if c != FAILING_CLIENT]
 
 
@@ -123,7 +124,7 @@ def _analyse(book: Path, cid: str):  # type: ignore[no-untyped-def]
         book,
         client,
         roster.phases.get(cid, ()),
-        month_bounds(MONTH)[1],
+        ReportMonth(MONTH).last_day,
         roster_problems=tuple(p for p in roster.problems if p.client_id == cid),
     )
     assert record.ok
@@ -147,7 +148,7 @@ def test_summary_rows_match_the_analysis(reference_run: ReferenceRun, cid: str) 
     rows = [r for r in reader if r["client_id"] == cid]
 
     analysis = _analyse(reference_run.book, cid)
-    first, last = month_bounds(MONTH)
+    first, last = ReportMonth(MONTH).first_day, ReportMonth(MONTH).last_day
     overlapping: list[PhaseResult] = [
         p for p in analysis.phases if p.start <= last and (p.end is None or p.end >= first)
     ]

@@ -17,6 +17,7 @@ from _delivery_helpers import (
 from click.testing import CliRunner
 
 from reportgen.cli.send import send_command
+from reportgen.month import ReportMonth
 
 pytestmark = pytest.mark.usefixtures("loopback_only")
 
@@ -146,3 +147,25 @@ def test_send_output_shows_control_characters_escaped(tmp_path: Path) -> None:
     res = _run([month.month_dir, "--dry-run"])
     assert "\x1b" not in res.output and "\x07" not in res.output
     assert "\\x1b" in res.output
+
+
+def test_no_control_character_reaches_the_subject_from_an_override(tmp_path: Path) -> None:
+    from reportgen.config import Config, ReportSettings
+    from reportgen.delivery.messages import mail_environment, render_content
+
+    mail = tmp_path / "tpl" / "mail"
+    mail.mkdir(parents=True)
+    (mail / "report_subject.txt.j2").write_text("Report for {{ client_name }}", encoding="utf-8")
+    config = Config(report=ReportSettings(templates_dir=str(tmp_path / "tpl")))
+    content = render_content(
+        mail_environment(config),
+        "report",
+        config=config,
+        client_name="Eve\x1b[2J\x00\x85",
+        client_id="c002",
+        month=ReportMonth("2026-11"),
+        filename="report.pdf",
+        encrypted=False,
+    )
+    assert content.subject.startswith("Report for Eve")
+    assert not any(ord(c) < 32 or 0x7F <= ord(c) <= 0x9F for c in content.subject)

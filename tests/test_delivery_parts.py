@@ -22,9 +22,9 @@ from reportgen.delivery.ledger import (
 from reportgen.delivery.messages import (
     attachment_name,
     mail_environment,
-    month_label,
     render_content,
 )
+from reportgen.month import ReportMonth
 
 # --- addresses -------------------------------------------------------------------------
 
@@ -167,8 +167,8 @@ def test_ledger_appends_on_a_fresh_line_and_locks_the_month(tmp_path: Path) -> N
 
 
 def test_month_label_and_attachment_names() -> None:
-    assert month_label("2026-11") == "November 2026"
-    assert month_label("2027-01") == "January 2027"
+    assert ReportMonth("2026-11").label == "November 2026"
+    assert ReportMonth("2027-01").label == "January 2027"
     assert attachment_name("report", "2026-11", "c001") == "report-2026-11-c001.pdf"
     assert attachment_name("practitioner", "2026-11", "ab_c-1") == (
         "practitioner-summary-2026-11-ab_c-1.pdf"
@@ -184,7 +184,7 @@ def test_html_body_escapes_client_text_and_text_body_keeps_it() -> None:
         config=Config(),
         client_name="<Tom> & Jerry",
         client_id="c001",
-        month="2026-11",
+        month=ReportMonth("2026-11"),
         filename="report-2026-11-c001.pdf",
         encrypted=False,
     )
@@ -232,7 +232,7 @@ def test_practice_templates_override_the_shipped_ones(tmp_path: Path) -> None:
         config=config,
         client_name="Ana",
         client_id="c001",
-        month="2026-11",
+        month=ReportMonth("2026-11"),
         filename="f.pdf",
         encrypted=True,
     )

@@ -37,6 +37,8 @@ KIND_CODES = {
     "skinfold readings disagree": "skinfold-disagreement",
     "encoding fallback": "encoding-fallback",
     "special handling": "special-handling",
+    "headers read as": "header-read-as",
+    "date order": "date-order",
 }
 
 
@@ -46,12 +48,19 @@ def expected_sample_problems() -> list[tuple[str, str, str, int | None, str, str
     out = []
     for line in text.splitlines():
         cells = [c.strip() for c in line.strip().strip("|").split("|")]
-        if len(cells) < 6 or cells[0] not in ("error", "warning"):
+        if len(cells) < 6 or cells[0] not in ("error", "warning", "note"):
             continue
         severity, kind, file, row, column, value = cells[:6]
         assert kind in KIND_CODES, f"add the kind {kind!r} of EXPECTED_PROBLEMS.md to KIND_CODES"
         out.append(
-            (severity, KIND_CODES[kind], file, int(row) if row else None, column, value.strip("`"))
+            (
+                severity,
+                KIND_CODES[kind],
+                file,
+                int(row) if row else None,
+                column or None,
+                value.strip("`") or None,
+            )
         )
     assert out, "EXPECTED_PROBLEMS.md has no table rows"
     return sorted(out, key=str)
@@ -74,7 +83,7 @@ def test_sample_book_reports_exactly_the_deliberate_problems(sample_book: Path) 
     )
     assert found == expected_sample_problems()
     assert data["month"] == "2026-11"
-    assert data["clients_checked"] == 10
+    assert data["clients_checked"] == 12
     n_err = sum(1 for p in found if p[0] == "error")
     assert code == (1 if n_err else 0)
 
@@ -86,10 +95,12 @@ def test_sample_book_table_output(sample_book: Path) -> None:
         loc = ":".join(str(x) for x in (file, row, column) if x not in (None, ""))
         assert re.search(rf"{severity}\s+│\s+c\d+\s+│\s+{re.escape(loc)}\s", out), out
     n_err = sum(1 for p in expected if p[0] == "error")
-    n_warn = len(expected) - n_err
+    n_warn = sum(1 for p in expected if p[0] == "warning")
+    n_note = sum(1 for p in expected if p[0] == "note")
     assert out.rstrip().splitlines()[-1] == (
-        f"10 clients checked for 2026-11: {1 if n_err else 0} with errors, "
-        f"{n_err} error{'s' * (n_err != 1)}, {n_warn} warning{'s' * (n_warn != 1)}"
+        f"12 clients checked for 2026-11: {1 if n_err else 0} with errors, "
+        f"{n_err} error{'s' * (n_err != 1)}, {n_warn} warning{'s' * (n_warn != 1)}, "
+        f"{n_note} note{'s' * (n_note != 1)}"
     )
     assert code == (1 if n_err else 0)
 
@@ -159,7 +170,7 @@ def test_roster_that_cannot_be_read_exits_two(tmp_path: Path) -> None:
 def test_bad_month_option(tmp_path: Path) -> None:
     code, _, err = run(str(write_book(tmp_path / "book")), "--month", "November")
     assert code == 2
-    assert 'month "November" is not of the form YYYY-MM' in err
+    assert "month 'November' is not in the form YYYY-MM" in err
 
 
 def test_check_has_help() -> None:
@@ -184,15 +195,15 @@ def _snapshot(folder: Path) -> dict[str, tuple[str, int]]:
 def test_inputs_are_byte_identical_after_reading_and_checking(sample_book: Path) -> None:
     # Add a broken workbook and a cp1252 file so the failure paths are covered too.
     (sample_book / "clients.csv").write_bytes(
-        (sample_book / "clients.csv").read_bytes() + b"c011,Ren\xe9,male,1980-01-01,180,,,,,,\n"
+        (sample_book / "clients.csv").read_bytes() + b"c099,Ren\xe9,male,1980-01-01,180,,,,,,\n"
     )
-    (sample_book / "logs" / "c011.xlsx").write_bytes(b"PK\x03\x04 broken")
+    (sample_book / "logs" / "c099.xlsx").write_bytes(b"PK\x03\x04 broken")
     before = _snapshot(sample_book)
     assert any(name.endswith(".xlsx") for name in before)
     for args in ([], ["--json"], ["--month", "2026-10"]):
         run(str(sample_book), "--today", TODAY, *args)
     read_book_client(sample_book, "c002")
-    read_book_client(sample_book, "c011")
+    read_book_client(sample_book, "c099")
     assert _snapshot(sample_book) == before
     assert not list(sample_book.rglob("~$*")), "no lock files left behind"
 
@@ -221,18 +232,20 @@ def test_files_no_client_reads_are_pointed_out(tmp_path: Path) -> None:
     logs = book / "logs"
     (logs / "C001.csv").write_text("date\n", encoding="utf-8")  # wrong case: never read
     (logs / "c0O1.csv").write_text("date\n", encoding="utf-8")  # typo in the id
-    (logs / "c001.ods").write_bytes(b"")  # a format we do not read
+    (logs / "c001.numbers").write_bytes(b"")  # a format we do not read
     (logs / "~$c001.xlsx").write_bytes(b"lock")  # spreadsheet lock file: not mentioned
     (logs / ".DS_Store").write_bytes(b"")
     result = check_book(book, today=dt.date(2026, 12, 1))
     assert result.ok
     msgs = {p.file: (p.client_id, p.message) for p in result.warnings}
-    assert set(msgs) == {"logs/C001.csv", "logs/c0O1.csv", "logs/c001.ods"}
+    assert set(msgs) == {"logs/C001.csv", "logs/c0O1.csv", "logs/c001.numbers"}
     assert re.search(
         r'not read: the name must match the client_id "c001" exactly', msgs["logs/C001.csv"][1]
     )
     assert re.search(
         r"not read: its name matches no client_id in clients.csv", msgs["logs/c0O1.csv"][1]
     )
-    assert re.search(r"reportgen reads .csv or .xlsx files here", msgs["logs/c001.ods"][1])
-    assert msgs["logs/c001.ods"][0] == "c001"
+    assert re.search(
+        r"reportgen reads .csv, .xlsx, .xlsm, .xls or .ods files here", msgs["logs/c001.numbers"][1]
+    )
+    assert msgs["logs/c001.numbers"][0] == "c001"

@@ -331,3 +331,25 @@ def test_manifest_hashes_the_bytes_that_were_parsed(
     assert outcome.inputs["logs/c001.csv"] == original
     manifest = json.loads((out / "2026-11" / "manifest.json").read_text("utf-8"))
     assert manifest["clients"]["c001"]["inputs"]["logs/c001.csv"] == original
+
+
+def test_a_panic_in_the_workbook_reader_costs_only_that_file(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import python_calamine
+
+    class PanicException(BaseException):  # what pyo3 raises for a Rust panic
+        pass
+
+    class Exploding:
+        @staticmethod
+        def from_filelike(_fh: object) -> object:
+            raise PanicException("index out of bounds")
+
+    book = _two_clients(tmp_path, {})
+    write_xlsx(book / "logs" / "c002.xlsx", {"daily": daily_rows()})
+    (book / "logs" / "c002.csv").unlink(missing_ok=True)
+    monkeypatch.setattr(python_calamine, "CalamineWorkbook", Exploding)
+    rec = read_book_client(book, "c002")
+    (p,) = [p for p in rec.errors if p.code == "unreadable-file"]
+    assert p.file == "logs/c002.xlsx" and "PanicException" in p.message

@@ -16,7 +16,8 @@ from hypothesis import strategies as st
 
 from reportgen.io.book import read_client, read_roster
 from reportgen.io.cells import CellError, parse_date, parse_number
-from reportgen.io.daily import _iso_text_ordinals, number_column
+from reportgen.io.daily import number_column
+from reportgen.io.dates import iso_text_ordinals as _iso_text_ordinals
 from reportgen.io.model import ClientRecord, InputError, Problem
 from reportgen.io.problems import PROBLEM_CODES
 

@@ -17,6 +17,7 @@ from reportgen.config import (
     SECTION_DOCS,
     SETTING_DOCS,
     AnalysisSettings,
+    BookSettings,
     Config,
     ConfigError,
     MailSettings,
@@ -33,6 +34,7 @@ TABLES = {
     "practice": PracticeSettings,
     "report": ReportSettings,
     "analysis": AnalysisSettings,
+    "book": BookSettings,
     "mail": MailSettings,
 }
 

@@ -1,6 +1,6 @@
 """analyse_client: the glue from a ClientRecord to a ClientAnalysis.
 
-Records are simulated (reportgen.science.simulate, invented data).  The checks
+Records are simulated (reportgen.testing.simulate, invented data).  The checks
 are identities of the published chain (science notes §4.4: observed TDEE =
 mean intake + realised deficit; §6: adaptation = observed - expected) and the
 special-handling rules of the issue, not regression pins.
@@ -159,7 +159,7 @@ def test_record_with_errors_is_refused() -> None:
 
 
 def test_bad_month_is_refused() -> None:
-    with pytest.raises(ValueError, match="month must be YYYY-MM"):
+    with pytest.raises(ValueError, match="is not in the form YYYY-MM"):
         analyse_client(simulated(2).record, "November", SETTINGS)
 
 
@@ -319,14 +319,15 @@ def test_sample_book_clients_analyse() -> None:
     """Integration with the io readers on the shipped sample book (invented clients)."""
     from pathlib import Path
 
-    from reportgen.io.book import month_end_of, read_client, read_roster
+    from reportgen.io.book import read_client, read_roster
+    from reportgen.month import ReportMonth
 
     book = Path(__file__).resolve().parent.parent / "sample_inputs"
     roster = read_roster(book)
     done = 0
     for client in roster.clients:
         rec = read_client(
-            book, client, roster.phases.get(client.client_id, ()), month_end_of("2026-11")
+            book, client, roster.phases.get(client.client_id, ()), ReportMonth("2026-11").last_day
         )
         if not rec.ok:
             continue

@@ -1,6 +1,6 @@
 """The baseline behind expected TDEE, and short windows (simulated clients, truth known).
 
-Records are simulated by reportgen.science.simulate (invented data with known
+Records are simulated by reportgen.testing.simulate (invented data with known
 truth).  The checks compare estimates with that truth, and the conjugate-normal
 update with its closed form (standard Bayesian result, e.g. Gelman et al.,
 Bayesian Data Analysis, 3rd ed., 2013, §2.5).
@@ -8,7 +8,9 @@ Bayesian Data Analysis, 3rd ed., 2013, §2.5).
 
 from __future__ import annotations
 
+import dataclasses
 import math
+from typing import Any
 
 import numpy as np
 import pytest
@@ -17,17 +19,18 @@ from _sci_helpers import simulated
 from reportgen.analysis import EARLY_PHASE_DAYS, analyse_client
 from reportgen.config import AnalysisSettings
 from reportgen.science.expected import maintenance_deficit_posterior
-from reportgen.science.simulate import simulate_client
+from reportgen.testing.simulate import SimulationSpec, simulate_client
 
 SETTINGS = AnalysisSettings()
 
 
-def _adaptation_errors(n: int, **kwargs: object) -> list[float]:
+def _adaptation_errors(n: int, **fixed: Any) -> list[float]:
     """Adaptation error (estimate - truth) of the deficit phases of n simulated clients."""
     rng = np.random.default_rng(20261201)
     out = []
     for i in range(n):
-        sim = simulate_client(rng, f"t{i:03d}", under_report=0.0, **kwargs)  # type: ignore[arg-type]
+        spec = SimulationSpec(client_id=f"t{i:03d}", under_report=0.0)
+        sim = simulate_client(rng, dataclasses.replace(spec, **fixed))
         a = analyse_client(sim.record, sim.month, SETTINGS)
         for p, tr in zip(a.phases, sim.phases, strict=True):
             if p.kind == "deficit" and p.days >= 28 and p.adaptation_kcal.known:

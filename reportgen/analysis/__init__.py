@@ -43,6 +43,7 @@ from reportgen.analysis.stages import ClientStages
 from reportgen.analysis.trend import trend_stage
 from reportgen.config import AnalysisSettings
 from reportgen.io.model import ClientRecord
+from reportgen.month import ReportMonth
 from reportgen.results import ClientAnalysis
 
 __all__ = [
@@ -55,22 +56,27 @@ __all__ = [
 ]
 
 
-def analyse_client(record: ClientRecord, month: str, settings: AnalysisSettings) -> ClientAnalysis:
+def analyse_client(
+    record: ClientRecord, month: ReportMonth | str, settings: AnalysisSettings
+) -> ClientAnalysis:
     """Analyse one client's record for the report month ``month`` ("YYYY-MM").
 
     Every field of the result is filled; values the data cannot support are missing with
-    a reason.  Raises ValueError if the record has errors or ``month`` is not YYYY-MM.
+    a reason.  Raises ValueError if the record has errors, and
+    :class:`~reportgen.month.InvalidMonth` (a ValueError) if ``month`` is not a month.
     """
     return run_stages(record, month, settings).analysis()
 
 
-def run_stages(record: ClientRecord, month: str, settings: AnalysisSettings) -> ClientStages:
+def run_stages(
+    record: ClientRecord, month: ReportMonth | str, settings: AnalysisSettings
+) -> ClientStages:
     """Run every stage in order; :meth:`ClientStages.analysis` assembles the result."""
     if not record.ok:
         raise ValueError(
             f"record for {record.client.client_id} has errors; analyse only ok records"
         )
-    ctx = client_context(record, month, settings)
+    ctx = client_context(record, ReportMonth(month), settings)
     trend = trend_stage(ctx)
     composition = composition_stage(ctx, trend)
     resting = resting_stage(ctx, trend, composition)

@@ -52,7 +52,8 @@ def baseline_stage(
     None without a trend, under special handling, or when neither gives an observed
     TDEE, a resting expenditure and a fat mass.
     """
-    if trend.fit is None or ctx.special_handling:
+    if trend.fit is None or ctx.special_handling or ctx.month_window:
+        # without phases nothing says when the client ate at maintenance: no baseline
         return None
     first_deficit = min(
         (p.window.phase.start for p in phases if p.window.phase.kind == "deficit"), default=None

@@ -7,7 +7,6 @@ every stage reads it and none changes it.
 
 from __future__ import annotations
 
-import calendar
 import datetime as dt
 import math
 from dataclasses import dataclass
@@ -16,6 +15,7 @@ import numpy as np
 
 from reportgen.config import AnalysisSettings
 from reportgen.io.model import ClientRecord, DailyLog, FloatArray, Phase
+from reportgen.month import ReportMonth
 from reportgen.results import Estimate
 from reportgen.science import balance as energy_balance
 from reportgen.science.trend import Z80
@@ -23,6 +23,8 @@ from reportgen.science.trend import Z80
 MIN_ANALYSIS_DAYS = energy_balance.MIN_DAYS
 # Phase kinds whose start is an intake change when they are the first phase of the data.
 INTAKE_CHANGE_KINDS = ("deficit", "surplus")
+#: Name of the one window of a client without phases (kind "month").
+MONTH_WINDOW_NAME = "Report month"
 
 
 @dataclass(frozen=True)
@@ -51,7 +53,7 @@ class ClientContext:
 
     record: ClientRecord
     settings: AnalysisSettings
-    month: str
+    month: ReportMonth
     month_start: dt.date
     as_of: dt.date  # last day of the report month; later data are ignored
     log: DailyLog  # cut at ``as_of``
@@ -61,6 +63,7 @@ class ClientContext:
     windows: tuple[PhaseWindow, ...]  # phases in start order
     knots: tuple[int, ...]  # day indices where the slope may change (phase starts and ends)
     start_shift_index: int | None  # glycogen/water step at the start of the data, if any
+    month_window: bool = False  # no phases: the report month is the one window (kind "month")
 
     @property
     def weights_kg(self) -> FloatArray:
@@ -77,26 +80,24 @@ class ClientContext:
         return tuple(sorted({w.start_index for w in self.windows}))
 
 
-def month_bounds(month: str) -> tuple[dt.date, dt.date]:
-    """First and last day of the month "YYYY-MM"; ValueError for anything else."""
-    try:
-        year, month_number = (int(part) for part in month.split("-"))
-        first = dt.date(year, month_number, 1)
-    except (ValueError, TypeError) as exc:
-        raise ValueError(f"month must be YYYY-MM, got {month!r}") from exc
-    last_day = calendar.monthrange(year, month_number)[1]
-    return first, dt.date(year, month_number, last_day)
-
-
-def client_context(record: ClientRecord, month: str, settings: AnalysisSettings) -> ClientContext:
+def client_context(
+    record: ClientRecord, month: ReportMonth, settings: AnalysisSettings
+) -> ClientContext:
     """Cut the record at the end of ``month`` and lay its phases over the log."""
-    month_start, as_of = month_bounds(month)
+    month_start, as_of = month.first_day, month.last_day
     client = record.client
     log = cut_log(record.log, as_of)
     age = client.age_years(as_of)
     minor = bool(record.minor or (age is not None and age < 18))
     special = tuple(s for s, on in (("minor", minor), ("pregnant", client.pregnant)) if on)
-    windows = phase_windows(record.phases, log, as_of)
+    phases = record.phases
+    month_window = not phases and log.n_days > 0
+    if month_window:
+        # No phases recorded: the report month is one window.  Its start and end are no
+        # change of intake, so they are no knots of the trend either.
+        phases = (Phase(MONTH_WINDOW_NAME, month_start, None, "month"),)
+    windows = phase_windows(phases, log, as_of)
+    knots = {w.start_index for w in windows} | {w.end_index + 1 for w in windows}
     return ClientContext(
         record=record,
         settings=settings,
@@ -109,8 +110,9 @@ def client_context(record: ClientRecord, month: str, settings: AnalysisSettings)
         special_handling=special,
         windows=windows,
         # the slope may change where a phase starts or ends (the intake changed there)
-        knots=tuple(sorted({w.start_index for w in windows} | {w.end_index + 1 for w in windows})),
+        knots=() if month_window else tuple(sorted(knots)),
         start_shift_index=start_shift_index(record.phases, log, as_of),
+        month_window=month_window,
     )
 
 
@@ -130,6 +132,7 @@ def cut_log(log: DailyLog, as_of: dt.date) -> DailyLog:
         hunger=log.hunger[keep],
         energy=log.energy[keep],
         sleep_h=log.sleep_h[keep],
+        body_fat_pct=log.body_fat_pct[keep],
     )
 
 

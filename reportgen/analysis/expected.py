@@ -112,6 +112,10 @@ def expected_tdee_of(
                 lean_rate_kg_per_day,
             )
             return found, "own-baseline"
+    if ctx.month_window:
+        # no phases: no baseline, and an equation alone is no honest expectation for a
+        # window whose intake history is unknown
+        return Estimate.missing("no-baseline"), None
     resting_kcal = resting_at(mean_weight_kg)
     if resting_kcal is None:
         return Estimate.missing("no-resting-equation"), None

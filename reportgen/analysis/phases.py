@@ -260,4 +260,6 @@ def current_phase(
     for result in results:
         if result.start <= ctx.as_of and (result.end is None or result.end >= ctx.as_of):
             current, week = result, (ctx.as_of - result.start).days // 7 + 1
+    if current is not None and current.kind == "month":
+        week = None  # the report month as one window has no week count of its own
     return current, week

@@ -8,6 +8,9 @@ from typing import TYPE_CHECKING
 
 import click
 
+from reportgen.cli.params import REPORT_MONTH
+from reportgen.month import ReportMonth
+
 if TYPE_CHECKING:
     from reportgen.batch import BatchResult
 
@@ -81,7 +84,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
 
 @click.command("batch")
 @click.argument("book", type=click.Path(file_okay=False, path_type=Path))
-@click.option("--month", required=True, metavar="YYYY-MM", help="The report month, e.g. 2026-11.")
+@click.option("--month", required=True, type=REPORT_MONTH, help="The report month, e.g. 2026-11.")
 @click.option(
     "--out",
     "out_dir",
@@ -119,7 +122,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
 )
 def batch_command(
     book: Path,
-    month: str,
+    month: ReportMonth,
     out_dir: Path,
     workers: int | None,
     clients: str | None,
@@ -133,14 +136,10 @@ def batch_command(
     Exit code 0 when every client succeeded, 1 when some failed (the others
     are still written), 2 for a usage error or an unreadable book.
     """
-    from reportgen.batch import BatchUsageError, parse_month, run_batch
+    from reportgen.batch import BatchUsageError, run_batch
     from reportgen.config import ConfigError, load_config
     from reportgen.io.model import InputError
 
-    try:
-        parse_month(month)
-    except BatchUsageError as exc:
-        raise click.BadParameter(str(exc), param_hint="--month") from None
     ids = _split_ids(clients)
     try:
         config = load_config(config_file)

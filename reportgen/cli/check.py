@@ -9,21 +9,12 @@ from pathlib import Path
 
 import click
 
+from reportgen.cli.params import REPORT_MONTH
+from reportgen.month import ReportMonth
+
 #: Exit codes: 0 no errors (warnings allowed), 1 some client or book-level error,
 #: 2 the book cannot be used at all (no or unreadable roster) or bad options.
 EXIT_OK, EXIT_ERRORS, EXIT_UNUSABLE = 0, 1, 2
-
-
-def _month(_ctx: click.Context, _param: click.Parameter, value: str | None) -> str | None:
-    if value is None:
-        return None
-    from reportgen.io.book import month_end_of
-
-    try:
-        month_end_of(value)
-    except ValueError as exc:
-        raise click.BadParameter(str(exc)) from None
-    return value
 
 
 def _today(_ctx: click.Context, _param: click.Parameter, value: str | None) -> dt.date | None:
@@ -39,8 +30,7 @@ def _today(_ctx: click.Context, _param: click.Parameter, value: str | None) -> d
 @click.argument("book", type=click.Path(path_type=Path))
 @click.option(
     "--month",
-    metavar="YYYY-MM",
-    callback=_month,
+    type=REPORT_MONTH,
     help="Report month to check for (default: the month of the latest data in the book).",
 )
 @click.option("--json", "as_json", is_flag=True, help="Print the problems as JSON for scripts.")
@@ -50,18 +40,37 @@ def _today(_ctx: click.Context, _param: click.Parameter, value: str | None) -> d
     callback=_today,
     help="Date after which entries count as future dates (default: the computer's date).",
 )
-def check_command(book: Path, month: str | None, as_json: bool, today: dt.date | None) -> None:
+@click.option(
+    "--config",
+    "config_file",
+    type=click.Path(dir_okay=False, path_type=Path),
+    help="Practice configuration (TOML); its [book] settings decide how the book is read.",
+)
+def check_command(
+    book: Path,
+    month: ReportMonth | None,
+    as_json: bool,
+    today: dt.date | None,
+    config_file: Path | None,
+) -> None:
     """Check the client book BOOK and list every problem found.
 
     Errors (the client would be skipped) and warnings (the report is still made) are shown
     with file:row:column. Exits 1 when any client has an error, 2 when the book cannot be
     used at all, 0 otherwise. Input files are only read, never changed.
     """
+    from reportgen.config import ConfigError, load_config
     from reportgen.io.check import check_book
     from reportgen.io.model import InputError
 
     try:
-        result = check_book(book, month=month, today=today)
+        config = load_config(config_file)
+    except ConfigError as exc:
+        raise click.BadParameter(str(exc), param_hint="--config") from None
+    try:
+        result = check_book(
+            book, month=month, today=today, date_order=config.book.date_order_setting()
+        )
     except InputError as exc:
         if as_json:
             click.echo(json.dumps({"unusable": exc.problem.as_dict()}, indent=2, sort_keys=True))
@@ -98,7 +107,7 @@ def _print_table(result: object) -> None:
         table.add_column("where (file:row:column)", overflow="fold")
         table.add_column("problem", ratio=1)
         for p in problems:
-            style = "bold red" if p.severity == "error" else "yellow"
+            style = {"error": "bold red", "warning": "yellow"}.get(p.severity, "cyan")
             table.add_row(
                 Text(p.severity, style=style),
                 Text(escape_controls(p.client_id or "-")),

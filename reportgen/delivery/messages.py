@@ -21,6 +21,7 @@ import jinja2
 import jinja2.sandbox
 
 from reportgen.config import Config
+from reportgen.month import ReportMonth
 from reportgen.resources import template_problem, templates_dir
 
 # Header lines are not folded below the RFC 5322 hard limit of 998 characters: Python's
@@ -33,21 +34,6 @@ FILE_POLICY = policy.default.clone(max_line_length=998)
 Kind = Literal["report", "practitioner"]
 KINDS: tuple[Kind, ...] = ("report", "practitioner")
 
-_MONTHS = (
-    "January",
-    "February",
-    "March",
-    "April",
-    "May",
-    "June",
-    "July",
-    "August",
-    "September",
-    "October",
-    "November",
-    "December",
-)
-
 
 @dataclass(frozen=True)
 class Sender:
@@ -57,12 +43,6 @@ class Sender:
     name: str
     reply_to: str
     domain: str
-
-
-def month_label(month: str) -> str:
-    """ "2026-11" -> "November 2026" (fixed English names, independent of the locale)."""
-    year, mm = month.split("-")
-    return f"{_MONTHS[int(mm) - 1]} {year}"
 
 
 def attachment_name(kind: Kind, month: str, client_id: str) -> str:
@@ -88,6 +68,9 @@ def mail_environment(config: Config) -> jinja2.Environment:
     )
 
 
+_CONTROL = re.compile(r"[\x00-\x1f\x7f-\x9f]")
+
+
 @dataclass(frozen=True)
 class MailContent:
     subject: str
@@ -111,7 +94,7 @@ def render_content(
     config: Config,
     client_name: str,
     client_id: str,
-    month: str,
+    month: ReportMonth,
     filename: str,
     encrypted: bool,
 ) -> MailContent:
@@ -128,12 +111,13 @@ def render_content(
         "greeting_name": greeting_name(client_name),
         "client_id": client_id,
         "month": month,
-        "month_label": month_label(month),
+        "month_label": month.label,
         "attachment": filename,
         "encrypted": encrypted,
     }
     subject = _render(env, f"{kind}_subject.txt.j2", context)
     subject = " ".join(subject.split())  # one line, whatever the template's layout
+    subject = _CONTROL.sub("", subject)  # no control character ever reaches a header
     text = _render(env, f"{kind}.txt.j2", context)
     html = _render(env, f"{kind}.html.j2", context)
     return MailContent(subject=subject, text=text, html=html)

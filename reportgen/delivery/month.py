@@ -3,14 +3,12 @@
 from __future__ import annotations
 
 import json
-import re
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 from reportgen.manifest import MANIFEST_NAME
-
-_MONTH = re.compile(r"^\d{4}-(0[1-9]|1[0-2])$")
+from reportgen.month import InvalidMonth, ReportMonth
 
 
 class DeliveryError(ValueError):
@@ -33,7 +31,7 @@ class ManifestClient:
 
 @dataclass(frozen=True)
 class Manifest:
-    month: str
+    month: ReportMonth
     book: Path
     config_file: Path | None
     config: dict[str, Any]
@@ -55,9 +53,11 @@ def read_manifest(month_dir: Path) -> Manifest:
         raise DeliveryError(f"{path}: cannot read the manifest ({exc})") from None
     if not isinstance(data, dict) or data.get("tool") != "reportgen":
         raise DeliveryError(f"{path} is not a reportgen manifest")
-    month = data.get("month")
-    if not isinstance(month, str) or not _MONTH.match(month):
-        raise DeliveryError(f"{path}: 'month' must be YYYY-MM, got {month!r}")
+    month_text = data.get("month")
+    try:
+        month = ReportMonth(month_text if isinstance(month_text, str) else repr(month_text))
+    except InvalidMonth:
+        raise DeliveryError(f"{path}: 'month' must be YYYY-MM, got {month_text!r}") from None
     book = data.get("book")
     if not isinstance(book, str) or not book:
         raise DeliveryError(f"{path}: 'book' is missing")

@@ -214,7 +214,8 @@ def plan_month(
                     continue
             address, why = check_address(raw)
             name = client.name or mc.name
-            if address is not None and kind == "report" and has_control(name):
+            # The name reaches the To header (reports) and the subject (both kinds).
+            if address is not None and has_control(name):
                 address, why = (
                     None,
                     f"the name {name!r} holds a control character (line break, tab...)",

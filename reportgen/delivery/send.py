@@ -53,6 +53,7 @@ from reportgen.delivery.smtp import (
     SendResult,
     SMTPConnection,
 )
+from reportgen.month import ReportMonth
 
 OUTBOX = "outbox"
 PASSWORD_ENV = "REPORTGEN_SMTP_PASSWORD"
@@ -85,8 +86,16 @@ class SendReport:
         return 0 if all(r.done for r in self.rows) else 1
 
 
-class _FileChanged(Exception):
+class _Skip(Exception):
+    """This one message cannot be made; the others go on."""
+
+    result = "skipped-invalid-address"
+
+
+class _FileChanged(_Skip):
     """A report file no longer matches the manifest when it is read for attaching."""
+
+    result = "skipped-modified-file"
 
 
 def send_month(
@@ -170,8 +179,8 @@ def send_month(
             cid = item.client.client_id
             try:
                 msg, _ = _message(item, config, env, sender, manifest.month)
-            except _FileChanged as exc:
-                emit(Row(cid, item.kind, item.address, "skipped-modified-file", str(exc)))
+            except _Skip as exc:
+                emit(Row(cid, item.kind, item.address, exc.result, str(exc)))
                 continue
             name = f"{cid}-{item.kind}.eml"
             write_bytes_atomic(outbox / name, msg.as_bytes(policy=FILE_POLICY))
@@ -231,7 +240,7 @@ def _log_skip(ledger: Ledger, month: str, row: Row, sha256: str | None = None) -
 
 
 def _message(
-    item: Planned, config: Config, env: jinja2.Environment, sender: Sender, month: str
+    item: Planned, config: Config, env: jinja2.Environment, sender: Sender, month: ReportMonth
 ) -> tuple[EmailMessage, bytes]:
     """The message for one planned delivery, and the attached bytes."""
     cid = item.client.client_id
@@ -255,15 +264,18 @@ def _message(
         )
     except MailTemplateError as exc:  # the same template for everyone: stop the run
         raise DeliveryError(str(exc)) from None
-    msg = build_message(
-        sender=sender,
-        to_address=item.address,
-        to_name=item.name if item.kind == "report" else "",
-        content=content,
-        pdf=pdf,
-        filename=filename,
-        message_id=item.message_id,
-    )
+    try:
+        msg = build_message(
+            sender=sender,
+            to_address=item.address,
+            to_name=item.name if item.kind == "report" else "",
+            content=content,
+            pdf=pdf,
+            filename=filename,
+            message_id=item.message_id,
+        )
+    except ValueError as exc:  # a header the email package refuses (CR/LF and the like)
+        raise _Skip(f"the message headers cannot be made: {exc}") from None
     return msg, pdf
 
 
@@ -275,7 +287,7 @@ def _send_all(
     config: Config,
     env: jinja2.Environment,
     sender: Sender,
-    month: str,
+    month: ReportMonth,
     emit: Callable[[Row], None],
 ) -> str | None:
     """Send each planned message with retries; returns the reason if the run had to stop."""
@@ -291,8 +303,8 @@ def _send_all(
             return stop_reason
         try:
             msg, pdf = _message(item, config, env, sender, month)
-        except _FileChanged as exc:
-            row = Row(cid, item.kind, item.address, "skipped-modified-file", str(exc))
+        except _Skip as exc:
+            row = Row(cid, item.kind, item.address, exc.result, str(exc))
             _log_skip(ledger, month, row, item.sha256)
             emit(row)
             continue

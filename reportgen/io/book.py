@@ -7,13 +7,13 @@ writes to, moves or locks an input file.
 
 from __future__ import annotations
 
-import calendar
 import datetime as dt
 from collections.abc import Iterable
 from pathlib import Path
 
 from reportgen.io import guard, limits
 from reportgen.io.daily import parse_daily
+from reportgen.io.dates import DateOrder
 from reportgen.io.model import (
     Client,
     ClientRecord,
@@ -29,22 +29,40 @@ from reportgen.io.roster import parse_roster
 from reportgen.io.skinfolds import parse_skinfolds
 from reportgen.io.tables import Table, build_table, read_csv_table, read_xlsx_sheets
 
-ROSTER_FILES = ("clients.csv", "clients.xlsx")
+#: Workbook types calamine reads (no macro ever runs: only cell values are read).
+WORKBOOK_TYPES = (".xlsx", ".xlsm", ".xls", ".ods")
+#: File types of the roster and daily logs, in the order they are looked for.
+TABLE_TYPES = (".csv", *WORKBOOK_TYPES)
+ROSTER_FILES = tuple(f"clients{ext}" for ext in TABLE_TYPES)
 PHASES_FILE = "phases.csv"
 XLSX_SHEETS = ("daily", "skinfolds", "phases")
+_TYPES_TEXT = ".csv, .xlsx, .xlsm, .xls or .ods"
 
 
-def month_end_of(month: str) -> dt.date:
-    """Last day of ``"YYYY-MM"``."""
-    try:
-        year, mon = (int(x) for x in month.split("-"))
-        return dt.date(year, mon, calendar.monthrange(year, mon)[1])
-    except (ValueError, calendar.IllegalMonthError) as exc:
-        raise ValueError(f'month "{month}" is not of the form YYYY-MM (e.g. 2026-11)') from exc
+def _unsupported(book: Path, folder: str, stem: str) -> str | None:
+    """A file named like the wanted one but of a type reportgen does not read, if any."""
+    base = book / folder if folder else book
+    if not base.is_dir():
+        return None
+    for path in sorted(base.iterdir()):
+        if path.stem == stem and path.suffix.lower() not in TABLE_TYPES and path.is_file():
+            return f"{folder}/{path.name}" if folder else path.name
+    return None
 
 
 def _roster_file(book: Path) -> str:
     present = [f for f in ROSTER_FILES if (book / f).is_file()]
+    other = None if present else _unsupported(book, "", "clients")
+    if other is not None:
+        raise InputError(
+            Problem(
+                "error",
+                "unsupported-file",
+                f"{other} is a file type reportgen does not read; save the roster as "
+                f"clients with one of {_TYPES_TEXT}",
+                file=other,
+            )
+        )
     if not present:
         raise InputError(
             Problem(
@@ -58,8 +76,8 @@ def _roster_file(book: Path) -> str:
             Problem(
                 "error",
                 "two-sources",
-                "the book has both clients.csv and clients.xlsx; keep one",
-                file="clients.xlsx",
+                f"the book has both {' and '.join(present)}; keep one",
+                file=present[1],
             )
         )
     return present[0]
@@ -164,13 +182,15 @@ def read_client(
     today: dt.date | None = None,
     *,
     roster_problems: Iterable[Problem] = (),
+    date_order: DateOrder | None = None,
 ) -> ClientRecord:
     """Read and validate one client's files (never raises for bad data).
 
     Data after ``month_end`` is cut off silently; data after ``today`` is ignored with a
     ``future-date`` warning.  ``roster_problems`` may be all of ``Roster.problems``: those
     with this client's id are added to the record, so roster or phase errors make the record
-    not ``ok``.
+    not ``ok``.  ``date_order`` is the ``[book] date_order`` setting (used only for a log
+    whose dates could be read either way).
     """
     book = Path(book_dir)
     today = today or dt.date.today()
@@ -187,11 +207,13 @@ def read_client(
     skinfolds: tuple[SkinfoldSession, ...] = ()
     sheet_phases: list[tuple[int, Phase]] = []
     sheet_file = None
-    csv_log, xlsx_log = f"logs/{cid}.csv", f"logs/{cid}.xlsx"
-    states = {rel: guard.file_state(book / rel) for rel in (csv_log, xlsx_log)}
-    has_csv, has_xlsx = states[csv_log] == "regular", states[xlsx_log] == "regular"
+    candidates = [f"logs/{cid}{ext}" for ext in TABLE_TYPES]
+    states = {rel: guard.file_state(book / rel) for rel in candidates}
+    logs_found = [rel for rel in candidates if states[rel] == "regular"]
+    csv_log = f"logs/{cid}.csv"
+    xlsx_log = next((f for f in logs_found if not f.endswith(".csv")), f"logs/{cid}.xlsx")
     for rel, state in states.items():
-        if state not in ("absent", "regular") and not (has_csv or has_xlsx):
+        if state not in ("absent", "regular") and not logs_found:
             problems.append(
                 _client_problem(
                     "unreadable-file",
@@ -202,16 +224,27 @@ def read_client(
             )
     daily_table: Table | None = None
     skin_tables: list[Table] = []
-    if has_csv and has_xlsx:
+    other = None if logs_found else _unsupported(book, "logs", cid)
+    if len(logs_found) > 1:
         problems.append(
             _client_problem(
                 "two-sources",
-                f"both {csv_log} and {xlsx_log} exist; keep one daily log",
+                f"both {' and '.join(logs_found)} exist; keep one daily log",
                 client,
-                xlsx_log,
+                logs_found[1],
             )
         )
-    elif not has_csv and not has_xlsx:
+    elif other is not None:
+        problems.append(
+            _client_problem(
+                "unsupported-file",
+                f"{other} is a file type reportgen does not read; save the daily log as "
+                f"{cid} with one of {_TYPES_TEXT}",
+                client,
+                other,
+            )
+        )
+    elif not logs_found:
         if set(states.values()) == {"absent"}:  # otherwise reported above
             problems.append(
                 _client_problem(
@@ -222,7 +255,7 @@ def read_client(
                     csv_log,
                 )
             )
-    elif has_csv:
+    elif logs_found[0] == csv_log:
         sources.append(csv_log)
         daily_table, more = read_csv_table(book, csv_log, cid)
         problems += more
@@ -258,7 +291,7 @@ def read_client(
                     sheet_phases = by_client.get(cid, [])
                     sheet_file = xlsx_log
     if daily_table is not None:
-        result = parse_daily(daily_table, cid, month_end, today)
+        result = parse_daily(daily_table, cid, month_end, today, date_order)
         log, outliers = result.log, result.outliers
         problems += result.problems
 

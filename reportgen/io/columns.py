@@ -35,11 +35,13 @@ def check_columns(
     client_id: str | None,
     *,
     warn_unknown: bool = True,
+    suggestions: dict[str, str] | None = None,
 ) -> tuple[list[Problem], bool]:
     """Errors for missing required columns, warnings for unknown ones.
 
     Each entry of ``required`` lists alternatives (``("weight_kg", "weight_lb")``).  Returns
-    the problems and whether every required column is present.
+    the problems and whether every required column is present.  ``suggestions`` maps an
+    unknown header (as written) to the known name it is close to ("did you mean").
     """
     problems: list[Problem] = []
     have = set(table.columns)
@@ -52,12 +54,18 @@ def check_columns(
         known_set = set(known)
         for raw, name in zip(table.raw_columns, table.columns, strict=True):
             if name and name not in known_set:
+                close = (suggestions or {}).get(raw)
+                hint = (
+                    f'did you mean "{close}"?'
+                    if close
+                    else "check the spelling if it should be used"
+                )
                 problems.append(
                     Problem(
                         "warning",
                         "unknown-column",
                         f'column "{raw}" in {table.where()} is not one reportgen uses; it is '
-                        "ignored (check the spelling if it should be used)",
+                        f"ignored ({hint})",
                         file=table.file,
                         column=raw,
                         value=raw,

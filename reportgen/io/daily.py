@@ -5,7 +5,6 @@ from __future__ import annotations
 import datetime as dt
 import itertools
 import math
-import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Final
@@ -14,8 +13,10 @@ import numpy as np
 import numpy.typing as npt
 
 from reportgen.io import limits
-from reportgen.io.cells import CellError, check_range, parse_date, parse_number, shown
+from reportgen.io.cells import CellError, check_range, parse_number, shown
 from reportgen.io.columns import check_columns
+from reportgen.io.dates import DateOrder, order_note, parse_date_column
+from reportgen.io.headers import normalise_headers
 from reportgen.io.model import BoolArray, DailyLog, FloatArray, Problem
 from reportgen.io.outliers import weight_outliers
 from reportgen.io.tables import Cell, Table, cell_problem, cell_text
@@ -30,8 +31,14 @@ DAILY_VALUES: Final[dict[str, tuple[tuple[float, float], str, str]]] = {
     "hunger": (limits.RATING, "", "ratings go from 1 to 10"),
     "energy": (limits.RATING, "", "ratings go from 1 to 10"),
     "sleep_h": (limits.SLEEP_H, "h", "a day has 24 hours"),
+    "body_fat_pct": (limits.BODY_FAT_PCT, "%", "no plausible body-fat reading"),
 }
-DAILY_REQUIRED: Final = (("date",), alternatives("weight_kg"), alternatives("intake_kcal"))
+#: Intake is optional: a client who only weighs in gets the weight-side results.
+DAILY_REQUIRED: Final = (("date",), alternatives("weight_kg"))
+#: Cell problems of one kind in one column are reported once, with a count and the first rows.
+COLLAPSED_CODES: Final = frozenset({"bad-date", "bad-number", "missing-value", "out-of-range"})
+#: How many row numbers a collapsed message lists.
+ROWS_SHOWN: Final = 5
 IntArray = npt.NDArray[np.int64]
 DAILY_KNOWN: Final = ("date", *[a for c in DAILY_VALUES for a in alternatives(c)])
 
@@ -93,33 +100,25 @@ def number_column(
     return out, errors
 
 
-_ISO_COLUMN = re.compile(r"(?:[0-9]{4}-[0-9]{2}-[0-9]{2}\n)*")
-_EPOCH_ORDINAL = dt.date(1970, 1, 1).toordinal()
+def parse_daily(
+    table: Table,
+    client_id: str,
+    month_end: dt.date,
+    today: dt.date,
+    date_order: DateOrder | None = None,
+) -> DailyResult:
+    """Parse a daily log table into a :class:`DailyLog` on a complete calendar grid.
 
-
-def _iso_text_ordinals(cells: Sequence[Cell]) -> IntArray | None:
-    """Day ordinals for a column that is entirely plain ISO date text, else None.
-
-    The common CSV case in one pass: one regular expression over the whole column, then
-    numpy's ISO parser (which refuses impossible dates such as 2026-02-30).  Anything else
-    (blanks, date cells, other text) goes through :func:`~reportgen.io.cells.parse_date`.
+    Headers are read through :mod:`reportgen.io.headers` and dates through
+    :mod:`reportgen.io.dates` (``date_order`` is the ``[book] date_order`` setting, used only
+    when no date in the file settles the order).
     """
-    texts = [c for c in cells if type(c) is str]
-    if not texts or len(texts) != len(cells):
-        return None
-    if _ISO_COLUMN.fullmatch("\n".join(texts) + "\n") is None:
-        return None
-    try:
-        days = np.array(texts, dtype="datetime64[D]")
-    except ValueError:
-        return None
-    ords = days.astype(np.int64) + _EPOCH_ORDINAL
-    return ords if ords.min() >= 1 else None  # year 0 is no date: let parse_date say so
-
-
-def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date) -> DailyResult:
-    """Parse a daily log table into a :class:`DailyLog` on a complete calendar grid."""
-    problems, ok = check_columns(table, DAILY_REQUIRED, DAILY_KNOWN, client_id)
+    table, problems, suggestions = normalise_headers(table, DAILY_KNOWN, client_id)
+    more, ok = check_columns(table, DAILY_REQUIRED, DAILY_KNOWN, client_id, suggestions=suggestions)
+    named = {p.column for p in problems if p.code in ("ambiguous-column", "duplicate-column")}
+    if named:  # "Weight" without unit: its one error says it all, no missing-column on top
+        more = [p for p in more if p.code != "missing-column"]
+    problems += more
     if not ok:
         return DailyResult(DailyLog.empty(), (), tuple(problems))
     date_pos = table.index("date")
@@ -134,18 +133,28 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
     def err(code: str, msg: str, i: int, col: str | None, val: Cell) -> None:
         problems.append(_err(code, msg, table, client_id, rows[i], col, val))
 
-    # Dates: ISO text or real date cells only (never guessed).
-    fast = _iso_text_ordinals(columns[date_pos])
-    ords = fast if fast is not None else np.full(n, -1, dtype=np.int64)
-    for i, cell in enumerate(columns[date_pos] if fast is None else ()):
-        try:
-            day = parse_date(cell, date_raw)
-        except CellError as e:
-            err(e.code, e.message, i, date_raw, cell)
-            ords[i] = -2
-            continue
-        if day is not None:
-            ords[i] = day.toordinal()
+    # Dates: ISO, day-first or month-first (decided per file, never guessed), date-times.
+    dcol = parse_date_column(columns[date_pos], date_raw, table.where(), date_order)
+    ords, minutes = dcol.ords, dcol.minutes
+    for i, cell_error in dcol.errors:
+        err(cell_error.code, cell_error.message, i, date_raw, columns[date_pos][i])
+    if dcol.ambiguous:
+        first_bad = int(np.flatnonzero(ords == -2)[0])
+        err("ambiguous-dates", dcol.ambiguous, first_bad, date_raw, columns[date_pos][first_bad])
+    note = order_note(dcol, date_raw)
+    if note:
+        problems.append(
+            cell_problem(
+                "note",
+                "date-order",
+                f"{table.where()}: {note}",
+                table,
+                table.header_row,
+                date_raw,
+                None,
+                client_id,
+            )
+        )
 
     # Values, converted to canonical units; conflicts and limits (weight: after outliers).
     values = np.full((len(DAILY_VALUES), n), np.nan)
@@ -226,8 +235,12 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
             )
         )
     keep = np.flatnonzero((ords > 0) & (ords <= min(today_o, end_o)))  # later: a later report
-    keep = keep[np.argsort(ords[keep], kind="stable")]
-    keep = _drop_duplicates(keep, ords, values, rows, table, client_id, date_raw, problems)
+    if dcol.has_times:  # date-times: several weigh-ins a day, the first of the day is used
+        keep = keep[np.lexsort((np.nan_to_num(minutes[keep], nan=-1.0), ords[keep]))]
+        keep = _first_of_day(keep, ords, values, rows, table, client_id, date_raw, problems)
+    else:
+        keep = keep[np.argsort(ords[keep], kind="stable")]
+        keep = _drop_duplicates(keep, ords, values, rows, table, client_id, date_raw, problems)
     if keep.size == 0:
         problems.append(
             Problem(
@@ -238,7 +251,7 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
                 client_id=client_id,
             )
         )
-        return DailyResult(DailyLog.empty(), (), tuple(_by_row(problems)))
+        return DailyResult(DailyLog.empty(), (), tuple(_by_row(_collapse(problems))))
 
     first = int(ords[keep[0]])
     n_days = int(ords[keep[-1]]) - first + 1
@@ -288,12 +301,126 @@ def parse_daily(table: Table, client_id: str, month_end: dt.date, today: dt.date
         hunger=grid[3],
         energy=grid[4],
         sleep_h=grid[5],
+        body_fat_pct=grid[6],
     )
-    return DailyResult(log, tuple(outliers), tuple(_by_row(problems)))
+    return DailyResult(log, tuple(outliers), tuple(_by_row(_collapse(problems))))
 
 
 def _by_row(problems: list[Problem]) -> list[Problem]:
     return sorted(problems, key=lambda p: p.row or 0)
+
+
+def _collapse(problems: list[Problem]) -> list[Problem]:
+    """One problem per file, column and kind of cell error, with the count and first rows.
+
+    Seventy unreadable dates are one message ("70 cells ... rows 2, 3, 4, 5, 6, ...; the
+    first: ..."), which points at the first cell and keeps its value.
+    """
+    groups: dict[tuple[str | None, str | None, str], list[Problem]] = {}
+    for p in problems:
+        if p.code in COLLAPSED_CODES and p.severity == "error":
+            groups.setdefault((p.file, p.column, p.code), []).append(p)
+    if all(len(g) == 1 for g in groups.values()):
+        return problems
+    out: list[Problem] = []
+    for p in problems:
+        g = groups.get((p.file, p.column, p.code))
+        if g is None or len(g) == 1:
+            out.append(p)
+        elif p is g[0]:
+            ordered = sorted(g, key=lambda q: q.row or 0)
+            shown_rows = ", ".join(str(q.row) for q in ordered[:ROWS_SHOWN])
+            more = ", …" if len(g) > ROWS_SHOWN else ""
+            first = ordered[0]
+            out.append(
+                Problem(
+                    "error",
+                    p.code,
+                    f"{len(g)} cells in column {p.column} have this problem (rows "
+                    f"{shown_rows}{more}); the first: {first.message}",
+                    file=p.file,
+                    row=first.row,
+                    column=p.column,
+                    value=first.value,
+                    client_id=p.client_id,
+                )
+            )
+    return out
+
+
+def _first_of_day(
+    keep: IntArray,
+    ords: IntArray,
+    values: FloatArray,
+    rows: list[int],
+    table: Table,
+    cid: str,
+    date_raw: str,
+    problems: list[Problem],
+) -> IntArray:
+    """One row per day for a log with date-times (``keep`` sorted by date and time).
+
+    The day's first weigh-in is used (the usual morning protocol) with its body-fat reading;
+    other values given on only one of the day's rows are carried to it; two different values
+    of one kind on one day are a ``duplicate-date`` error.  One note counts the days with
+    more than one weigh-in.
+    """
+    if keep.size < 2:
+        return keep
+    day_ords = ords[keep]
+    starts = np.flatnonzero(np.r_[True, day_ords[1:] != day_ords[:-1]])
+    ends = np.r_[starts[1:], keep.size]
+    several = 0
+    out: list[int] = []
+    names = list(DAILY_VALUES)
+    w, bf = names.index("weight_kg"), names.index("body_fat_pct")
+    for a, b in zip(starts.tolist(), ends.tolist(), strict=True):
+        group = keep[a:b]
+        if group.size == 1:
+            out.append(int(group[0]))
+            continue
+        weighed = group[np.isfinite(values[w, group])]
+        several += int(weighed.size > 1)
+        first = int(weighed[0]) if weighed.size else int(group[0])
+        for k, name in enumerate(names):
+            if k in (w, bf):
+                continue
+            given = [int(i) for i in group if np.isfinite(values[k, i])]
+            distinct = {float(values[k, i]) for i in given}
+            if len(distinct) > 1:
+                day = dt.date.fromordinal(int(ords[first]))
+                problems.append(
+                    _err(
+                        "duplicate-date",
+                        f"{date_raw} {day} has {len(distinct)} different {name} values (rows "
+                        f"{', '.join(str(rows[i]) for i in given)}); keep one per day",
+                        table,
+                        cid,
+                        rows[given[1]],
+                        date_raw,
+                        str(day),
+                    )
+                )
+                values[k, first] = np.nan
+            elif given:
+                values[k, first] = values[k, given[0]]
+        out.append(first)
+    if several:
+        problems.append(
+            _note(
+                "several-weigh-ins",
+                f"{table.where()}: {several} day{'s' * (several != 1)} had more than one "
+                "weigh-in; the first of each day is used (the usual morning weigh-in)",
+                table,
+                cid,
+                date_raw,
+            )
+        )
+    return np.array(out, dtype=np.int64)
+
+
+def _note(code: str, msg: str, t: Table, cid: str, col: str | None) -> Problem:
+    return cell_problem("note", code, msg, t, t.header_row, col, None, cid)
 
 
 def _drop_duplicates(

@@ -27,21 +27,23 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Final
 
-#: [bytes] Largest CSV file read: a daily log of 100 years is about 2 MB; 20 MB leaves room for
-#: wide exports while keeping parsing well under a second and memory under 1 GB.
+#: [bytes] Largest CSV file read: a daily log of 54 years is well under 1 MB; 20 MB leaves
+#: room for wide exports while keeping memory far under 1 GB (rows and cells are limited too).
 MAX_CSV_BYTES: Final = 20 * 1024 * 1024
 #: [bytes] Largest workbook file read (compressed size on disk).
 MAX_WORKBOOK_BYTES: Final = 20 * 1024 * 1024
 #: [bytes] Largest total uncompressed size of a workbook's parts: beyond this a small file can
 #: expand to gigabytes (an archive bomb).  Real logs are a few hundred kB uncompressed.
 MAX_WORKBOOK_UNCOMPRESSED: Final = 100 * 1024 * 1024
-#: Most data rows in one file or sheet: 100000 days is 270 years of daily entries.
-MAX_ROWS: Final = 100_000
+#: Most data rows in one file or sheet: 20000 days is 54 years of daily entries, and a roster
+#: of 20000 clients is a very large practice.  Reading and checking that many rows takes a few
+#: seconds; an export repeated to millions of rows is refused at once instead.
+MAX_ROWS: Final = 20_000
 #: Most columns in one file or sheet: the widest input has about 20 named columns.
 MAX_COLUMNS: Final = 200
 #: Most cells (rows x columns) one sheet may span: keeps the spreadsheet reader's memory
 #: bounded (each cell becomes a Python object of about 50-100 bytes).
-MAX_CELLS: Final = 2_000_000
+MAX_CELLS: Final = 1_000_000
 #: [characters] Longest single cell: a name or a note is far shorter; a longer cell is damage
 #: (or an attempt to exhaust memory), reported for its row only.
 MAX_CELL_CHARS: Final = 10_000
@@ -170,12 +172,24 @@ def read_input(path: Path, rel: str, max_bytes: int, what: str = "file") -> byte
 
 
 def check_text_rows(data: bytes, rel: str) -> None:
-    """Refuse a CSV with more lines than :data:`MAX_ROWS` (counted before parsing)."""
+    """Refuse a CSV beyond :data:`MAX_ROWS` lines or :data:`MAX_CELLS` cells.
+
+    Counted on the bytes before parsing (line breaks, and separators plus line breaks for
+    cells; quoted commas count too, so this is an upper bound), so the refusal is fast and
+    the parse that follows has bounded memory.
+    """
     lines = data.count(b"\n")
     if lines > MAX_ROWS + 1:
         raise InputRefused(
             f"{rel} has {lines} lines, more than the {MAX_ROWS} rows reportgen reads from one "
             "file; is it the right file (an export repeated many times)?",
+            "file-too-large",
+        )
+    cells = data.count(b",") + data.count(b";") + data.count(b"\t") + lines + 1
+    if cells > MAX_CELLS:
+        raise InputRefused(
+            f"{rel} has about {cells} cells, more than the {MAX_CELLS} reportgen reads from one "
+            "file; is it the right file?",
             "file-too-large",
         )
 

@@ -34,6 +34,9 @@ STEPS: Final = (0.0, 100000.0)
 RATING: Final = (1.0, 10.0)
 #: [h/day] A day has 24 hours.
 SLEEP_H: Final = (0.0, 24.0)
+#: [%] A scale's body-fat reading: below 2 % or above 75 % no adult or adolescent is
+#: plausible (essential fat alone is about 2-5 % in men, from memory).
+BODY_FAT_PCT: Final = (2.0, 75.0)
 #: [years] Oldest plausible age at the report month (oldest documented people are ~120).
 MAX_AGE_YEARS: Final = 120
 #: [years] Under this age at the end of the report month a client is a minor (special care).

@@ -15,9 +15,11 @@ from typing import Literal
 import numpy as np
 import numpy.typing as npt
 
-Severity = Literal["error", "warning"]
+Severity = Literal["error", "warning", "note"]
 Sex = Literal["female", "male"]
-PhaseKind = Literal["deficit", "maintenance", "surplus", "break"]
+#: "month" is never read from a book: the analysis uses it for the report month as one window
+#: when a client has no phases.
+PhaseKind = Literal["deficit", "maintenance", "surplus", "break", "month"]
 PHASE_KINDS: tuple[PhaseKind, ...] = ("deficit", "maintenance", "surplus", "break")
 SKINFOLD_SITES: tuple[str, ...] = (
     "chest",
@@ -38,6 +40,9 @@ DateArray = npt.NDArray[np.datetime64]
 @dataclass(frozen=True)
 class Problem:
     """One thing wrong (error) or worth knowing (warning) about the input.
+
+    A ``note`` says how something unambiguous was interpreted (a header read as a canonical
+    column, dates read day-first); ``reportgen check`` lists notes, reports do not.
 
     ``file`` is relative to the book folder (``logs/c017.csv``); ``row`` is the
     spreadsheet row number a person sees (header = row 1, first data row = 2);
@@ -137,7 +142,9 @@ class DailyLog:
     never after the analysis cut-off); every other array is aligned with it and
     holds NaN on days without a value.  ``weight_kg`` is the value as logged
     (converted to kg); ``weight_outlier`` marks weigh-ins the reader excluded
-    as isolated outliers, which the analysis must not use.
+    as isolated outliers, which the analysis must not use.  ``body_fat_pct`` is
+    a scale's (bioimpedance) body-fat reading, kept apart from skinfold
+    estimates; all NaN when the log has no such column.
     """
 
     dates: DateArray
@@ -148,6 +155,16 @@ class DailyLog:
     hunger: FloatArray
     energy: FloatArray
     sleep_h: FloatArray
+    body_fat_pct: FloatArray = field(default_factory=lambda: np.empty(0, dtype=np.float64))
+
+    def __post_init__(self) -> None:
+        if self.body_fat_pct.shape != self.dates.shape:  # built without scale readings
+            object.__setattr__(self, "body_fat_pct", np.full(self.dates.shape, np.nan))
+
+    @property
+    def has_intake(self) -> bool:
+        """Whether any intake was logged (a weight-only client has none)."""
+        return bool(np.isfinite(self.intake_kcal).any())
 
     @property
     def n_days(self) -> int:

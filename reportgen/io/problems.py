@@ -15,10 +15,13 @@ PROBLEM_CODES: Final[dict[str, tuple[Severity, str]]] = {
     "missing-file": ("error", "a required file is not there"),
     "two-sources": ("error", "the same data is given in two files; keep one"),
     "unreadable-file": ("error", "a file cannot be read (not CSV text, not a workbook)"),
+    "unsupported-file": ("error", "a roster or daily log of a file type reportgen does not read"),
     "empty-file": ("error", "a file or sheet has no header row"),
     "missing-sheet": ("error", "a workbook has no daily sheet"),
     "missing-column": ("error", "a required column is missing"),
     "duplicate-column": ("error", "a column name appears twice"),
+    "ambiguous-column": ("error", "a header that could mean two columns (e.g. weight, no unit)"),
+    "ambiguous-dates": ("error", "dates that could be day-first or month-first, undecided"),
     "extra-cells": ("error", "values beyond the last named column"),
     "missing-value": ("error", "a required cell is blank"),
     "bad-number": ("error", "a cell that should hold a number does not"),
@@ -46,4 +49,9 @@ PROBLEM_CODES: Final[dict[str, tuple[Severity, str]]] = {
     "missing-detail": ("warning", "sex, birth date or height blank in the roster"),
     "skipped-file": ("warning", "a folder, FIFO, device or broken link where a file belongs"),
     "unused-file": ("warning", "a file in logs/ or skinfolds/ that no client reads (check only)"),
+    "no-month-data": ("warning", "no weigh-ins or no entries at all in the report month (check)"),
+    # notes: how something unambiguous was read (check lists them; reports do not)
+    "header-read-as": ("note", "headers read as canonical columns (e.g. Weight (kg))"),
+    "date-order": ("note", "dates read as day-first or month-first"),
+    "several-weigh-ins": ("note", "days with more than one weigh-in: the first of the day used"),
 }

@@ -7,12 +7,10 @@ from __future__ import annotations
 
 from typing import Final
 
-#: The international avoirdupois pound, exactly (International Yard and Pound Agreement, 1959).
-KG_PER_LB: Final = 0.45359237
-#: The thermochemical calorie, exactly 4.184 J (the kcal used on food labels and in nutrition).
-KCAL_PER_KJ: Final = 1.0 / 4.184
-#: The international inch, exactly 2.54 cm (1959 agreement).
-CM_PER_IN: Final = 2.54
+# The constants are defined once, with their sources, in reportgen.unit_constants.
+from reportgen.unit_constants import CM_PER_INCH as CM_PER_IN
+from reportgen.unit_constants import KCAL_PER_KJ as KCAL_PER_KJ
+from reportgen.unit_constants import KG_PER_LB as KG_PER_LB
 
 #: Non-canonical column -> (canonical column, factor to multiply by).
 UNIT_MAP: Final[dict[str, tuple[str, float]]] = {

@@ -405,6 +405,8 @@ def _shade_phases(ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *,
     fig = ax.get_figure()
     axes_pt = ax.get_position().width * (fig.get_figwidth() if fig else 6.0) * PT
     for i, p in enumerate(phases):
+        if p.kind == "month":  # no phases recorded: the report month is no phase to mark
+            continue
         a, b = max(_day(p.start), x0), min(_day(p.window_end), x1)
         if b < a:
             continue
@@ -682,23 +684,42 @@ def _signals_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80)
     return fig
 
 
+def _scale_bodyfat(a: ClientAnalysis, ctx: ChartContext) -> tuple[np.ndarray, np.ndarray]:
+    """A scale's body-fat readings (day numbers, %) on the chart's time axis."""
+    bf = a.log.body_fat_pct
+    if not np.isfinite(bf).any():
+        return np.empty(0), np.empty(0)
+    x = day_numbers(a.log.dates)
+    ok = np.isfinite(bf) & (x >= _day(ctx.start)) & (x <= _day(ctx.end))
+    return x[ok], bf[ok]
+
+
 def _bodycomp_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48) -> Figure | None:
-    """Fat and lean mass as change since the first session (one scale), and the skinfold sum."""
+    """Fat and lean mass as change since the first session (one scale), and the skinfold sum.
+
+    A scale's body-fat readings (bioimpedance) get a panel of their own: a different method,
+    never mixed into the skinfold estimates.
+    """
     sessions = [s for s in a.bodycomp if not s.rough]
-    if not sessions:
+    scale_x, scale_pct = _scale_bodyfat(a, ctx)
+    if not sessions and not len(scale_x):
         return None
     u, L = ctx.units, ctx.labels
+    fig = _figure(ctx, height_mm, (14, 3, 8, 6))
+    if not sessions:
+        ax = fig.add_subplot()
+        _scale_panel(ax, scale_x, scale_pct, ctx.start, ctx.end, ctx, max_ticks=6)
+        return fig
     xs = np.array([_day(s.date) for s in sessions])
     fat = np.array([float(u.weight(s.fat_mass_kg)) for s in sessions])
     lean = np.array([float(u.weight(s.lean_mass_kg)) for s in sessions])
     sums = np.array([np.nan if s.sum_mm is None else s.sum_mm for s in sessions])
-    fig = _figure(ctx, height_mm, (14, 3, 8, 6))
-    gs = fig.add_gridspec(1, 2, width_ratios=(3, 2), wspace=0.22)
+    ratios = (3, 2, 2) if len(scale_x) else (3, 2)
+    gs = fig.add_gridspec(1, len(ratios), width_ratios=ratios, wspace=0.22)
     left, right = fig.add_subplot(gs[0]), fig.add_subplot(gs[1])
     pad = 10.0 if len(xs) > 1 else 21.0
     first = _date_of(min(xs.min() - pad, _day(ctx.start)) if len(xs) > 1 else xs.min() - pad)
     last = _date_of(xs.max() + pad)
-
     _grid(left)
     left.set_title(
         L["bodycomp_change"].format(unit=u.weight_unit),
@@ -747,7 +768,37 @@ def _bodycomp_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 48
     else:
         right.set_yticks([])
     _time_ticks(right, first, last, u, max_ticks=3)
+    if len(scale_x):
+        start = min(first, _date_of(float(scale_x.min())))
+        _scale_panel(fig.add_subplot(gs[2]), scale_x, scale_pct, start, ctx.end, ctx, max_ticks=3)
     return fig
+
+
+def _scale_panel(
+    ax: Axes,
+    xs: np.ndarray,
+    pct: np.ndarray,
+    first: dt.date,
+    last: dt.date,
+    ctx: ChartContext,
+    *,
+    max_ticks: int,
+) -> None:
+    """Scale body-fat readings (%): daily points, labelled as a scale reading."""
+    _grid(ax)
+    ax.set_title(ctx.labels["scale_bodyfat"] + " (%)", fontsize=6.5, color=T.INK, loc="left", pad=3)
+    ax.plot(xs, pct, ls="none", marker="^", ms=2.4, color=T.MUTED, zorder=4)
+    ax.annotate(
+        f"{pct[-1]:.1f}",
+        (xs[-1], pct[-1]),
+        xytext=(0, 4),
+        textcoords="offset points",
+        ha="center",
+        fontsize=5.8,
+        color=T.INK,
+    )
+    _y_ticks(ax, float(pct.min()), float(pct.max()), n=3, min_span=2.0)
+    _time_ticks(ax, first, last, ctx.units, max_ticks=max_ticks)
 
 
 def _date_of(day_number: float) -> dt.date:
@@ -828,7 +879,7 @@ def _projection_figure(
 # matplotlib legend box is about a sixth of a chart's drawing time.
 LegendEntry = tuple[str, str, str]  # (symbol, colour hex, label)
 LINE, DOT, BLOCK, CROSS, DASHED, DOTTED, SQUARE, DIAMOND = "━", "●", "█", "✕", "╍", "┈", "■", "◆"
-OPEN_DIAMOND, BAR = "◇", "┃"
+OPEN_DIAMOND, BAR, TRIANGLE = "◇", "┃", "▲"
 
 
 def _tint(colour: str, alpha: float) -> str:
@@ -856,11 +907,16 @@ def legend(key: str, a: ClientAnalysis, ctx: ChartContext) -> list[LegendEntry]:
             out.append((DOTTED, T.DEEP, L["planned"]))
         return out
     if key == "bodycomp":
-        return [
-            (DOT, T.WARM, L["legend_fat"]),
-            (SQUARE, acc, L["legend_lean"]),
-            (DIAMOND, T.DEEP, L["legend_sum"]),
-        ]
+        out = []
+        if any(not s.rough for s in a.bodycomp):
+            out = [
+                (DOT, T.WARM, L["legend_fat"]),
+                (SQUARE, acc, L["legend_lean"]),
+                (DIAMOND, T.DEEP, L["legend_sum"]),
+            ]
+        if len(_scale_bodyfat(a, ctx)[0]):
+            out.append((TRIANGLE, T.MUTED, L["legend_scale_bodyfat"]))
+        return out
     if key == "projection":
         out = [
             (LINE, acc, L["trend"]),

@@ -19,6 +19,7 @@ from reportlab.platypus import Flowable, Spacer
 from reportgen.analysis.quality import FLAG_INTAKE_DAYS
 from reportgen.analysis.trend import RECENT_DAYS
 from reportgen.config import Config
+from reportgen.month import ReportMonth
 from reportgen.results import MethodUsed
 from reportgen.science import flags as F
 
@@ -27,7 +28,7 @@ from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
 from .theme import page_size, theme_for
 from .units import Units
-from .viewmodel import ADAPT_MIN_PCT, month_label
+from .viewmodel import ADAPT_MIN_PCT
 from .wording import Wording, blocks, esc
 
 
@@ -96,7 +97,10 @@ def methods_used(per_client: Iterable[Sequence[MethodUsed]]) -> list[tuple[Metho
 
 
 def render_methods(
-    per_client: Iterable[Sequence[MethodUsed]], clients: int, month: str, config: Config
+    per_client: Iterable[Sequence[MethodUsed]],
+    clients: int,
+    month: ReportMonth | str,
+    config: Config,
 ) -> bytes:
     """The month's methods document as PDF bytes (A4 or letter, portrait)."""
     theme = theme_for(config.report.accent_colour)
@@ -107,7 +111,7 @@ def render_methods(
     width = pagesize[0] - 2 * 18 * mm
     used = methods_used(per_client)
     vm = SimpleNamespace(
-        month=month_label(month),
+        month=ReportMonth(month).label,
         count=str(clients),
         activity_factor=u.number(config.analysis.activity_factor, 2),
         adapt_min=u.pct(ADAPT_MIN_PCT, dp=0),

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import calendar
 from collections.abc import Sequence
 from types import SimpleNamespace
 
@@ -11,6 +10,7 @@ from reportlab.lib.units import mm
 from reportlab.platypus import Flowable, Spacer
 
 from reportgen.config import Config
+from reportgen.month import ReportMonth
 from reportgen.results import ClientAnalysis
 
 from .layout import data_table, practice_header
@@ -19,7 +19,6 @@ from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
 from .theme import page_size, theme_for
 from .units import DASH, Units
-from .viewmodel import month_label
 from .wording import Wording, blocks, esc
 
 # Attention score: an urgent flag outranks any number of cautions, a caution any number of notes.
@@ -28,17 +27,12 @@ SEVERITY_WEIGHT = {"urgent": 10_000, "caution": 100, "info": 1}
 SPARSE_LOGGING_WEIGHT = 50
 
 
-def _month_bounds(month: str) -> tuple[np.datetime64, np.datetime64, int]:
-    year, mon = (int(p) for p in month.split("-"))
-    days = calendar.monthrange(year, mon)[1]
-    first = np.datetime64(f"{year:04d}-{mon:02d}-01", "D")
-    return first, first + days, days
-
-
 def make_overview_line(analysis: ClientAnalysis) -> OverviewLine:
     """The client's line in the overview (small and picklable: built in the worker)."""
     a = analysis
-    first, after, days = _month_bounds(a.month)
+    days = a.month.days
+    first = np.datetime64(a.month.first_day, "D")
+    after = first + days
     in_month = (a.log.dates >= first) & (a.log.dates < after)
     weights = a.log.weight_used_kg
     weight_days = int(np.sum(in_month & np.isfinite(weights)))
@@ -80,7 +74,7 @@ def sort_lines(lines: list[OverviewLine]) -> list[OverviewLine]:
 def render_overview(
     lines: list[OverviewLine],
     failures: Sequence[tuple[str, str] | tuple[str, str, str]],
-    month: str,
+    month: ReportMonth | str,
     config: Config,
 ) -> bytes:
     """The coach's overview of every client for the month as PDF bytes (landscape).
@@ -96,7 +90,7 @@ def render_overview(
     width = pagesize[0] - 2 * margin
     ordered = sort_lines(list(lines))
     vm = SimpleNamespace(
-        month=month_label(month),
+        month=ReportMonth(month).label,
         count=str(len(ordered)),
         attention=str(sum(1 for ln in ordered if ln.flags)),
         failed=str(len(failures)),

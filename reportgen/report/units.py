@@ -14,9 +14,8 @@ import numpy as np
 
 from reportgen.config import Config
 from reportgen.results import Estimate
+from reportgen.unit_constants import KG_PER_LB, KJ_PER_KCAL
 
-KG_PER_LB = 0.45359237  # exact, by definition of the international pound
-KJ_PER_KCAL = 4.184  # thermochemical calorie, exact by definition
 MINUS = "\u2212"
 DASH = "\u2013"
 

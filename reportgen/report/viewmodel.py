@@ -7,7 +7,6 @@ thresholds named below, so the wording stays free of numbers it would have to co
 
 from __future__ import annotations
 
-import calendar
 import datetime as dt
 from dataclasses import dataclass, field
 from typing import Any
@@ -36,11 +35,6 @@ SIGNAL_NOTABLE = ("moderate", "large")
 # than the 5-15 % usually attributed to adaptation (common practice, no single source).
 ADAPT_LARGE_PCT = 15.0
 LONG_DEFICIT_DAYS = 84  # 12 weeks of continuous deficit: suggest a break (common practice)
-
-
-def month_label(month: str) -> str:
-    year, mon = (int(p) for p in month.split("-"))
-    return f"{calendar.month_name[mon]} {year}"
 
 
 @dataclass
@@ -278,7 +272,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         intake.value = u.e(a.month_mean_intake_kcal)
         intake.detail = str(int(np.sum(_month_mask(a) & np.isfinite(a.log.intake_kcal))))
     else:
-        intake.reason = "no-intake"
+        intake.reason = "no-intake" if a.log.has_intake else "no-intake-logged"
     figs["intake"] = intake
 
     def phase_est(attr: str, kind: str, key: str) -> Figure:
@@ -325,6 +319,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         ),
         "weeks_in_deficit": str((ph.days_in_deficit or 0) // 7) if ph else "",
         "sessions": str(len(a.bodycomp)),
+        "scale_bodyfat": bool(np.isfinite(a.log.body_fat_pct).any()),
         "goal": u.w(a.client.goal_weight_kg) if a.client.goal_weight_kg is not None else "",
         "goal_status": "none",
         "goal_direction": "",
@@ -410,7 +405,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     return ClientView(
         practice=practice_view(config),
         client={"name": a.client.name, "id": a.client.client_id},
-        month=month_label(a.month),
+        month=a.month.label,
         month_code=a.month,
         as_of=u.d(a.as_of),
         weight_unit=u.weight_unit,
@@ -449,9 +444,7 @@ def _direction(est: Estimate) -> str:
 
 
 def _month_mask(a: ClientAnalysis) -> np.ndarray:
-    year, mon = (int(p) for p in a.month.split("-"))
-    first = np.datetime64(dt.date(year, mon, 1), "D")
-    return a.log.dates >= first
+    return a.log.dates >= np.datetime64(a.month.first_day, "D")
 
 
 def _bodyfat_figure(a: ClientAnalysis, u: Units) -> Figure:

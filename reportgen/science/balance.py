@@ -43,6 +43,7 @@ from reportgen.science.rates import (
     window_rate,
 )
 from reportgen.science.trend import Z80
+from reportgen.unit_constants import KJ_PER_KCAL
 
 MIN_DAYS = 14  # no expenditure from fewer days (science notes §4.4, §8: common practice)
 MIN_WEIGH_INS = 8  # judgment: fewer weigh-ins than this cannot pin a rate
@@ -50,7 +51,7 @@ MIN_INTAKE_DAYS = 7  # judgment: a mean intake from fewer logged days is not use
 KCAL_PER_KG_SPREADSHEET = 7700.0  # the constant a spreadsheet typically uses (common practice)
 # Glycogen 17.6 MJ/kg (Hall 2008, published) held with about 3 g of water per g (from
 # memory, unverified): 1052 kcal per kg of glycogen-with-water shift.
-GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / 4.184 / 4
+GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / KJ_PER_KCAL / 4
 FALLBACK_RHO_HALF_RANGE = 600.0  # judgment: bracket of 7700 when the fat mass is unknown
 
 
@@ -228,7 +229,7 @@ def window_balance(
     WindowBalance
         Deficit and TDEE are ``Estimate.missing("too-few-days")`` for windows shorter
         than 14 days, "too-few-weigh-ins" with fewer than 8 weigh-ins, and TDEE is
-        "too-few-intake-days" with fewer than 7 logged intake days.
+        "too-few-intake-days" with fewer than 7 logged intake days ("no-intake-logged" with none).
 
     Notes
     -----
@@ -306,7 +307,10 @@ def window_balance(
     sd_def = math.sqrt(var_def)
     deficit_est = Estimate(deficit, deficit - Z80 * sd_def, deficit + Z80 * sd_def)
     if mean_i is None or intake_days < MIN_INTAKE_DAYS or se_i is None:
-        tdee_est = Estimate.missing("too-few-intake-days")
+        # a weight-only client (or window) is not short of data: intake is simply not logged
+        tdee_est = Estimate.missing(
+            "no-intake-logged" if intake_days == 0 else "too-few-intake-days"
+        )
         sd_tdee = None
     else:
         tdee = mean_i + deficit

@@ -31,7 +31,7 @@ import numpy as np
 from scipy.special import lambertw
 
 from reportgen.science._checks import finite
-from reportgen.science.units import KG_PER_LB
+from reportgen.unit_constants import KG_PER_LB
 
 # Hall 2008 [1]: 39.5 MJ/kg fat (published); Hall 2011 rounds it to 9440 kcal/kg.
 RHO_FAT_KCAL_PER_KG = 9440.0

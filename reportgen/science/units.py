@@ -3,16 +3,8 @@
 Canonical units inside the project are kg, kcal, cm and mm; readers convert
 once on the way in and reports once on the way out, through these constants.
 
-Constants and their sources
----------------------------
-``KG_PER_LB = 0.45359237``
-    The international avoirdupois pound, exact by definition (International
-    Yard and Pound Agreement, 1959; NIST SP 811, Appendix B).
-``KJ_PER_KCAL = 4.184``
-    The thermochemical calorie, exact by definition (NIST SP 811, Appendix B);
-    the calorie used on food labels and in the nutrition literature cited here.
-``CM_PER_INCH = 2.54``
-    The international inch, exact by definition (1959 agreement; NIST SP 811).
+The constants themselves (and their sources) are in :mod:`reportgen.unit_constants`,
+the one place every layer takes them from.
 
 References
 ----------
@@ -22,145 +14,59 @@ References
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 import numpy.typing as npt
 
 from reportgen.science._checks import finite
+from reportgen.unit_constants import CM_PER_INCH as CM_PER_INCH
+from reportgen.unit_constants import KG_PER_LB as KG_PER_LB
+from reportgen.unit_constants import KJ_PER_KCAL as KJ_PER_KCAL
 
-KG_PER_LB = 0.45359237  # exact, 1959 international pound
-KJ_PER_KCAL = 4.184  # exact, thermochemical calorie
-CM_PER_INCH = 2.54  # exact, 1959 international inch
 MJ_PER_KCAL = KJ_PER_KCAL / 1000.0
 
 Number = float | npt.NDArray[np.float64]
 
 
-def lb_to_kg(mass_lb: Number) -> Number:
-    """Convert pounds to kilograms.
+@dataclass(frozen=True)
+class UnitConversion:
+    """An exact conversion: multiply by ``factor`` to go from ``source`` to ``target``.
 
-    Parameters
-    ----------
-    mass_lb : float or array
-        Mass. [lb]
-
-    Returns
-    -------
-    float or array
-        Mass. [kg]
+    ``forward`` converts source -> target (x * factor), ``backward`` target -> source
+    (x / factor); both take a float or an array.
     """
-    return mass_lb * KG_PER_LB
+
+    source: str
+    target: str
+    factor: float
+
+    def forward(self, value: Number) -> Number:
+        """``value`` [source unit] in the target unit."""
+        return value * self.factor
+
+    def backward(self, value: Number) -> Number:
+        """``value`` [target unit] in the source unit."""
+        return value / self.factor
 
 
-def kg_to_lb(mass_kg: Number) -> Number:
-    """Convert kilograms to pounds.
+POUNDS_TO_KG = UnitConversion("lb", "kg", KG_PER_LB)
+KCAL_TO_KJ = UnitConversion("kcal", "kJ", KJ_PER_KCAL)  # thermochemical kilocalorie
+KCAL_TO_MJ = UnitConversion("kcal", "MJ", MJ_PER_KCAL)
+INCHES_TO_CM = UnitConversion("in", "cm", CM_PER_INCH)
 
-    Parameters
-    ----------
-    mass_kg : float or array
-        Mass. [kg]
-
-    Returns
-    -------
-    float or array
-        Mass. [lb]
-    """
-    return mass_kg / KG_PER_LB
-
-
-def kj_to_kcal(energy_kj: Number) -> Number:
-    """Convert kilojoules to (thermochemical) kilocalories.
-
-    Parameters
-    ----------
-    energy_kj : float or array
-        Energy. [kJ]
-
-    Returns
-    -------
-    float or array
-        Energy. [kcal]
-    """
-    return energy_kj / KJ_PER_KCAL
-
-
-def kcal_to_kj(energy_kcal: Number) -> Number:
-    """Convert (thermochemical) kilocalories to kilojoules.
-
-    Parameters
-    ----------
-    energy_kcal : float or array
-        Energy. [kcal]
-
-    Returns
-    -------
-    float or array
-        Energy. [kJ]
-    """
-    return energy_kcal * KJ_PER_KCAL
-
-
-def mj_to_kcal(energy_mj: Number) -> Number:
-    """Convert megajoules to kilocalories.
-
-    Parameters
-    ----------
-    energy_mj : float or array
-        Energy. [MJ]
-
-    Returns
-    -------
-    float or array
-        Energy. [kcal]
-    """
-    return energy_mj / MJ_PER_KCAL
-
-
-def kcal_to_mj(energy_kcal: Number) -> Number:
-    """Convert kilocalories to megajoules.
-
-    Parameters
-    ----------
-    energy_kcal : float or array
-        Energy. [kcal]
-
-    Returns
-    -------
-    float or array
-        Energy. [MJ]
-    """
-    return energy_kcal * MJ_PER_KCAL
-
-
-def inch_to_cm(length_in: Number) -> Number:
-    """Convert inches to centimetres.
-
-    Parameters
-    ----------
-    length_in : float or array
-        Length. [in]
-
-    Returns
-    -------
-    float or array
-        Length. [cm]
-    """
-    return length_in * CM_PER_INCH
-
-
-def cm_to_inch(length_cm: Number) -> Number:
-    """Convert centimetres to inches.
-
-    Parameters
-    ----------
-    length_cm : float or array
-        Length. [cm]
-
-    Returns
-    -------
-    float or array
-        Length. [in]
-    """
-    return length_cm / CM_PER_INCH
+#: Pounds to kilograms [lb -> kg] and back.
+lb_to_kg = POUNDS_TO_KG.forward
+kg_to_lb = POUNDS_TO_KG.backward
+#: Kilocalories to kilojoules [kcal -> kJ] and back.
+kcal_to_kj = KCAL_TO_KJ.forward
+kj_to_kcal = KCAL_TO_KJ.backward
+#: Kilocalories to megajoules [kcal -> MJ] and back.
+kcal_to_mj = KCAL_TO_MJ.forward
+mj_to_kcal = KCAL_TO_MJ.backward
+#: Inches to centimetres [in -> cm] and back.
+inch_to_cm = INCHES_TO_CM.forward
+cm_to_inch = INCHES_TO_CM.backward
 
 
 def bmi_kg_m2(weight_kg: float, height_cm: float) -> float:

@@ -15,8 +15,10 @@ between).  What the client *logs* is corrupted the way real logs are:
   equation-sized error;
 * steps, hunger and energy ratings that drift with the deficit.
 
-Pure: everything comes from the seeded ``numpy.random.Generator`` passed in.
-The numbers are invented for testing; no real person's data.
+Pure: everything comes from the seeded ``numpy.random.Generator`` passed in;
+what is fixed rather than drawn is set in a :class:`SimulationSpec`.  The numbers
+are invented for testing; no real person's data.  Not a published method: test
+support, outside ``reportgen.science``.
 """
 
 from __future__ import annotations
@@ -33,16 +35,57 @@ from reportgen.io.model import (
     DailyLog,
     FloatArray,
     Phase,
+    PhaseKind,
+    Sex,
     SkinfoldSession,
 )
+from reportgen.month import ReportMonth
+from reportgen.science.balance import GLYCOGEN_WATER_KCAL_PER_KG
 from reportgen.science.hall import HALL_2011, HallBaseline, hall_baseline, simulate_hall
 from reportgen.science.skinfolds import JP3_MEN, JPW3_WOMEN
 
 GLYCOGEN_KG_PER_KCAL = 0.0018  # glycogen+water shift per kcal/day of cut (invented, judgment)
 GLYCOGEN_TAU_DAYS = 4.0  # (invented, judgment)
-# Glycogen 17.6 MJ/kg (Hall 2008, published) stored with about 3 g water per g (from
-# memory): 4206 kcal/kg / 4 = 1052 kcal per kg of glycogen-with-water.
-GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / 4.184 / 4
+
+
+@dataclass(frozen=True)
+class SimulationSpec:
+    """What to fix instead of drawing it; every None is drawn from the generator.
+
+    Attributes
+    ----------
+    client_id : str
+    month_end : datetime.date
+        Last day of the report month; the log ends there.
+    sex, under_report, missing_weight, missing_intake, deficit_kcal, beta_at, two_deficits
+        Fix a property instead of drawing it (under-reporting and missing shares as
+        fractions, the deficit in kcal/day, beta_at of the Hall 2011 AT term).
+    glycogen : bool, default True
+        Include the fast glycogen-and-water shift at intake changes.
+    future_days : int, default 0
+        Also simulate this many days after the report month at the last phase's
+        plan (``future_weight_kg``), to check projections.
+    maintenance_first : bool, default True
+        Start with a maintenance phase; False starts the log with the first
+        deficit (no measured baseline), after ``lead_in_days`` days at maintenance
+        intake that belong to no phase.  The random draws are the same either way.
+    lead_in_days : int, default 0
+        Logged days before the first deficit when ``maintenance_first`` is False. [day]
+    """
+
+    client_id: str = "s001"
+    month_end: dt.date = dt.date(2026, 11, 30)
+    sex: Sex | None = None
+    under_report: float | None = None
+    missing_weight: float | None = None
+    missing_intake: float | None = None
+    deficit_kcal: float | None = None
+    beta_at: float | None = None
+    two_deficits: bool | None = None
+    glycogen: bool = True
+    future_days: int = 0
+    maintenance_first: bool = True
+    lead_in_days: int = 0
 
 
 @dataclass(frozen=True)
@@ -62,7 +105,7 @@ class PhaseTruth:
 @dataclass(frozen=True)
 class SimulatedClient:
     record: ClientRecord
-    month: str
+    month: ReportMonth
     weight_true_kg: FloatArray  # body mass without water or noise, on the log's grid
     fat_true_kg: FloatArray
     lean_true_kg: FloatArray
@@ -95,21 +138,7 @@ def _jp3_sum_mm(sex: str, age: float, bodyfat_pct: float) -> float:
 
 
 def simulate_client(
-    rng: np.random.Generator,
-    client_id: str = "s001",
-    month_end: dt.date = dt.date(2026, 11, 30),
-    *,
-    sex: str | None = None,
-    under_report: float | None = None,
-    missing_weight: float | None = None,
-    missing_intake: float | None = None,
-    deficit_kcal: float | None = None,
-    beta_at: float | None = None,
-    two_deficits: bool | None = None,
-    glycogen: bool = True,
-    future_days: int = 0,
-    maintenance_first: bool = True,
-    lead_in_days: int = 0,
+    rng: np.random.Generator, spec: SimulationSpec = SimulationSpec()
 ) -> SimulatedClient:
     """One simulated client with known truth (see the module docstring).
 
@@ -117,29 +146,16 @@ def simulate_client(
     ----------
     rng : numpy.random.Generator
         Source of every random choice.
-    client_id : str
-    month_end : datetime.date
-        Last day of the report month; the log ends there.
-    sex, under_report, missing_weight, missing_intake, deficit_kcal, beta_at, two_deficits
-        Fix a property instead of drawing it.
-    glycogen : bool, default True
-        Include the fast glycogen-and-water shift at intake changes.
-    future_days : int, default 0
-        Also simulate this many days after the report month at the last phase's
-        plan (``future_weight_kg``), to check projections.
-    maintenance_first : bool, default True
-        Start with a maintenance phase; False starts the log with the first
-        deficit (no measured baseline), after ``lead_in_days`` days at maintenance
-        intake that belong to no phase.  The random draws are the same either way.
-    lead_in_days : int, default 0
-        Logged days before the first deficit when ``maintenance_first`` is False. [day]
+    spec : SimulationSpec
+        The client id, the report month's end and whatever is fixed rather than drawn.
 
     Returns
     -------
     SimulatedClient
         The record as the readers would produce it, plus the truth.
     """
-    sex = sex or ("female" if rng.random() < 0.5 else "male")
+    client_id, month_end = spec.client_id, spec.month_end
+    sex: Sex = spec.sex or ("female" if rng.random() < 0.5 else "male")
     age = int(rng.integers(22, 58))
     height = float(rng.normal(178, 7) if sex == "male" else rng.normal(165, 6))
     bmi = float(rng.uniform(24, 36))
@@ -150,19 +166,19 @@ def simulate_client(
     fat0 = weight0 * bf0 / 100
     rmr = 10 * weight0 + 6.25 * height - 5 * age + (5 if sex == "male" else -161)
     pal = float(rng.uniform(1.4, 1.8))
-    b_at = float(rng.uniform(0.0, 0.3)) if beta_at is None else beta_at
+    b_at = float(rng.uniform(0.0, 0.3)) if spec.beta_at is None else spec.beta_at
     params = replace(HALL_2011, beta_at=b_at)
     base: HallBaseline = hall_baseline(weight0, fat0, rmr, pal, params)
     ei0 = float(base.intake0_kcal)
 
     # Phases: maintenance 3-6 weeks, deficit 8-16 weeks, optional break + second deficit.
-    two = bool(rng.random() < 0.4) if two_deficits is None else two_deficits
-    d_kcal = float(rng.uniform(350, 850)) if deficit_kcal is None else deficit_kcal
+    two = bool(rng.random() < 0.4) if spec.two_deficits is None else spec.two_deficits
+    d_kcal = float(rng.uniform(350, 850)) if spec.deficit_kcal is None else spec.deficit_kcal
     base_days = int(rng.integers(21, 43))
-    plan: list[tuple[str, str, int, float]] = (
+    plan: list[tuple[str, PhaseKind | None, int, float]] = (
         [("Baseline", "maintenance", base_days, ei0)]
-        if maintenance_first
-        else ([("Lead-in", "", lead_in_days, ei0)] if lead_in_days > 0 else [])
+        if spec.maintenance_first
+        else ([("Lead-in", None, spec.lead_in_days, ei0)] if spec.lead_in_days > 0 else [])
     )
     plan.append(("Cut 1", "deficit", int(rng.integers(8, 17)) * 7, ei0 - d_kcal))
     if two:
@@ -186,8 +202,8 @@ def simulate_client(
             length = n_days - idx
         stop = min(idx + length, n_days)
         target[idx:stop] = kcal
-        if kind:  # the lead-in belongs to no phase
-            phases.append(Phase(name, p_start, end_field, kind, round(kcal, -1)))  # type: ignore[arg-type]
+        if kind is not None:  # the lead-in belongs to no phase
+            phases.append(Phase(name, p_start, end_field, kind, round(kcal, -1)))
         idx = stop
         if idx >= n_days:
             break
@@ -210,6 +226,7 @@ def simulate_client(
     # science notes §4.4 describe, 1-2 kg early in a diet).
     glyco_target = np.where(target < ei0, -GLYCOGEN_KG_PER_KCAL * (ei0 - target), 0.0)
     glyco = np.empty(n_days + 1)
+    glycogen = spec.glycogen
     g = 0.0 if glycogen else math.nan
     for t in range(n_days):
         glyco[t] = g if glycogen else 0.0
@@ -237,18 +254,18 @@ def simulate_client(
     noise = water + rhythm + rng.normal(0, white_sd, n_days)
     spikes = np.where(rng.random(n_days) < 0.02, rng.uniform(0.8, 2.0, n_days), 0.0)
     weigh = np.round(bw + noise + spikes, 1)
-    p_mw = float(rng.uniform(0.05, 0.35)) if missing_weight is None else missing_weight
+    p_mw = float(rng.uniform(0.05, 0.35)) if spec.missing_weight is None else spec.missing_weight
     weigh[rng.random(n_days) < p_mw] = np.nan
     weigh[0] = np.round(bw[0] + noise[0], 1)  # the log starts with a weigh-in
 
     ur = (
         (0.0 if rng.random() < 0.5 else float(rng.uniform(0.05, 0.3)))
-        if under_report is None
-        else under_report
+        if spec.under_report is None
+        else spec.under_report
     )
     logged = intake_true * (1 - ur) * np.exp(rng.normal(0, 0.08, n_days))
     logged = np.round(logged, -1)
-    p_mi = float(rng.uniform(0.05, 0.35)) if missing_intake is None else missing_intake
+    p_mi = float(rng.uniform(0.05, 0.35)) if spec.missing_intake is None else spec.missing_intake
     logged[rng.random(n_days) < p_mi] = np.nan
 
     in_deficit = (target < ei0 - 200).astype(float)
@@ -300,7 +317,7 @@ def simulate_client(
     client = Client(
         client_id=client_id,
         name=f"Simulated client {client_id}",
-        sex=sex,  # type: ignore[arg-type]
+        sex=sex,
         birth_date=birth,
         height_cm=round(height, 1),
         goal_weight_kg=round(float(bw[0] * 0.88), 1),
@@ -340,6 +357,7 @@ def simulate_client(
     # The weeks after the report month at the last phase's plan (for projection checks);
     # drawn last so that everything above is the same whatever ``future_days`` is.
     future = np.empty(0)
+    future_days = spec.future_days
     if future_days > 0:
         wd = (dates[-1].astype("datetime64[D]").view("int64") + 4 + np.arange(future_days)) % 7
         fut_intake = (
@@ -349,7 +367,7 @@ def simulate_client(
         future = fut.weight_kg + glyco[n_days]
     return SimulatedClient(
         record=record,
-        month=f"{month_end.year:04d}-{month_end.month:02d}",
+        month=ReportMonth.containing(month_end),
         weight_true_kg=bw,
         fat_true_kg=fat,
         lean_true_kg=path.lean_kg[:-1],
