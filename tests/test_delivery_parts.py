@@ -213,7 +213,7 @@ def test_messages_greet_by_first_name_where_the_roster_allows(
         config=Config(),
         client_name=roster_name,
         client_id="c001",
-        month="2026-11",
+        month=ReportMonth("2026-11"),
         filename="report-2026-11-c001.pdf",
         encrypted=False,
     )
