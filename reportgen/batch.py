@@ -392,11 +392,6 @@ def _pool_context() -> multiprocessing.context.BaseContext:
     return multiprocessing.get_context("spawn")  # pragma: no cover - not Linux
 
 
-def _serial(tasks: Iterable[ClientTask]) -> Iterator[ClientOutcome]:
-    for task in tasks:
-        yield process_client(task)
-
-
 def _pool(tasks: list[ClientTask], workers: int) -> Iterator[ClientOutcome]:
     """Run tasks in a fork-based process pool, yielding outcomes as they arrive.
 
@@ -669,8 +664,12 @@ def run_batch(
 
         if dask is not None:
             stream = _dask(tasks, dask)
-        elif workers == 1 or len(tasks) <= 1:
-            stream = _serial(tasks)
+        elif not tasks:
+            stream = iter(())
+        elif workers == 1 or len(tasks) == 1:
+            # Still a worker process, one client after the other: a file that crashes the
+            # reader (a native abort, the out-of-memory killer) costs only its client.
+            stream = _pool(tasks, 1)
         else:
             warm_up_matplotlib()
             stream = _pool(tasks, min(workers, len(tasks)))

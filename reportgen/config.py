@@ -18,10 +18,15 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Literal, get_args, get_origin, get_type_hints
 
+from reportgen.choices import BODYFAT_EQUATIONS as BODYFAT_EQUATIONS
+from reportgen.choices import BOOK_DATE_ORDERS as BOOK_DATE_ORDERS
+from reportgen.choices import DENSITY_CONVERSIONS as DENSITY_CONVERSIONS
+from reportgen.choices import ENERGY_UNITS as ENERGY_UNITS
+from reportgen.choices import MAIL_SECURITY as MAIL_SECURITY
+
 PAPER_SIZES = ("A4", "letter")
 PROJECTION_WEEKS_MAX = 26  # the analysis projects this far; a report shows its configured part
 WEIGHT_UNITS = ("kg", "lb")
-ENERGY_UNITS = ("kcal", "kJ")
 SECTIONS = (
     "overview",
     "charts",
@@ -30,15 +35,6 @@ SECTIONS = (
     "methods",
     "cautions",
 )
-BODYFAT_EQUATIONS = (
-    "auto",
-    "jackson-pollock-7",
-    "jackson-pollock-3",
-    "durnin-womersley-4",
-)
-DENSITY_CONVERSIONS = ("siri", "brozek")
-MAIL_SECURITY = ("starttls", "tls", "none")
-DATE_ORDERS = ("auto", "day-first", "month-first")
 
 
 class ConfigError(ValueError):
@@ -147,7 +143,7 @@ _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
     ("analysis", "bodyfat_equation"): BODYFAT_EQUATIONS,
     ("analysis", "density_conversion"): DENSITY_CONVERSIONS,
     ("mail", "security"): MAIL_SECURITY,
-    ("book", "date_order"): DATE_ORDERS,
+    ("book", "date_order"): BOOK_DATE_ORDERS,
 }
 _COLOUR = re.compile(r"^#[0-9A-Fa-f]{6}$")
 

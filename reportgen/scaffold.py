@@ -31,15 +31,16 @@ from openpyxl.utils import get_column_letter
 from openpyxl.worksheet.datavalidation import DataValidation
 from openpyxl.worksheet.worksheet import Worksheet
 
+from reportgen.choices import ENERGY_UNITS as ENERGY_UNITS
+from reportgen.choices import UNIT_SYSTEMS as UNIT_SYSTEMS
+from reportgen.choices import EnergyUnit, UnitSystem
 from reportgen.io import limits
 from reportgen.io.book import TABLE_TYPES
 from reportgen.io.model import PHASE_KINDS, SKINFOLD_SITES
 from reportgen.unit_constants import CM_PER_INCH, KCAL_PER_KJ, KG_PER_LB, KJ_PER_KCAL
 
-Units = Literal["metric", "imperial"]
-Energy = Literal["kcal", "kJ"]
-UNIT_SYSTEMS: tuple[Units, ...] = ("metric", "imperial")
-ENERGY_UNITS: tuple[Energy, ...] = ("kcal", "kJ")
+Units = UnitSystem
+Energy = EnergyUnit
 
 _LAST_ROW = 1048576  # Excel's last row: validation covers every row a coach can reach
 _AUTHOR = "reportgen"

@@ -96,7 +96,8 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     "--workers",
     type=click.IntRange(min=1),
     default=None,
-    help="Worker processes (default: one per core; 1 runs everything in this process).",
+    help="Worker processes (default: one per core; 1 makes the clients one after another in "
+    "a single worker).",
 )
 @click.option(
     "--clients",

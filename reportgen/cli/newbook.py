@@ -7,6 +7,8 @@ from typing import TYPE_CHECKING, cast
 
 import click
 
+from reportgen.choices import ENERGY_UNITS, UNIT_SYSTEMS
+
 if TYPE_CHECKING:
     from reportgen.scaffold import Energy, Units
 
@@ -29,14 +31,14 @@ if TYPE_CHECKING:
 )
 @click.option(
     "--units",
-    type=click.Choice(["metric", "imperial"]),
+    type=click.Choice(UNIT_SYSTEMS),
     default=None,
     help="Weights in kg and heights in cm (metric, the default for a new book) or lb and "
     "inches (imperial). With --add-client the book's roster decides unless given.",
 )
 @click.option(
     "--energy",
-    type=click.Choice(["kcal", "kJ"]),
+    type=click.Choice(ENERGY_UNITS),
     default="kcal",
     show_default=True,
     help="Unit of the daily intake column.",

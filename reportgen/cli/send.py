@@ -6,6 +6,8 @@ from pathlib import Path
 
 import click
 
+from reportgen.choices import MAIL_SECURITY
+
 
 def _ask_password() -> str:
     """Ask for the SMTP password without echo; empty when there is no one to ask."""
@@ -33,7 +35,7 @@ def _ask_password() -> str:
 )
 @click.option(
     "--security",
-    type=click.Choice(["starttls", "tls", "none"]),
+    type=click.Choice(MAIL_SECURITY),
     help="starttls (port 587), tls (implicit TLS, port 465) or none. Default: [mail] security.",
 )
 @click.option(

@@ -9,6 +9,7 @@ import ssl
 from dataclasses import dataclass
 from pathlib import Path
 
+from reportgen.choices import MAIL_SECURITY, MailSecurity
 from reportgen.config import Config, ConfigError, config_from_dict, load_config
 from reportgen.delivery.addresses import check_address
 from reportgen.delivery.ledger import DeliveryKey, KeyHistory
@@ -79,6 +80,15 @@ class Planned:
 PATH_SETTINGS = (("report", "templates_dir"), ("practice", "logo"), ("mail", "secret_file"))
 
 
+def mail_security(value: str) -> MailSecurity:
+    """``value`` as one of :data:`~reportgen.choices.MAIL_SECURITY`, or a DeliveryError."""
+    for mode in MAIL_SECURITY:
+        if value == mode:
+            return mode
+    choices = ", ".join(MAIL_SECURITY[:-1]) + " or " + MAIL_SECURITY[-1]
+    raise DeliveryError(f"--security {value!r}: use {choices}")
+
+
 def resolve_config(manifest: Manifest, options: SendOptions) -> Config:
     """--config, else the batch's configuration file, else the settings stored in the manifest.
 
@@ -121,13 +131,11 @@ def resolve_config(manifest: Manifest, options: SendOptions) -> Config:
 
 def server_settings(config: Config, options: SendOptions) -> ServerSettings:
     m = config.mail
-    security = options.security or m.security
-    if security not in ("starttls", "tls", "none"):
-        raise DeliveryError(f"--security {security!r}: use starttls, tls or none")
+    security = mail_security(options.security or m.security)
     server = ServerSettings(
         host=options.host or m.host,
         port=options.port or m.port,
-        security=security,  # type: ignore[arg-type]
+        security=security,
         user=m.user if options.user is None else options.user,
         timeout_s=m.timeout_s,
     )

@@ -16,9 +16,10 @@ from dataclasses import dataclass
 from email.message import EmailMessage
 from typing import Literal
 
+from reportgen.choices import MailSecurity
 from reportgen.delivery.messages import WIRE_POLICY
 
-Security = Literal["starttls", "tls", "none"]
+Security = MailSecurity
 Outcome = Literal["sent", "refused", "failed-temporary"]
 
 

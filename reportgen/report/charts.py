@@ -242,7 +242,9 @@ def rolling_mean(values: np.ndarray, window: int = 7, min_count: int = 3) -> np.
     return out
 
 
-def _figure(ctx: ChartContext, height_mm: float, margins: tuple[float, float, float, float]):
+def _figure(
+    ctx: ChartContext, height_mm: float, margins: tuple[float, float, float, float]
+) -> Figure:
     """A figure of the box size with fixed margins (left, right, bottom, top) in mm."""
     _setup()
     w, h = ctx.width_mm * MM, height_mm * MM
@@ -381,7 +383,7 @@ def _y_labels(ax: Axes, ticks: Sequence[float], labels: Sequence[str]) -> None:
     ax.set_yticks([])
     ax.hlines(ticks, 0, 1, transform=ax.get_yaxis_transform(), colors=T.RULE, lw=0.4, zorder=0.6)
     fig = ax.get_figure()
-    assert fig is not None
+    assert isinstance(fig, Figure)
     shift = ax.get_yaxis_transform() + ScaledTranslation(-3 / PT, 0, fig.dpi_scale_trans)
     for t, label in zip(ticks, labels, strict=True):
         ax.text(
@@ -400,10 +402,14 @@ def _y_labels(ax: Axes, ticks: Sequence[float], labels: Sequence[str]) -> None:
     ax.yaxis.set_label_coords(-(widest + 5) / axes_pt, 0.5)
 
 
-def _shade_phases(ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *, names: bool):
+def _shade_phases(
+    ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *, names: bool
+) -> None:
     x0, x1 = _day(ctx.start), _day(ctx.end)
     fig = ax.get_figure()
-    axes_pt = ax.get_position().width * (fig.get_figwidth() if fig else 6.0) * PT
+    axes_pt = (
+        ax.get_position().width * (fig.get_figwidth() if isinstance(fig, Figure) else 6.0) * PT
+    )
     for i, p in enumerate(phases):
         if p.kind == "month":  # no phases recorded: the report month is no phase to mark
             continue
@@ -602,7 +608,7 @@ def _energy_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 66) 
             continue
         ax.plot(
             [s0, s1],
-            [u.energy(ph.target_kcal)] * 2,
+            [float(u.energy(ph.target_kcal))] * 2,
             color=T.DEEP,
             lw=1.0,
             ls=(0, (1, 1.5)),
@@ -879,7 +885,8 @@ def _projection_figure(
 # matplotlib legend box is about a sixth of a chart's drawing time.
 LegendEntry = tuple[str, str, str]  # (symbol, colour hex, label)
 LINE, DOT, BLOCK, CROSS, DASHED, DOTTED, SQUARE, DIAMOND = "━", "●", "█", "✕", "╍", "┈", "■", "◆"
-OPEN_DIAMOND, BAR, TRIANGLE = "◇", "┃", "▲"
+TRIANGLE = "▲"
+OPEN_DIAMOND, BAR = "◇", "┃"
 
 
 def _tint(colour: str, alpha: float) -> str:

@@ -30,7 +30,7 @@ from .layout import card_grid, chart_block, data_table, practice_header, section
 from .outlook import outlook
 from .para import Paragraph
 from .pdfbuild import ChartSlot, Document, build, mark_heading
-from .theme import page_size, theme_for
+from .theme import Theme, page_size, theme_for
 from .units import Units
 from .viewmodel import ClientView, client_view
 from .wording import Wording, blocks, esc
@@ -244,7 +244,7 @@ def render_client_report(
     return data
 
 
-def _phase_table(vm: ClientView, words: Wording, theme, width: float) -> Flowable:
+def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> Flowable:
     labels = words.labels
     cols = labels["phase_cols"]
     units = [x.replace("{e}", vm.energy_unit + "/day") for x in labels["phase_units"]]

@@ -5,7 +5,9 @@ from __future__ import annotations
 from collections.abc import Sequence
 from functools import cache
 from pathlib import Path
+from typing import Any
 
+from reportlab.graphics.shapes import Drawing
 from reportlab.lib import colors
 from reportlab.lib.units import mm
 from reportlab.platypus import (
@@ -35,7 +37,7 @@ class LogoError(ValueError):
 
 
 @cache
-def _svg_drawing(path: str, mtime: float) -> Flowable:
+def _svg_drawing(path: str, mtime: float) -> Drawing:
     try:
         from svglib.svglib import svg2rlg
     except ImportError as exc:  # pragma: no cover - svglib is a declared dependency
@@ -92,7 +94,7 @@ class _SvgLogo(Flowable):
     for the duration of the draw so no standard font is referenced.
     """
 
-    def __init__(self, drawing: Flowable) -> None:
+    def __init__(self, drawing: Drawing) -> None:
         super().__init__()
         self.drawing = drawing
         self.hAlign = "RIGHT"
@@ -197,7 +199,7 @@ def cards(
     # gaps are empty spacer columns so each card gets its own background
     data = [[c for pair in zip(r, [""] * columns, strict=True) for c in pair][:-1] for r in cells]
     widths = [w for _ in range(columns) for w in (col_w, gap)][:-1]
-    style = [
+    style: list[tuple[Any, ...]] = [
         ("FONTNAME", (0, 0), (-1, -1), T.FONT),
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("LEFTPADDING", (0, 0), (-1, -1), 2.8 * mm),
@@ -267,12 +269,12 @@ def data_table(
     for row in rows:
         cells = []
         for i, value in enumerate(row):
-            style = (
+            cell_style = (
                 "cell_right" if is_right(i) else ("cell_bold" if bold_first and i == 0 else "cell")
             )
-            cells.append(Paragraph(value, theme[style]))
+            cells.append(Paragraph(value, theme[cell_style]))
         body.append(cells)
-    style = [
+    style: list[tuple[Any, ...]] = [
         ("FONTNAME", (0, 0), (-1, -1), T.FONT),
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("LEFTPADDING", (0, 0), (-1, -1), 2.0),

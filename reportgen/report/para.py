@@ -17,6 +17,7 @@ from __future__ import annotations
 from typing import Any
 
 from reportlab.lib.styles import ParagraphStyle
+from reportlab.platypus import Flowable
 from reportlab.platypus import Paragraph as _Paragraph
 from reportlab.platypus.paragraph import cleanBlockQuotedText
 from reportlab.platypus.paraparser import ParaParser
@@ -65,6 +66,6 @@ class Paragraph(_Paragraph):
         self._wrapped_at = availWidth if fitted else None
         return size
 
-    def split(self, availWidth: float, availHeight: float) -> list[_Paragraph]:
+    def split(self, availWidth: float, availHeight: float) -> list[Flowable]:
         self._wrapped_at = None  # splitting may drop or replace the lines
         return super().split(availWidth, availHeight)

@@ -61,6 +61,7 @@ class _Canvas(Canvas):
     which defines the "total pages" form just before saving (for "page x of y")."""
 
     total_form = "PageTotal"
+    _code: list[str]  # reportlab's page content so far (set by Canvas, not in its stubs)
 
     def __init__(self, *args: object, **kwargs: object) -> None:
         kwargs.setdefault("initialFontName", FONT)

@@ -5,6 +5,7 @@ from __future__ import annotations
 import datetime as dt
 import time
 from dataclasses import dataclass
+from typing import Any
 
 from reportlab.lib import colors
 from reportlab.lib.units import mm
@@ -33,8 +34,8 @@ class SummaryView:
     rows: list[tuple[str, str, str, str]]  # (row key, value, interval, method)
     ident: list[tuple[str, str]]
 
-    def __getattr__(self, name: str) -> object:
-        return getattr(self.base, name)
+    def __getattr__(self, name: str) -> Any:
+        return getattr(self.base, name)  # the ClientView's fields, as they are typed there
 
 
 def _est(u: Units, e: Estimate, kind: str) -> tuple[str, str]:
@@ -232,7 +233,7 @@ def _signature(words: Wording, theme: Theme, width: float) -> Table:
     for label in sign:
         rows.append(["", Paragraph(esc(label), theme["cell_head"])])
     heights = [5 * mm] + [6.5 * mm] * len(sign)
-    style = [
+    style: list[tuple[Any, ...]] = [
         ("FONTNAME", (0, 0), (-1, -1), T.FONT),
         ("SPAN", (0, 0), (0, -1)),
         ("BOX", (0, 0), (0, -1), 0.6, colors.HexColor(T.MUTED)),

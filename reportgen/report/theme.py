@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import cache
+from typing import Any
 
 from reportlab.lib import colors
 from reportlab.lib.enums import TA_LEFT, TA_RIGHT
@@ -74,7 +75,9 @@ def missing_glyphs(text: str) -> str:
     report says so instead of failing silently.
     """
     register_fonts()
-    face = pdfmetrics.getFont(FONT).face
+    font = pdfmetrics.getFont(FONT)
+    assert isinstance(font, TTFont)  # registered by register_fonts()
+    face = font.face
     seen: list[str] = []
     for ch in text:
         if ord(ch) >= 32 and ord(ch) not in face.charToGlyph and ch not in seen:
@@ -115,7 +118,7 @@ def _styles(accent: colors.Color) -> dict[str, ParagraphStyle]:
         allowOrphans=0,
     )
 
-    def derive(name: str, **kw: object) -> ParagraphStyle:
+    def derive(name: str, **kw: Any) -> ParagraphStyle:
         return ParagraphStyle(name, parent=base, **kw)
 
     return {

@@ -8,6 +8,7 @@ thresholds named below, so the wording stays free of numbers it would have to co
 from __future__ import annotations
 
 import datetime as dt
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -167,7 +168,7 @@ def _signal_view(u: Units, s: Any) -> dict[str, str]:
     }
 
 
-def _beside(u: Units, value: float, limit: float, fmt: Any) -> str:
+def _beside(u: Units, value: float, limit: float, fmt: Callable[..., str]) -> str:
     """``value`` formatted as the report prints it, never printed equal to ``limit``.
 
     When rounding would print the value as the limit itself (1,196 and 1,200 kcal/day both
@@ -295,13 +296,13 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     last_weigh_in = _last_weigh_in(a)
     story: dict[str, Any] = {
         "change_dir": _direction(a.month_change_kg),
-        "change_abs": u.w(abs(a.month_change_kg.value)) if a.month_change_kg.known else "",
+        "change_abs": "" if a.month_change_kg.value is None else u.w(abs(a.month_change_kg.value)),
         "rate_band": "unknown" if no_month_data else _rate_band(a.weekly_rate_pct.value, rapid),
         "no_month_data": no_month_data,
         "last_weigh_in": u.d(last_weigh_in) if last_weigh_in else "",
-        "rate_pct_abs": u.pct(abs(a.weekly_rate_pct.value), dp=2)
-        if a.weekly_rate_pct.known
-        else "",
+        "rate_pct_abs": ""
+        if a.weekly_rate_pct.value is None
+        else u.pct(abs(a.weekly_rate_pct.value), dp=2),
         "rate_pct": u.pct(a.weekly_rate_pct.value, dp=2, signed=True)
         if a.weekly_rate_pct.known
         else "",
@@ -336,8 +337,8 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         story["adapt_state"] = _adapt_state(ph.adaptation_kcal, ph.adaptation_pct, implausible)
         if ph.adaptation_kcal.known and ph.adaptation_kcal.value is not None:
             story["adapt_abs"] = u.e(abs(ph.adaptation_kcal.value))
-        pct = ph.adaptation_pct.value
-        story["adapt_large"] = bool(pct is not None and abs(pct) >= ADAPT_LARGE_PCT)
+        adapt_pct = ph.adaptation_pct.value
+        story["adapt_large"] = bool(adapt_pct is not None and abs(adapt_pct) >= ADAPT_LARGE_PCT)
     if look is not None and look.days:
         story["projection_weeks"] = look.weeks_text
         story["projection_date"] = u.d(look.end)

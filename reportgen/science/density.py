@@ -25,6 +25,7 @@ References
 
 from __future__ import annotations
 
+from reportgen.choices import DENSITY_CONVERSIONS
 from reportgen.science._checks import finite
 
 # Siri 1961: fat 0.900 g/ml, fat-free mass 1.100 g/ml -> %BF = 495/Db - 450 (published [3]).
@@ -34,7 +35,7 @@ SIRI_B = 450.0
 BROZEK_A = 457.0
 BROZEK_B = 414.2
 
-CONVERSIONS = ("siri", "brozek")  # matches reportgen.config.DENSITY_CONVERSIONS
+CONVERSIONS = DENSITY_CONVERSIONS  # the one list (reportgen.choices)
 CONVERSION_NAMES = {
     "siri": "Siri 1961",
     "brozek": "Brozek et al. 1963",

@@ -47,6 +47,7 @@ import math
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
+from reportgen.choices import BODYFAT_EQUATIONS
 from reportgen.io.model import Sex
 from reportgen.results import MethodUsed
 from reportgen.science._checks import finite
@@ -67,9 +68,9 @@ SITES_3_MEN = ("chest", "abdominal", "thigh")  # Jackson & Pollock 1978
 SITES_3_WOMEN = ("triceps", "suprailiac", "thigh")  # Jackson, Pollock & Ward 1980
 SITES_4_DW = ("biceps", "triceps", "subscapular", "suprailiac")  # Durnin & Womersley 1974
 
-# Names a user may choose (configuration [analysis] bodyfat_equation); must equal
-# reportgen.config.BODYFAT_EQUATIONS (a test checks it).  The sex picks JP or JPW.
-EQUATIONS = ("auto", "jackson-pollock-7", "jackson-pollock-3", "durnin-womersley-4")
+# Names a user may choose (configuration [analysis] bodyfat_equation), defined once in
+# reportgen.choices.  The sex picks JP or JPW.
+EQUATIONS = BODYFAT_EQUATIONS
 
 # ---------------------------------------------------------------------------
 # Quadratic JP/JPW equations: Db = a - b*S + c*S^2 - d*age, SEE [g/ml].
