@@ -152,7 +152,6 @@ def test_send_output_shows_control_characters_escaped(tmp_path: Path) -> None:
 def test_no_control_character_reaches_the_subject_from_an_override(tmp_path: Path) -> None:
     from reportgen.config import Config, ReportSettings
     from reportgen.delivery.messages import mail_environment, render_content
-    from reportgen.month import ReportMonth
 
     mail = tmp_path / "tpl" / "mail"
     mail.mkdir(parents=True)
