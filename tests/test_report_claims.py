@@ -35,7 +35,7 @@ from reportgen.report.viewmodel import client_view
 from reportgen.results import ClientAnalysis
 from reportgen.science.flags import FlagInputs, rapid_loss, safety_flags
 
-CLIENTS = ("c001", "c002", "c003", "c004", "c005", "c006", "c008", "c009", "c010")
+CLIENTS = ("c001", "c002", "c003", "c004", "c005", "c006", "c008", "c009", "c010", "c011", "c012")
 MINUS = "\u2212"
 
 

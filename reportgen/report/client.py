@@ -37,6 +37,7 @@ from .wording import Wording, blocks, esc
 
 # Chart box heights in mm (the width is the text width).
 CHART_HEIGHTS_MM = {"weight": 84, "energy": 76, "signals": 78, "bodycomp": 46, "projection": 56}
+CAUTIONS_MIN_MM = 110  # about the height of the cautions without the practice contact
 HISTORY_DAYS = 183  # the time axis shows at most the last six months
 MIN_AXIS_DAYS = 28  # and at least four weeks, so a few early days do not fill the width
 
@@ -210,8 +211,9 @@ def render_client_report(
                 )
             )
 
-    # phases, data quality and the cautions share the last page when they fit
-    story.append(PageBreak())
+    # phases, data quality and the cautions share the last page; they follow the charts on
+    # the same page when a client has few charts (no half-empty pages)
+    story.append(section_break(70 * mm))
     if "phases" in sections:
         story += blocks(words.text("phases", vm), theme, heading_hook=_heading_hook)
         story.append(_phase_table(vm, words, theme, width))
@@ -220,7 +222,8 @@ def render_client_report(
         story.append(section_break(35 * mm))
         story += blocks(words.text("quality", vm), theme, heading_hook=_heading_hook)
         story.append(Spacer(1, 3 * mm))
-    story.append(section_break(60 * mm))
+    # the cautions start where most of them fit, so their heading is not left at a page foot
+    story.append(section_break(CAUTIONS_MIN_MM * mm))
     story += blocks(words.text("cautions", vm), theme, heading_hook=_heading_hook)
 
     labels = words.labels
