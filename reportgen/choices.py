@@ -20,6 +20,9 @@ BODYFAT_EQUATIONS: Final = (
 #: Body density to percent fat (science/density.py).
 DENSITY_CONVERSIONS: Final = ("siri", "brozek")
 
+#: How ambiguous daily-log dates are read: decided from the data, day-first or month-first.
+DATE_ORDERS: Final = ("auto", "day-first", "month-first")
+
 MailSecurity = Literal["starttls", "tls", "none"]
 #: SMTP connection security: STARTTLS (port 587), implicit TLS (port 465) or none.
 MAIL_SECURITY: Final[tuple[MailSecurity, ...]] = ("starttls", "tls", "none")
@@ -30,7 +33,3 @@ UNIT_SYSTEMS: Final[tuple[UnitSystem, ...]] = ("metric", "imperial")
 EnergyUnit = Literal["kcal", "kJ"]
 #: Energy units of intake columns and of the reports.
 ENERGY_UNITS: Final[tuple[EnergyUnit, ...]] = ("kcal", "kJ")
-
-#: How the dates of a client book are read: decided per file from the values ("auto"), or
-#: fixed by the practice for books whose dates are all ambiguous (e.g. 03/04/2026).
-BOOK_DATE_ORDERS: Final = ("auto", "day-first", "month-first")

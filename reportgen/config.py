@@ -19,7 +19,7 @@ from pathlib import Path
 from typing import Any, Literal, get_args, get_origin, get_type_hints
 
 from reportgen.choices import BODYFAT_EQUATIONS as BODYFAT_EQUATIONS
-from reportgen.choices import BOOK_DATE_ORDERS as BOOK_DATE_ORDERS
+from reportgen.choices import DATE_ORDERS as DATE_ORDERS
 from reportgen.choices import DENSITY_CONVERSIONS as DENSITY_CONVERSIONS
 from reportgen.choices import ENERGY_UNITS as ENERGY_UNITS
 from reportgen.choices import MAIL_SECURITY as MAIL_SECURITY
@@ -143,7 +143,7 @@ _CHOICES: dict[tuple[str, str], tuple[str, ...]] = {
     ("analysis", "bodyfat_equation"): BODYFAT_EQUATIONS,
     ("analysis", "density_conversion"): DENSITY_CONVERSIONS,
     ("mail", "security"): MAIL_SECURITY,
-    ("book", "date_order"): BOOK_DATE_ORDERS,
+    ("book", "date_order"): DATE_ORDERS,
 }
 _COLOUR = re.compile(r"^#[0-9A-Fa-f]{6}$")
 

@@ -19,7 +19,7 @@ from reportgen.report import (
 )
 
 CONFIG = Config(practice=PracticeSettings(name="Kestrel Row Nutrition"))
-CLIENTS = ("c001", "c002", "c003", "c004", "c005", "c006", "c008", "c009", "c010")
+CLIENTS = ("c001", "c002", "c003", "c004", "c005", "c006", "c008", "c009", "c010", "c011", "c012")
 
 
 @pytest.mark.parametrize("client_id", ["c001", "c008"])

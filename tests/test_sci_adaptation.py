@@ -13,6 +13,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
+from reportgen.results import Estimate
 from reportgen.science.activity import (
     kcal_per_1000_steps,
     step_energy_change_kcal,
@@ -20,6 +21,7 @@ from reportgen.science.activity import (
 )
 from reportgen.science.adaptation import (
     NOT_DISTINGUISHABLE,
+    assess_phase_adaptation,
     at_share_of_step,
     body_size_change_kcal,
     combine_adaptation,
@@ -57,9 +59,10 @@ def test_literature_expectation_for_a_moderate_cut() -> None:
     # (published, abstract); the expectation's 80 % range must include that.
     m2, s2 = literature_adaptation_kcal(-1500.0, 0, 21)
     assert m2 - Z80 * s2 < -108 and m2 + Z80 * s2 > -72
-    # spread: hypot(0.6, 0.5) x |mean| with a 40 kcal/day floor (Leibel 1995 CV, judgment)
-    assert sd == pytest.approx(math.hypot(math.hypot(0.6, 0.5) * mean, 40.0), rel=1e-12)
-    assert literature_adaptation_kcal(0.0, 0, 28) == (0.0, 40.0)
+    # spread: hypot(0.6, 0.5) x |mean| (Leibel 1995 CV, Müller 2015) with 90 kcal/day of
+    # absolute spread scaled from Leibel 1995's SDs (judgment)
+    assert sd == pytest.approx(math.hypot(math.hypot(0.6, 0.5) * mean, 90.0), rel=1e-12)
+    assert literature_adaptation_kcal(0.0, 0, 28) == (0.0, 90.0)
 
 
 def test_combination_is_the_normal_normal_posterior() -> None:
@@ -185,11 +188,11 @@ def test_energy_density_check_value_and_spread() -> None:
     assert rho == pytest.approx(6518.0, abs=1.0)
     # the lean share halved (resistance training, high protein) moves rho by
     # (rhoF - rhoL) x p / 2 = 7624 x 0.3834 / 2 (computed here), which the log-normal
-    # spread puts at its 10th percentile (factor of two at Z80 log-SDs, judgment)
+    # spread puts at its 5th percentile (factor of two at 1.645 log-SDs, judgment)
     p = 3.834 / 10.0
     half_rho = 9440 * (1 - p / 2) + 1816 * p / 2
     assert abs(half_rho - rho) == pytest.approx(7624 * p / 2, rel=1e-3)
-    assert sd == pytest.approx(7624 * p * math.log(2) / Z80, rel=1e-3)
+    assert sd == pytest.approx(7624 * p * math.log(2) / 1.6448536, rel=1e-3)
     _, sd_fat = energy_density_with_spread(20.0, -10.0, fat_se_kg=3.0)
     assert sd_fat > sd
 
@@ -198,7 +201,7 @@ def test_skinfold_partition_pulls_towards_measurement() -> None:
     # 80 kg 25 % -> 76 kg 22 % (science notes §4.5, computed there): dF -3.28, dL -0.72
     share, sd = lean_share_from_skinfolds(-3.28, -0.72, 0.5, 0.35)
     assert 0.18 < share < 0.35
-    assert sd < 0.35 * math.log(2) / Z80
+    assert sd < 0.35 * math.log(2) / 1.6448536
     assert lean_share_from_skinfolds(0.0, 0.0, 0.5, 0.3)[0] == 0.3
 
 
@@ -212,3 +215,53 @@ def test_glycogen_step_and_time_constant() -> None:
     m, s = glycogen_remaining_share(7.0)
     assert math.exp(-7 / 3) < m < math.exp(-0.7)
     assert s > 0.05
+
+
+def _est(v: float, sd: float) -> Estimate:
+    return Estimate(v, v - Z80 * sd, v + Z80 * sd)
+
+
+def test_phase_assessment_reads_fewer_steps_as_activity() -> None:
+    # Baseline TDEE 2600 (SE 50), cut: observed 2050, expected 2250 -> 200 below expected,
+    # of which 3000 fewer steps at 80 kg = -84 kcal/day (ACSM, see test_step_cost_acsm).
+    res = assess_phase_adaptation(
+        observed_tdee=_est(2050.0, 40.0),
+        expected_tdee=_est(2250.0, 55.0),
+        baseline_tdee_kcal=2600.0,
+        baseline_tdee_se_kcal=50.0,
+        baseline_intake_kcal=2600.0,
+        baseline_intake_se_kcal=30.0,
+        baseline_deficit_kcal=0.0,
+        phase_deficit=_est(500.0, 40.0),
+        logged_intake_kcal=1550.0,
+        logged_intake_se_kcal=25.0,
+        body_size_kcal=-60.0,
+        first_day=0,
+        days=84,
+        activity=(-84.0, 17.0),
+    )
+    ch = res.change
+    assert ch.total.value == pytest.approx(-550.0)
+    assert ch.body_size.value == pytest.approx(-350.0)
+    assert ch.activity.value == pytest.approx(-84.0)
+    assert ch.metabolic.value == pytest.approx(-116.0)  # -550 + 350 + 84 (the parts add up)
+    # data alone: observed - expected = -200; typical: the literature's metabolic term
+    # plus the measured -84 from steps; the combined value lies between the two
+    ev = res.evidence
+    assert ev.data.value == pytest.approx(-200.0)
+    assert ev.literature.value is not None and ev.combined.value is not None
+    share = at_share_of_step(0, 84, 14.0)
+    assert ev.literature.value == pytest.approx(
+        0.14 * (-560.0 + 0.14 * (-560.0 / 0.9) * share) / 0.9 * share - 84.0, rel=1e-9
+    )
+    lo_, hi_ = sorted((-200.0, ev.literature.value))
+    assert lo_ <= ev.combined.value <= hi_
+    assert res.adaptation == ev.combined
+    # weight says the cut was (-500 - 60 + AT)/0.9 (Hall & Chow 2011 form, betaTEF 0.10),
+    # with AT the Hall 2011 term for the cut, two passes from AT = 0 over 84 days
+    share = at_share_of_step(0, 84, 14.0)
+    cut = -560.0 / 0.9
+    for _ in range(2):
+        cut = (-560.0 + 0.14 * cut * share) / 0.9
+    assert res.intake_change_kcal == pytest.approx(cut, rel=1e-12)
+    assert res.implied_intake.value == pytest.approx(2600.0 + res.intake_change_kcal)

@@ -44,7 +44,10 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
         for o in failed:
             if o.traceback:
                 err.print(f"[bold]{o.client_id}[/bold]: traceback", markup=True)
-                err.print(esc(o.traceback, keep_newlines=True), markup=False, end="")
+                # soft wrap: a long path in a frame is never folded (copy-paste, grep)
+                err.print(
+                    esc(o.traceback, keep_newlines=True), markup=False, end="", soft_wrap=True
+                )
 
     if quiet:
         for o in failed:

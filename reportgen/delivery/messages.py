@@ -94,7 +94,7 @@ def render_content(
     config: Config,
     client_name: str,
     client_id: str,
-    month: ReportMonth,
+    month: ReportMonth | str,
     filename: str,
     encrypted: bool,
 ) -> MailContent:
@@ -111,7 +111,7 @@ def render_content(
         "greeting_name": greeting_name(client_name),
         "client_id": client_id,
         "month": month,
-        "month_label": month.label,
+        "month_label": ReportMonth(month).label,
         "attachment": filename,
         "encrypted": encrypted,
     }

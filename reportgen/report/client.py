@@ -38,6 +38,7 @@ from .wording import Wording, blocks, esc
 
 # Chart box heights in mm (the width is the text width).
 CHART_HEIGHTS_MM = {"weight": 84, "energy": 76, "signals": 78, "bodycomp": 46, "projection": 56}
+CAUTIONS_MIN_MM = 110  # about the height of the cautions without the practice contact
 HISTORY_DAYS = 183  # the time axis shows at most the last six months
 MIN_AXIS_DAYS = 28  # and at least four weeks, so a few early days do not fill the width
 
@@ -228,7 +229,8 @@ def render_client_report(
                 )
             )
 
-    # phases, data quality and the cautions share the last page when they fit
+    # phases, data quality and the cautions share the last page; they follow the charts on
+    # the same page when a client has few charts (no half-empty pages)
     last: list[Flowable] = []
     if "phases" in sections:
         last += blocks(words.text("phases", vm), theme, heading_hook=_heading_hook)
@@ -238,7 +240,8 @@ def render_client_report(
         last.append(section_break(35 * mm))
         last += blocks(words.text("quality", vm), theme, heading_hook=_heading_hook)
         last.append(Spacer(1, 3 * mm))
-    cautions = [section_break(60 * mm)]
+    # the cautions start where most of them fit, so their heading is not left at a page foot
+    cautions = [section_break(CAUTIONS_MIN_MM * mm)]
     cautions += blocks(words.text("cautions", vm), theme, heading_hook=_heading_hook)
 
     story = _arrange(first, plateau, methods, chart_story, last, cautions, width, pagesize)
@@ -323,7 +326,7 @@ def _arrange(
         if not plateau_second:
             story.append(PageBreak())
         story += chart_story
-    story.append(PageBreak())
+    story.append(section_break(70 * mm))
     story += last
     if methods_last:
         story.append(Spacer(1, 2 * mm))

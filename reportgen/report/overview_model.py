@@ -30,3 +30,4 @@ class OverviewLine:
     flags: tuple[tuple[str, str], ...]  # (code, severity)
     attention: int  # sort key: higher means look at this client first
     progress_status: str | None = None  # the running deficit phase's (science.plateau)
+    adaptation_zero_inside: bool = False  # its 80 % interval includes zero

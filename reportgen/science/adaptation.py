@@ -45,6 +45,8 @@ from dataclasses import dataclass
 from reportgen.results import Estimate
 from reportgen.science._checks import finite
 from reportgen.science.hall import HALL_2011, HallParams
+from reportgen.science.implied_intake import implied_intake as _implied
+from reportgen.science.implied_intake import implied_intake_change_kcal
 from reportgen.science.trend import Z80
 
 # Between-person spread of adaptation relative to its mean: Leibel et al. 1995 report the
@@ -56,9 +58,12 @@ BETWEEN_PERSON_CV = 0.6
 # Hall model (from memory) gives for that cut.  A factor of two either way as 80 % range is
 # ln 2 / 1.28 = 0.54 on the log scale; as a relative SD we take 0.5 (judgment).
 COEFFICIENT_CV = 0.5
-# Floor for the spread: a small cut still leaves room for changes in spontaneous activity
-# (Leibel 1995: non-resting expenditure fell as much as resting).  Judgment.
-LITERATURE_SD_FLOOR_KCAL = 40.0
+# Absolute between-person spread: Leibel et al. 1995 give SDs of 3-5 kcal/kg FFM/day for
+# the fall in TEE after >= 10 % loss, i.e. 165-275 kcal/day at 55 kg FFM (published SDs,
+# kcal computed here); an 8-16 week moderate diet loses about a third to half of that
+# weight, so we take 90 kcal/day (judgment: linear scaling with the loss).  Non-resting
+# expenditure fell as much as resting in that study, so this includes activity.
+LITERATURE_SD_FLOOR_KCAL = 90.0
 # Logging drift: self-reported intake is commonly 20-50 % below measured expenditure and the
 # gap can change during a diet (Lichtman et al. 1992; Schoeller 1995, Metabolism 44 Suppl 2:
 # 18-22).  Prior probability that a client's logging changed when the diet started, and the
@@ -69,6 +74,11 @@ LOGGING_DRIFT_SD_FRACTION = 0.15
 # deficit is more likely logging or data (replaces a fixed share of TDEE).  Judgment: 2.5 SD
 # is outside the 99 % range of the literature spread.
 IMPLAUSIBLE_Z = 2.5
+# Without logged steps the data's "adaptation" also holds any change in activity, which
+# the literature AT term does not: spontaneous activity often falls during a diet (Leibel
+# et al. 1995: non-resting expenditure fell about as much as resting).  SD added to the
+# literature expectation when steps are not logged (judgment).
+UNMEASURED_ACTIVITY_SD_KCAL = 60.0
 NOT_DISTINGUISHABLE = "not distinguishable from no adaptation"
 
 
@@ -124,8 +134,9 @@ def literature_adaptation_kcal(
     Hall et al. 2011's AT term after a step dEI: AT(t) = betaAT dEI (1 - exp(-t/tauAT)).
     The spread combines the between-person SD of Leibel et al. 1995 (SD/mean
     0.5-0.63) with the uncertainty of betaAT itself (Müller et al. 2015 measured
-    about half of it), with a floor of 40 kcal/day for activity changes
-    (judgment).  Valid for intake changes of up to about 50 % of maintenance
+    about half of it), combined with an absolute spread of 90 kcal/day scaled
+    from Leibel et al. 1995's SDs (judgment).  Valid for intake changes of up to
+    about 50 % of maintenance
     over weeks to months; it says nothing about the years-long adaptation after
     extreme losses (Fothergill et al. 2016 report -499 +/- 207 kcal/day of
     residual *resting* expenditure six years on).
@@ -410,4 +421,132 @@ def decompose_expenditure_change(
         activity=activity,
         metabolic=_interval(rem, rsd),
         activity_measured=measured,
+    )
+
+
+def _sd(e: Estimate) -> float:
+    if e.low is None or e.high is None:
+        return 0.0
+    return (e.high - e.low) / (2.0 * Z80)
+
+
+@dataclass(frozen=True)
+class PhaseAdaptation:
+    """Everything said about a phase's expenditure against the client's baseline."""
+
+    evidence: AdaptationEvidence  # data alone, typical, combined (all: observed - expected)
+    adaptation: Estimate  # the combined estimate (= evidence.combined)
+    change: ExpenditureChange  # observed change from the baseline in parts (data alone)
+    implied_intake: Estimate  # intake implied by weight [kcal/day]
+    logging_gap: Estimate  # logged minus implied intake [kcal/day]
+    intake_change_kcal: float  # cut implied by weight, used for the literature value
+
+
+def assess_phase_adaptation(
+    observed_tdee: Estimate,
+    expected_tdee: Estimate,
+    baseline_tdee_kcal: float,
+    baseline_tdee_se_kcal: float,
+    baseline_intake_kcal: float,
+    baseline_intake_se_kcal: float,
+    baseline_deficit_kcal: float,
+    phase_deficit: Estimate,
+    logged_intake_kcal: float | None,
+    logged_intake_se_kcal: float,
+    body_size_kcal: float,
+    first_day: float,
+    days: int,
+    activity: tuple[float, float] | None,
+    params: HallParams = HALL_2011,
+) -> PhaseAdaptation:
+    """Adaptation of one phase against the client's baseline, with its parts and the logging check.
+
+    Parameters
+    ----------
+    observed_tdee, expected_tdee : Estimate
+        The phase's observed TDEE (intake minus stored energy) and its expected TDEE
+        (baseline scaled to the phase's body size, thermic effect and tissue
+        turnover; its interval includes the baseline's own noise). [kcal/day]
+    baseline_tdee_kcal, baseline_tdee_se_kcal : float
+        The baseline's observed TDEE and its SE. [kcal/day]
+    baseline_intake_kcal, baseline_intake_se_kcal, baseline_deficit_kcal : float
+        The baseline's mean logged intake, its SE and its realised deficit. [kcal/day]
+    phase_deficit : Estimate
+        The phase's realised deficit (energy drawn from stores). [kcal/day]
+    logged_intake_kcal, logged_intake_se_kcal : float or None, float
+        The phase's mean logged intake and its SE. [kcal/day]
+    body_size_kcal : float
+        Change in expenditure from fat, lean and weight change alone
+        (:func:`body_size_change_kcal`). [kcal/day]
+    first_day, days : float, int
+        Days from the intake change to the window's start, and its length. [day]
+    activity : (mean, sd) or None
+        Change in step expenditure (:func:`reportgen.science.activity.step_energy_change_kcal`).
+
+    Returns
+    -------
+    PhaseAdaptation
+
+    Notes
+    -----
+    1. The cut is taken from the weights, not the log: the intake change implied
+       by weight (Hall & Chow 2011) with the literature adaptation for that cut
+       (two fixed-point passes from AT = 0).
+    2. The literature expectation for that cut and window
+       (:func:`literature_adaptation_kcal`).
+    3. The data: observed minus expected.  The "typical" value on the same footing:
+       the literature's metabolic term plus the measured change in step
+       expenditure (so that fewer steps are not read as metabolism); without logged
+       steps the literature value gets an extra 60 kcal/day of spread for activity
+       changes it does not describe (judgment).
+    4. :func:`combine_adaptation` with a logging-drift component sized by
+       :func:`logging_drift_sd_kcal`.
+    5. The parts of the change from the baseline (data alone): body size,
+       activity, metabolic remainder (:func:`decompose_expenditure_change`).
+    """
+    if not (observed_tdee.known and expected_tdee.known and phase_deficit.known):
+        raise ValueError("observed, expected TDEE and the phase deficit are needed")
+    assert observed_tdee.value is not None and expected_tdee.value is not None
+    assert phase_deficit.value is not None
+    d_def = phase_deficit.value - baseline_deficit_kcal
+    d_def_se = math.hypot(_sd(phase_deficit), 0.0)
+    cut = implied_intake_change_kcal(d_def, body_size_kcal, 0.0, 0.0, params)
+    lit_mean, lit_sd = literature_adaptation_kcal(min(cut, 0.0), first_day, days, params)
+    cut = implied_intake_change_kcal(d_def, body_size_kcal, lit_mean, 0.0, params)
+    lit_mean, lit_sd = literature_adaptation_kcal(min(cut, 0.0), first_day, days, params)
+    if activity is None:
+        lit_sd = math.hypot(lit_sd, UNMEASURED_ACTIVITY_SD_KCAL)
+
+    obs_sd, exp_sd = _sd(observed_tdee), _sd(expected_tdee)
+    total = observed_tdee.value - baseline_tdee_kcal
+    total_se = math.hypot(obs_sd, baseline_tdee_se_kcal)
+    body = expected_tdee.value - baseline_tdee_kcal
+    body_sd = math.sqrt(max(exp_sd * exp_sd - baseline_tdee_se_kcal**2, 0.0))
+    act_m, act_sd = activity if activity is not None else (None, None)
+    change = decompose_expenditure_change(total, total_se, body, body_sd, act_m, act_sd)
+    # On the same footing as the data (observed - expected, which holds any activity
+    # change): the literature's metabolic term plus the measured change in steps.
+    typical_m = lit_mean + (act_m or 0.0)
+    typical_sd = math.hypot(lit_sd, act_sd or 0.0)
+    data = observed_tdee.value - expected_tdee.value
+    data_se = max(math.hypot(obs_sd, exp_sd), 1.0)
+    drift = logging_drift_sd_kcal(logged_intake_kcal) if logged_intake_kcal else 0.0
+    ev = combine_adaptation(data, data_se, typical_m, typical_sd, drift)
+    adaptation = ev.combined
+    imp = _implied(
+        baseline_intake_kcal,
+        baseline_intake_se_kcal,
+        d_def,
+        d_def_se,
+        body_size_kcal,
+        lit_mean,
+        lit_sd,
+        logged_intake_kcal,
+        logged_intake_se_kcal,
+        0.0,
+        params,
+    )
+    assert imp.implied.value is not None
+    return PhaseAdaptation(
+        ev, adaptation, change, imp.implied, imp.gap, imp.implied.value - baseline_intake_kcal
     )

@@ -4,7 +4,7 @@ Forbes' curve (as refitted by Hall 2007) gives the *average* lean share of a
 weight change for a given fat mass; individuals differ widely around it with
 training, protein intake and starting fatness (Heymsfield et al. 2014, from
 memory).  Here the lean share is taken as log-normal around Forbes' value, with
-an 80 % range of a factor of two either way (judgment: resistance training and
+a 90 % range of a factor of two either way (judgment: resistance training and
 high protein can halve the lean share, a very low protein intake double it).
 When a client has serial skinfold sessions, the measured change in fat and lean
 mass informs the partition, the way the intake-balance method of the CALERIE
@@ -38,11 +38,10 @@ from reportgen.science.composition import (
     RHO_LEAN_KCAL_PER_KG,
     partition_weight_change_hall,
 )
-from reportgen.science.trend import Z80
 
-# log-SD of the lean share around Forbes' curve: a factor of 2 at the 10th/90th percentile
+# log-SD of the lean share around Forbes' curve: a factor of 2 at the 5th/95th percentile
 # (judgment, see the module docstring).
-LEAN_SHARE_LOG_SD = math.log(2.0) / Z80
+LEAN_SHARE_LOG_SD = math.log(2.0) / 1.6448536269514722
 # Glycogen with its water per kcal/day of intake change: about 400 g of glycogen at full
 # stores (from memory), of which a 50 % cut empties about a quarter to a half in days; with
 # 2.7-4 g water per g (Hall's model uses 2.7; literature 3-4, from memory) that is roughly
@@ -89,7 +88,7 @@ def energy_density_with_spread(
 
     Notes
     -----
-    Check (science notes table 4.3, computed there from the same equations):
+    Check (computed from Hall 2007's curve with Hall 2008's densities):
     F0 20 kg, dBW -10 kg gives dF -6.166, dL -3.834 and 6518 kcal/kg.
     """
     f = _req("fat_mass_kg", fat_mass_kg)

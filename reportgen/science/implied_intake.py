@@ -84,8 +84,8 @@ def implied_intake_change_kcal(
 
     Notes
     -----
-    Hand check against the Hall et al. 2011 steady state (science notes' shortcut,
-    computed there as 20.9 kcal/day per kg for a man with 35 kg fat): at steady
+    Hand check against the Hall et al. 2011 steady state (the linearised model,
+    20.9 kcal/day per kg for a man with 35 kg fat, computed here): at steady
     state (no deficit) a 1 kg loss with lean share 10.4/45.4 costs
     3.2 x -0.771 + 22 x -0.229 + 8.35 x -1 = -15.86 kcal/day of body size; with
     AT = 0.14 x dEI, dEI = -15.86 / (1 - 0.10 - 0.14) = -20.9 kcal/day.
