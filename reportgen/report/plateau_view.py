@@ -271,6 +271,7 @@ def plateau_flowables(
         left_w = 0.58 * width
         right_w = width - left_w
         text = blocks(words.text("client_causes", view), theme)
+        text += blocks(words.text("options_heading", view), theme)  # beside the drawing
         drawing: list[Flowable] = [CausesDrawing(view, names, theme, right_w - 3 * mm)]
         drawing += blocks(words.text("drawing_caption", view), theme)
         table = Table([[text, drawing]], colWidths=[left_w, right_w])
@@ -288,6 +289,8 @@ def plateau_flowables(
             )
         )
         out.append(table)
+    elif macro == "client":
+        out += blocks(words.text("options_heading", view), theme)
     if macro == "client":
         out += blocks(words.text("client_options", view), theme)
     return out
