@@ -4,7 +4,8 @@ Simulated clients (``reportgen.testing.simulate``, invented data with known trut
 are analysed by the real ``reportgen.analysis.analyse_client``.  Scores per phase
 window of at least ``--min-weeks`` weeks:
 
-* trend RMSE: smoothed trend vs true body mass (and the EMA and the raw weigh-ins);
+* trend RMSE: smoothed trend vs true body mass (and a plain smoothing baseline and the raw
+  weigh-ins);
 * realised-deficit error vs the true energy drawn from stores;
 * expenditure error (observed TDEE vs the true mean expenditure), on clients
   without under-reporting;
@@ -214,7 +215,12 @@ def table(s: Scores) -> str:
             rms(s.raw_sq and [math.sqrt(v) for v in s.raw_sq]),
             "raw weigh-ins",
         ),
-        ("EMA 0.1 RMSE vs true mass [kg]", rms([math.sqrt(v) for v in s.ema_sq]), math.nan, ""),
+        (
+            "plain smoothing baseline RMSE vs true mass [kg]",
+            rms([math.sqrt(v) for v in s.ema_sq]),
+            math.nan,
+            "",
+        ),
         (
             "realised deficit RMSE [kcal/d]",
             rms(s.deficit_err),

@@ -6,7 +6,7 @@ function shared by the in-process loop, the local process pool and a Dask
 cluster.  The task reads that client's files, analyses them, renders both
 PDFs, writes them crash-safely and returns only small data
 (:class:`ClientOutcome`), so memory stays flat however many clients there are.
-The parent then writes ``summary.csv``, ``overview.pdf`` and, last,
+The parent then writes ``summary.csv``, ``overview.pdf``, ``methods.pdf`` and, last,
 ``manifest.json`` (whose presence means the month folder is complete).
 
 Nothing is written outside ``OUT/<YYYY-MM>/``.  Reading, science and rendering
@@ -56,9 +56,10 @@ from reportgen.report import (
     render_overview,
     render_practitioner_summary,
 )
+from reportgen.report.methods_doc import render_methods
 from reportgen.report.overview_model import OverviewLine
 from reportgen.report.wording import TemplateProblem
-from reportgen.results import ClientAnalysis
+from reportgen.results import ClientAnalysis, MethodUsed
 from reportgen.summary import SummaryRow, summary_csv, summary_rows
 
 if TYPE_CHECKING:  # the cluster extra is optional at run time
@@ -66,6 +67,7 @@ if TYPE_CHECKING:  # the cluster extra is optional at run time
     from distributed import Client as DaskClient
 
 OVERVIEW_NAME = "overview.pdf"
+METHODS_NAME = "methods.pdf"
 SUMMARY_NAME = "summary.csv"
 DASK_CONNECT_TIMEOUT_S = 10.0
 
@@ -126,6 +128,7 @@ class ClientOutcome:
     inputs: dict[str, str] = field(default_factory=dict)
     summary_rows: tuple[SummaryRow, ...] = ()
     overview_line: OverviewLine | None = None
+    methods: tuple[MethodUsed, ...] = ()  # equations and models used, for methods.pdf
     traceback: str | None = None  # for unexpected exceptions only
     timings_s: dict[str, float] = field(default_factory=dict)
     peak_rss_mb: float | None = None
@@ -193,6 +196,21 @@ def _remove_stale_outputs(out_dir: Path, client_id: str) -> None:
             (out_dir / name).unlink()
 
 
+def _no_weigh_ins_warning(client_id: str, month: str) -> dict[str, object]:
+    """The manifest's note for a month without a single weigh-in (the report says it too)."""
+    return {
+        "severity": "warning",
+        "code": "no-weigh-ins-in-month",
+        "client_id": client_id,
+        "file": None,
+        "row": None,
+        "column": None,
+        "value": month,
+        "message": f"no weigh-ins in {month}: the report shows no change for the month, "
+        "and no trend figures that were not measured",
+    }
+
+
 def process_client(task: ClientTask) -> ClientOutcome:
     """Read, analyse, render and write one client's two PDFs; never raises for that client.
 
@@ -247,6 +265,8 @@ def process_client(task: ClientTask) -> ClientOutcome:
             return failed(tuple(_problem_line(p) for p in record.errors))
 
         analysis = analyse_client(record, task.month, task.config.analysis)
+        if analysis.quality.weight_days == 0:
+            warnings += (_no_weigh_ins_warning(cid, task.month),)
         t2 = time.perf_counter()
         timings["analyse"] = t2 - t1
 
@@ -285,6 +305,7 @@ def process_client(task: ClientTask) -> ClientOutcome:
         inputs=inputs,
         summary_rows=rows,
         overview_line=line,
+        methods=analysis.methods,
         timings_s=timings,
         peak_rss_mb=_peak_rss_mb(),
         pid=os.getpid(),
@@ -369,11 +390,6 @@ def _pool_context() -> multiprocessing.context.BaseContext:
     if sys.platform.startswith("linux"):
         return multiprocessing.get_context("fork")
     return multiprocessing.get_context("spawn")  # pragma: no cover - not Linux
-
-
-def _serial(tasks: Iterable[ClientTask]) -> Iterator[ClientOutcome]:
-    for task in tasks:
-        yield process_client(task)
 
 
 def _pool(tasks: list[ClientTask], workers: int) -> Iterator[ClientOutcome]:
@@ -648,8 +664,12 @@ def run_batch(
 
         if dask is not None:
             stream = _dask(tasks, dask)
-        elif workers == 1 or len(tasks) <= 1:
-            stream = _serial(tasks)
+        elif not tasks:
+            stream = iter(())
+        elif workers == 1 or len(tasks) == 1:
+            # Still a worker process, one client after the other: a file that crashes the
+            # reader (a native abort, the out-of-memory killer) costs only its client.
+            stream = _pool(tasks, 1)
         else:
             warm_up_matplotlib()
             stream = _pool(tasks, min(workers, len(tasks)))
@@ -673,7 +693,7 @@ def run_batch(
 
 
 def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> None:
-    """summary.csv, overview.pdf, then manifest.json (last: it seals the month)."""
+    """summary.csv, overview.pdf, methods.pdf, then manifest.json (last: it seals the month)."""
     month_dir = result.month_dir
     rows = [row for o in result.outcomes for row in o.summary_rows]
     summary = summary_csv(rows)
@@ -681,7 +701,7 @@ def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> N
     result.files[SUMMARY_NAME] = sha256_bytes(summary)
 
     lines = [o.overview_line for o in result.outcomes if o.overview_line is not None]
-    failures = [(o.client_id, o.reason) for o in result.outcomes if not o.ok]
+    failures = [(o.client_id, o.name, o.reason) for o in result.outcomes if not o.ok]
     try:
         overview = render_overview(lines, failures, result.month, config)
     except Exception as exc:
@@ -691,6 +711,17 @@ def _write_month_files(result: BatchResult, book_dir: Path, config: Config) -> N
     else:
         write_bytes_atomic(month_dir / OVERVIEW_NAME, overview)
         result.files[OVERVIEW_NAME] = sha256_bytes(overview)
+
+    done = sorted((o for o in result.outcomes if o.ok), key=lambda o: o.client_id)
+    try:
+        methods = render_methods([o.methods for o in done], len(done), result.month, config)
+    except Exception as exc:
+        result.errors.append(f"methods.pdf could not be made: {type(exc).__name__}: {exc}")
+        with contextlib.suppress(FileNotFoundError):
+            (month_dir / METHODS_NAME).unlink()
+    else:
+        write_bytes_atomic(month_dir / METHODS_NAME, methods)
+        result.files[METHODS_NAME] = sha256_bytes(methods)
 
     config_file = Path(config.source) if config.source else None
     manifest = build_manifest(

@@ -25,6 +25,7 @@ from reportgen.choices import ENERGY_UNITS as ENERGY_UNITS
 from reportgen.choices import MAIL_SECURITY as MAIL_SECURITY
 
 PAPER_SIZES = ("A4", "letter")
+PROJECTION_WEEKS_MAX = 26  # the analysis projects this far; a report shows its configured part
 WEIGHT_UNITS = ("kg", "lb")
 SECTIONS = (
     "overview",
@@ -193,6 +194,11 @@ def _table_problems(table: str, value: Any) -> tuple[dict[str, Any], list[str]]:
             problems.append(str(exc))
             continue
         choices = _CHOICES.get((table, key))
+        if choices and isinstance(coerced, str) and coerced not in choices:
+            # choices are matched without regard to case ("Letter" is letter)
+            same = [c for c in choices if c.casefold() == coerced.strip().casefold()]
+            if same:
+                coerced = same[0]
         if choices and coerced not in choices:
             problems.append(
                 f"[{table}] {key} = {v!r} is not allowed; use one of: {', '.join(choices)}"
@@ -300,8 +306,8 @@ def _check(cfg: Config) -> list[str]:
         out.append(f"[report] sections lists {', '.join(dupes)} more than once")
     if "cautions" not in r.sections:
         out.append('[report] sections must include "cautions": every report carries them')
-    if not 1 <= r.projection_weeks <= 26:
-        out.append("[report] projection_weeks must be between 1 and 26")
+    if not 1 <= r.projection_weeks <= PROJECTION_WEEKS_MAX:
+        out.append(f"[report] projection_weeks must be between 1 and {PROJECTION_WEEKS_MAX}")
     problem = _date_format_problem(r.date_format)
     if problem:
         out.append(problem)

@@ -87,7 +87,7 @@ class Estimate:
 class TrendSeries:
     """Smoothed trend weight on the log's daily grid."""
 
-    method: str  # "local-linear-trend" or "ema"
+    method: str  # "local-linear-trend"
     dates: DateArray
     level_kg: FloatArray
     level_low_kg: FloatArray  # 80 % band
@@ -233,7 +233,6 @@ class ClientAnalysis:
     special_handling: tuple[str, ...]  # "minor", "pregnant": no deficit analysis
     log: DailyLog  # cut at as_of; for charts
     trend: TrendSeries | None
-    ema: TrendSeries | None
     current_weight_kg: Estimate  # trend weight at as_of
     month_change_kg: Estimate  # trend change over the report month
     weekly_rate_kg: Estimate  # current weekly rate (kg/week, negative = loss)

@@ -30,3 +30,17 @@ def sample_book(tmp_path: Path) -> Path:
     dest = tmp_path / "book"
     shutil.copytree(SAMPLE_BOOK, dest)
     return dest
+
+
+def pytest_addoption(parser: pytest.Parser) -> None:
+    parser.addoption(
+        "--update-goldens",
+        action="store_true",
+        default=False,
+        help="Rewrite tests/golden/*.json from the PDFs rendered now (review the diff after).",
+    )
+
+
+@pytest.fixture
+def update_goldens(request: pytest.FixtureRequest) -> bool:
+    return bool(request.config.getoption("--update-goldens"))

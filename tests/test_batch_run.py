@@ -47,7 +47,7 @@ def test_reference_run_writes_exactly_the_expected_files(reference_run: Referenc
     expected = sorted(
         [f"{c}.pdf" for c in GOOD_IDS]
         + [f"{c}-practitioner.pdf" for c in GOOD_IDS]
-        + ["overview.pdf", "summary.csv", "manifest.json"]
+        + ["overview.pdf", "methods.pdf", "summary.csv", "manifest.json"]
     )
     assert names == expected
     for name in names:
@@ -78,7 +78,7 @@ def test_manifest_contents_and_hashes(reference_run: ReferenceRun) -> None:
     assert m["config_file"] is None
     assert m["config"]["report"]["paper"] == "A4"
     assert m["book_problems"] == []
-    assert sorted(m["files"]) == ["overview.pdf", "summary.csv"]
+    assert sorted(m["files"]) == ["methods.pdf", "overview.pdf", "summary.csv"]
     for name, digest in m["files"].items():
         assert hashlib.sha256((month_dir / name).read_bytes()).hexdigest() == digest
     assert list(m["clients"]) == SAMPLE_IDS
@@ -233,6 +233,7 @@ def test_subset_of_clients_exit_zero(reference_run: ReferenceRun, tmp_path: Path
             "c003.pdf",
             "c003-practitioner.pdf",
             "manifest.json",
+            "methods.pdf",
             "overview.pdf",
             "summary.csv",
         ]

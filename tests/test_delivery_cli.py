@@ -142,3 +142,23 @@ def test_login_without_any_password_is_a_usage_error(
     assert result.exit_code == 2
     assert "no SMTP password: set REPORTGEN_SMTP_PASSWORD" in result.output
     assert handler.data_commands == 0
+
+
+def test_dry_run_without_a_sender_uses_a_marked_placeholder(tmp_path: Path) -> None:
+    handler = FaultyHandler()
+    with smtp_server(handler) as srv:
+        month = make_month(tmp_path, srv.port, mail={"from_address": "", "reply_to": ""})
+        text = month.config_file.read_text(encoding="utf-8")
+        month.config_file.write_text(
+            text.replace('email = "team@harbourclinic.example"\n', ""), encoding="utf-8"
+        )
+        config = ["--config", str(month.config_file)]
+        dry = _run([str(month.month_dir), "--dry-run", *config])
+        real = _run([str(month.month_dir), *config])
+    assert dry.exit_code == 0, dry.output
+    assert "no sender configured" in dry.output and "placeholder" in dry.output
+    assert "set [mail] from_address" in dry.output
+    eml = (month.month_dir / "outbox" / "c001-report.eml").read_text(encoding="utf-8")
+    assert 'From: "PLACEHOLDER SENDER' in eml and "sender-not-configured@example.invalid" in eml
+    assert real.exit_code == 2 and "from_address" in real.output
+    assert handler.data_commands == 0

@@ -17,6 +17,7 @@ from _delivery_helpers import (
 from click.testing import CliRunner
 
 from reportgen.cli.send import send_command
+from reportgen.month import ReportMonth
 
 pytestmark = pytest.mark.usefixtures("loopback_only")
 
@@ -162,7 +163,7 @@ def test_no_control_character_reaches_the_subject_from_an_override(tmp_path: Pat
         config=config,
         client_name="Eve\x1b[2J\x00\x85",
         client_id="c002",
-        month="2026-11",
+        month=ReportMonth("2026-11"),
         filename="report.pdf",
         encrypted=False,
     )

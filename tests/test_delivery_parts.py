@@ -182,16 +182,42 @@ def test_html_body_escapes_client_text_and_text_body_keeps_it() -> None:
         env,
         "report",
         config=Config(),
-        client_name="Tom & <Jerry>",
+        client_name="<Tom> & Jerry",
         client_id="c001",
         month=ReportMonth("2026-11"),
         filename="report-2026-11-c001.pdf",
         encrypted=False,
     )
-    assert "Hello Tom &amp; &lt;Jerry&gt;," in content.html
-    assert "Hello Tom & <Jerry>," in content.text
+    assert "Hello &lt;Tom&gt;," in content.html  # greeted by first name, escaped
+    assert "Hello <Tom>," in content.text
+    assert "meant only for &lt;Tom&gt; &amp; Jerry" in content.html
     assert content.subject == "Your monthly report for November 2026"  # no practice name set
     assert "password" not in content.text
+
+
+@pytest.mark.parametrize(
+    ("roster_name", "greeted"),
+    [
+        ("Tamsin Greaves", "Tamsin"),  # first name when the roster has one
+        ("Amara Okafor-Lindqvist", "Amara"),
+        ("Madonna", "Madonna"),  # a single name as written
+        ("J. Smith", "J. Smith"),  # an initial is not a first name
+    ],
+)
+def test_messages_greet_by_first_name_where_the_roster_allows(
+    roster_name: str, greeted: str
+) -> None:
+    content = render_content(
+        mail_environment(Config()),
+        "report",
+        config=Config(),
+        client_name=roster_name,
+        client_id="c001",
+        month=ReportMonth("2026-11"),
+        filename="report-2026-11-c001.pdf",
+        encrypted=False,
+    )
+    assert content.text.startswith(f"Hello {greeted},\n")
 
 
 def test_practice_templates_override_the_shipped_ones(tmp_path: Path) -> None:

@@ -206,6 +206,8 @@ def test_special_files_instead_of_phases_or_skinfolds_are_named(tmp_path: Path, 
         )
     skin = [p for p in problems if p[2] == "skinfolds/c001.csv"]
     assert [(p[0], p[1]) for p in skin] == [("c001", "skipped-file")]
+    if kind != "fifo":
+        return  # the batch path is the same for every kind; run it once
     # and in the batch, as the client's warnings (reports still made)
     out = tmp_path / "out"
     res = CliRunner().invoke(

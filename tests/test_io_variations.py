@@ -340,6 +340,19 @@ def test_seventy_bad_dates_are_one_message_with_count_and_first_rows(tmp_path: P
     )
 
 
+def test_midnight_date_times_are_plain_dates() -> None:
+    """Date cells delivered as date-times at 00:00 are dates, not weigh-in times."""
+    from reportgen.io.dates import parse_date_column
+
+    days = [dt.datetime(2026, 11, 1), dt.datetime(2026, 11, 2), dt.datetime(2026, 11, 2)]
+    col = parse_date_column(days, "date", "logs/c001.xlsx")
+    assert not col.has_times
+    assert col.ords.tolist() == [d.toordinal() for d in days]
+    timed = parse_date_column([*days[:2], dt.datetime(2026, 11, 2, 7, 5)], "date", "x")
+    assert timed.has_times
+    assert timed.minutes[2] == pytest.approx(7 * 60 + 5, abs=1e-9)
+
+
 def test_mixed_day_first_and_month_first_is_refused(tmp_path: Path) -> None:
     rows = _base()
     out = [["date", "weight_kg", "intake_kcal", "steps"]]

@@ -63,7 +63,7 @@ def test_measurements_carry_values_and_80_percent_intervals(client_id: str) -> N
     if a.bodycomp:
         last = a.bodycomp[-1]
         assert f"{last.bodyfat_pct:.1f} %" in text
-        assert f"± {last.bodyfat_se_pct:.1f} points (SEE)" in text
+        assert f"± {last.bodyfat_se_pct:.1f} points (equation standard error)" in text
 
 
 def test_fonts_embedded_and_text_inside_the_margins() -> None:

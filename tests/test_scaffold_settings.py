@@ -117,6 +117,25 @@ def test_check_accepts_a_good_file(tmp_path: Path) -> None:
 
 
 @pytest.mark.parametrize(
+    ("toml", "key", "value"),
+    [
+        ('[report]\npaper = "Letter"\n', "paper", "letter"),
+        ('[report]\npaper = "a4"\n', "paper", "A4"),
+        ('[report]\nweight_unit = "KG"\n', "weight_unit", "kg"),
+        ('[report]\nenergy_unit = "KJ"\n', "energy_unit", "kJ"),
+    ],
+)
+def test_choices_are_accepted_whatever_their_case(
+    tmp_path: Path, toml: str, key: str, value: str
+) -> None:
+    path = tmp_path / "practice.toml"
+    path.write_text(toml, encoding="utf-8")
+    r = CliRunner().invoke(main, ["settings", "check", str(path)], catch_exceptions=False)
+    assert r.exit_code == 0, r.output
+    assert getattr(load_config(path).report, key) == value  # stored in its canonical spelling
+
+
+@pytest.mark.parametrize(
     ("toml", "message"),
     [
         ("[report]\ncolour = 1\n", r"unknown setting \[report\] colour; known settings: paper,"),

@@ -40,7 +40,8 @@ def test_every_field_is_filled(sim_analysis: tuple[object, ClientAnalysis]) -> N
         assert getattr(a, f.name) is not None, f.name
     assert a.trend is not None and a.trend.level_kg.shape == a.log.dates.shape
     assert a.expenditure is not None and np.all(np.isfinite(a.expenditure.tdee_kcal))
-    assert a.projection is not None and len(a.projection.weight_kg) == 85
+    # 26 weeks and the start day: as far as [report] projection_weeks may ask
+    assert a.projection is not None and len(a.projection.weight_kg) == 7 * 26 + 1
     assert {s.name for s in a.signals} >= {"steps", "hunger", "energy"}
     assert a.bodycomp and a.bodycomp[-1].equation == "jackson-pollock-3"
     codes = {m.code for m in a.methods}

@@ -261,7 +261,6 @@ def test_the_stages_assemble_the_analysis(stages: ClientStages) -> None:
     assert analysis.month_change_kg == stages.trend.month_change
     assert [m.code for m in analysis.methods] == [
         "local-linear-trend",
-        "ema",
         "jackson-pollock-3",
         "mifflin-st-jeor",
         "harris-benedict-1919",

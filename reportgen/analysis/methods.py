@@ -14,19 +14,13 @@ METHODS: dict[str, MethodUsed] = {
         "Oxford University Press; 2012.",
         see=None,
     ),
-    "ema": MethodUsed(
-        code="ema",
-        name="Exponential smoothing, alpha 0.1 per day (for comparison)",
-        reference="Common practice in weight self-monitoring; no single source.",
-    ),
     "hall-2008-energy-density": MethodUsed(
         code="hall-2008-energy-density",
-        name="Energy content of weight change: Hall 2008 tissue energy densities with "
-        "Forbes' fat/lean partition",
+        name="Energy content of weight change: Hall 2008 tissue energy densities (fat 9440 "
+        "kcal/kg, lean 1816 kcal/kg) with Forbes' fat/lean partition",
         reference="Hall KD. What is the required energy deficit per unit weight loss? Int J Obes "
         "2008;32:573-576. doi:10.1038/sj.ijo.0803720. Forbes GB. Lean body mass-body fat "
         "interrelationships in humans. Nutr Rev 1987;45:225-231.",
-        see="fat 9440 kcal/kg, lean 1816 kcal/kg",
     ),
     "expenditure-state-space": MethodUsed(
         code="expenditure-state-space",

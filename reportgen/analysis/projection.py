@@ -12,12 +12,15 @@ from reportgen.analysis.context import ClientContext, finite_mean
 from reportgen.analysis.expenditure import ExpenditureStage
 from reportgen.analysis.resting import RestingAt
 from reportgen.analysis.trend import TrendStage
+from reportgen.config import PROJECTION_WEEKS_MAX
 from reportgen.results import Estimate, Projection
 from reportgen.science import expected as expected_tdee
 from reportgen.science.expected import Baseline
 from reportgen.science.hall import project_weight
 
-PROJECTION_DAYS = 84  # 12 weeks; the report shows the configured part of it
+# As far as any report may look ([report] projection_weeks at most 26); each report shows
+# its configured part, so the horizon in its text is the one projected.
+PROJECTION_DAYS = 7 * PROJECTION_WEEKS_MAX
 
 
 def projection_stage(
@@ -28,7 +31,7 @@ def projection_stage(
     baseline: Baseline | None,
     resting_at: RestingAt,
 ) -> Projection | None:
-    """Weight over the next 12 weeks at the current intake; None if anything is unknown."""
+    """Weight over the next 26 weeks at the current intake; None if anything is unknown."""
     path, fit, current_kg = expenditure.path, trend.fit, trend.current_weight_kg
     if path is None or current_kg is None or fit is None:
         return None

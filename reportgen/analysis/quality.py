@@ -99,6 +99,8 @@ def flags(
             bmi_kg_m2=bmi,
             mean_intake_kcal=finite_mean(log.intake_kcal[intake_start:]) if log.n_days else None,
             weekly_rates_pct=weekly_rates_pct(trend.fit, log.n_days),
+            # the rate the report prints: the same rapid-loss rule words and flags it
+            current_rate_pct=trend.weekly_rate_pct.value,
             bodyfat_pct=composition.latest_bodyfat_pct,
             adaptation_pct=latest_adaptation_pct,
         )

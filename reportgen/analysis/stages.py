@@ -64,7 +64,6 @@ class ClientStages:
             special_handling=ctx.special_handling,
             log=ctx.log,
             trend=trend.trend,
-            ema=trend.ema,
             current_weight_kg=trend.current_weight,
             month_change_kg=trend.month_change,
             weekly_rate_kg=trend.weekly_rate,

@@ -17,7 +17,7 @@ from reportgen.analysis.context import (
 from reportgen.analysis.methods import METHODS
 from reportgen.results import Estimate, MethodUsed, TrendSeries
 from reportgen.science.rates import NoiseModel, fit_noise_model, segment_rate
-from reportgen.science.trend import TrendFit, ema_series, local_linear_trend
+from reportgen.science.trend import TrendFit, local_linear_trend
 
 RECENT_DAYS = 28  # window of the current weekly rate and current intake (judgment)
 
@@ -28,7 +28,6 @@ class TrendStage:
 
     fit: TrendFit | None  # None with fewer than two weigh-ins
     trend: TrendSeries | None
-    ema: TrendSeries | None
     noise: NoiseModel | None  # weigh-in noise pooled over the phase windows
     current_weight_kg: float | None  # trend level on the last day
     current_weight: Estimate
@@ -49,7 +48,6 @@ def trend_stage(ctx: ClientContext) -> TrendStage:
         return TrendStage(
             fit=None,
             trend=None,
-            ema=None,
             noise=None,
             current_weight_kg=None,
             current_weight=missing,
@@ -76,7 +74,6 @@ def trend_stage(ctx: ClientContext) -> TrendStage:
     return TrendStage(
         fit=fit,
         trend=fit.series(ctx.log.dates),
-        ema=ema_series(ctx.log.dates, weights_kg),
         noise=noise,
         current_weight_kg=current_kg,
         current_weight=estimate(current_kg, math.sqrt(fit.level_var_kg2[last])),
@@ -84,7 +81,7 @@ def trend_stage(ctx: ClientContext) -> TrendStage:
         weekly_rate=weekly_rate,
         weekly_rate_pct=scaled(weekly_rate, 100.0 / current_kg),
         recent_start_index=recent_start,
-        methods=(METHODS["local-linear-trend"], METHODS["ema"]),
+        methods=(METHODS["local-linear-trend"],),
         notes=(),
     )
 

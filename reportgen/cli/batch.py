@@ -36,14 +36,18 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     out = Console(highlight=False)
     err = Console(stderr=True, highlight=False)
     failed = result.failed
-    with_warnings = [o for o in result.outcomes if o.warnings]
-    n_warnings = sum(len(o.warnings) for o in result.outcomes)
+    # warnings are counted among the clients done: a failed client is counted once, as failed
+    with_warnings = [o for o in result.succeeded if o.warnings]
+    n_warnings = sum(len(o.warnings) for o in with_warnings)
 
     if verbose:
         for o in failed:
             if o.traceback:
                 err.print(f"[bold]{o.client_id}[/bold]: traceback", markup=True)
-                err.print(esc(o.traceback, keep_newlines=True), markup=False, end="")
+                # soft wrap: a long path in a frame is never folded (copy-paste, grep)
+                err.print(
+                    esc(o.traceback, keep_newlines=True), markup=False, end="", soft_wrap=True
+                )
 
     if quiet:
         for o in failed:
@@ -58,7 +62,7 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     table.add_column("")
     table.add_row("done", str(len(result.succeeded)), "")
     table.add_row(
-        "warnings",
+        "  of these with warnings",
         str(len(with_warnings)),
         f"{n_warnings} in all, listed in manifest.json" if n_warnings else "",
     )
@@ -71,7 +75,8 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
             "(manifest.json book_problems; `reportgen check` shows them)",
         )
     for o in failed:
-        table.add_row("", Text(esc(o.client_id)), Text(esc(o.reason)))
+        who = f"{o.name}: {o.reason}" if o.name else o.reason
+        table.add_row("", Text(esc(o.client_id)), Text(esc(who)))
     out.print(table)
     for e in result.errors:
         err.print(esc(e), markup=False)
@@ -94,7 +99,8 @@ def _print_result(result: BatchResult, *, quiet: bool, verbose: bool) -> None:
     "--workers",
     type=click.IntRange(min=1),
     default=None,
-    help="Worker processes (default: one per core; 1 runs everything in this process).",
+    help="Worker processes (default: one per core; 1 makes the clients one after another in "
+    "a single worker).",
 )
 @click.option(
     "--clients",

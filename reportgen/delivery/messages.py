@@ -78,6 +78,15 @@ class MailContent:
     html: str
 
 
+def greeting_name(full_name: str) -> str:
+    """The name a message greets: the first name when the roster's name has one (two or more
+    words, the first of them more than an initial), else the name as written."""
+    words = full_name.split()
+    if len(words) >= 2 and len(words[0].rstrip(".")) > 1:
+        return words[0]
+    return full_name.strip()
+
+
 def render_content(
     env: jinja2.Environment,
     kind: Kind,
@@ -99,6 +108,7 @@ def render_content(
             "website": p.website,
         },
         "client_name": client_name,
+        "greeting_name": greeting_name(client_name),
         "client_id": client_id,
         "month": month,
         "month_label": ReportMonth(month).label,

@@ -62,6 +62,15 @@ PASSWORD_ENV = "REPORTGEN_SMTP_PASSWORD"
 MAX_CONSECUTIVE_FAILURES = 2
 
 
+# From of dry-run messages when no sender is configured (.invalid never resolves, RFC 2606).
+PLACEHOLDER_SENDER = Sender(
+    address="sender-not-configured@example.invalid",
+    name="PLACEHOLDER SENDER - set [mail] from_address before sending",
+    reply_to="sender-not-configured@example.invalid",
+    domain="example.invalid",
+)
+
+
 @dataclass
 class SendReport:
     month: str
@@ -111,10 +120,19 @@ def send_month(
             f"give the folder OUT/{manifest.month}"
         )
     config = resolve_config(manifest, options)
+    placeholder_note = ""
     try:
         sender = sender_from_config(config)
     except ValueError as exc:
-        raise DeliveryError(str(exc)) from None
+        if not options.dry_run:
+            raise DeliveryError(str(exc)) from None
+        # a dry run only writes .eml files: it works before the sender is configured, with a
+        # placeholder that the messages and the terminal both name as such
+        sender = PLACEHOLDER_SENDER
+        placeholder_note = (
+            f"no sender configured: the dry-run messages are From {PLACEHOLDER_SENDER.address} "
+            f"(a placeholder); a real send needs it ({exc})"
+        )
     env = mail_environment(config)
     try:
         missing = templates_available(env)
@@ -124,6 +142,8 @@ def send_month(
         raise DeliveryError(f"mail templates not found: {', '.join(missing)}")
     server = server_settings(config, options)
     report = SendReport(month=manifest.month, dry_run=options.dry_run)
+    if placeholder_note:
+        report.notes.append(placeholder_note)
     secret_path = config.resolve_path(config.mail.secret_file)
     if (
         secret_path is not None

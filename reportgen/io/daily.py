@@ -74,7 +74,9 @@ def number_column(
     texts = [c for c in cells if type(c) is str]
     if len(texts) == n:
         joined = "".join(texts)
-        if joined.isascii() and "_" not in joined:  # what float() takes beyond our rules
+        # "_" is what float() takes beyond our rules; NUL is dropped from the end of a numpy
+        # string ("0\x00" would read as 0), so both go through parse_number.
+        if joined.isascii() and "_" not in joined and "\x00" not in joined:
             try:
                 out = np.array(cells, dtype=str).astype(np.float64)
             except ValueError:

@@ -144,6 +144,10 @@ def parse_date_column(
             out.ords[i] = day.toordinal()
     if pending:
         _resolve(out, pending, cells, column, file, setting)
+    timed = np.isfinite(out.minutes)
+    if timed.any() and not out.minutes[timed].any():
+        # every time is midnight: date cells stored as date-times, not times of weigh-ins
+        out.minutes[:] = np.nan
     return out
 
 

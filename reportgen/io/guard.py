@@ -27,6 +27,8 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Final
 
+from reportgen.io.model import Problem
+
 #: [bytes] Largest CSV file read: a daily log of 54 years is well under 1 MB; 20 MB leaves
 #: room for wide exports while keeping memory far under 1 GB (rows and cells are limited too).
 MAX_CSV_BYTES: Final = 20 * 1024 * 1024
@@ -321,6 +323,69 @@ def _scan_ods(zf: zipfile.ZipFile, info: zipfile.ZipInfo, rel: str) -> None:
                     f"reportgen reads ({MAX_CELLS} cells); delete the unused rows and columns",
                     "file-too-large",
                 )
+
+
+def header_problem(
+    header: Sequence[object], file: str, where: str, row: int, client_id: str | None
+) -> Problem | None:
+    if len(header) > MAX_COLUMNS:
+        return Problem(
+            "error",
+            "file-too-large",
+            f"{where} has {len(header)} columns in its header row, more than the "
+            f"{MAX_COLUMNS} reportgen reads; is it the right file?",
+            file=file,
+            row=row,
+            client_id=client_id,
+        )
+    if long_cell(header) is not None:
+        return Problem(
+            "error",
+            "cell-too-long",
+            f"the header row of {where} has a cell longer than {MAX_CELL_CHARS} "
+            "characters; is it the right file?",
+            file=file,
+            row=row,
+            client_id=client_id,
+        )
+    return None
+
+
+def long_cell_problem(
+    r: Sequence[object],
+    names: tuple[str, ...],
+    raw: tuple[str, ...],
+    file: str,
+    where: str,
+    row: int,
+    client_id: str | None,
+) -> Problem | None:
+    """An error for a row holding a cell beyond :data:`MAX_CELL_CHARS` (the row is left out).
+
+    For a table with a ``client_id`` column (roster, phases) the row's client is named.
+    """
+    pos = long_cell(r)
+    if pos is None:
+        return None
+    cid = client_id
+    if cid is None and "client_id" in names:  # a roster or phases row: name its client
+        at = names.index("client_id")
+        text = r[at] if at < len(r) else None
+        if isinstance(text, str) and 0 < len(text.strip()) <= MAX_CELL_CHARS:
+            cid = text.strip()
+    column = raw[pos] if pos < len(raw) else None
+    return Problem(
+        "error",
+        "cell-too-long",
+        f"row {row} of {where} has a cell of {len(str(r[pos]))} characters"
+        + (f" in column {column}" if column else "")
+        + f", more than the {MAX_CELL_CHARS} reportgen reads; the row is left out. "
+        "Shorten the cell",
+        file=file,
+        row=row,
+        column=column,
+        client_id=cid,
+    )
 
 
 def long_cell(row: Sequence[object]) -> int | None:

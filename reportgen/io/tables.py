@@ -130,7 +130,7 @@ def build_table(
     header = list(rows[header_at])
     while header and is_blank(header[-1]):
         header.pop()
-    refused = _refuse_header(header, file, where, header_at + 1, client_id)
+    refused = guard.header_problem(header, file, where, header_at + 1, client_id)
     if refused is not None:
         return None, [*problems, refused]
     raw = tuple(cell_text(c).strip() for c in header)
@@ -160,7 +160,7 @@ def build_table(
             continue
         # CSV rows hold only text: one C-level sum rules out a long cell in the usual case
         if not text_only or sum(map(len, cast(Sequence[str], r))) > guard.MAX_CELL_CHARS:
-            too_long = _long_cell_problem(r, names, raw, file, where, i + 1, client_id)
+            too_long = guard.long_cell_problem(r, names, raw, file, where, i + 1, client_id)
             if too_long is not None:
                 problems.append(too_long)
                 continue
@@ -194,64 +194,6 @@ def build_table(
             )
         )
     return Table(file, sheet, names, raw, tuple(out), header_at + 1), problems
-
-
-def _refuse_header(
-    header: list[Cell], file: str, where: str, row: int, client_id: str | None
-) -> Problem | None:
-    if len(header) > guard.MAX_COLUMNS:
-        return _problem(
-            "file-too-large",
-            f"{where} has {len(header)} columns in its header row, more than the "
-            f"{guard.MAX_COLUMNS} reportgen reads; is it the right file?",
-            file,
-            client_id,
-            row=row,
-        )
-    if guard.long_cell(header) is not None:
-        return _problem(
-            "cell-too-long",
-            f"the header row of {where} has a cell longer than {guard.MAX_CELL_CHARS} "
-            "characters; is it the right file?",
-            file,
-            client_id,
-            row=row,
-        )
-    return None
-
-
-def _long_cell_problem(
-    r: Sequence[Cell],
-    names: tuple[str, ...],
-    raw: tuple[str, ...],
-    file: str,
-    where: str,
-    row: int,
-    client_id: str | None,
-) -> Problem | None:
-    """An error for a row holding a cell beyond :data:`guard.MAX_CELL_CHARS` (row left out)."""
-    pos = guard.long_cell(r)
-    if pos is None:
-        return None
-    cid = client_id
-    if cid is None and "client_id" in names:  # a roster or phases row: name its client
-        at = names.index("client_id")
-        text = r[at] if at < len(r) else None
-        if isinstance(text, str) and 0 < len(text.strip()) <= guard.MAX_CELL_CHARS:
-            cid = text.strip()
-    column = raw[pos] if pos < len(raw) else None
-    return Problem(
-        "error",
-        "cell-too-long",
-        f"row {row} of {where} has a cell of {len(str(r[pos]))} characters"
-        + (f" in column {column}" if column else "")
-        + f", more than the {guard.MAX_CELL_CHARS} reportgen reads; the row is left out. "
-        "Shorten the cell",
-        file=file,
-        row=row,
-        column=column,
-        client_id=cid,
-    )
 
 
 def _blank_row(r: Sequence[Cell], text_only: bool) -> bool:

@@ -15,6 +15,7 @@ table; units are converted here for display only.
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 import hashlib
 import io
@@ -215,6 +216,7 @@ class ChartContext:
     width_mm: float
     start: dt.date  # first day on the time axis
     end: dt.date  # last day (the report month's end)
+    projection_days: int | None = None  # days of the projection shown (None: all)
 
 
 def day_numbers(dates: np.ndarray) -> np.ndarray:
@@ -514,76 +516,118 @@ def _weight_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 78) 
     return fig
 
 
+ENERGY_WEEK_DAYS = 7
+ENERGY_WEEK_MIN_DAYS = 3  # a week's intake point needs this many logged days
+
+
+def weekly_energy(
+    a: ClientAnalysis, ctx: ChartContext
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Seven-day weeks ending on the report's last day, over the chart's time axis.
+
+    Returns (week centre as day number, mean logged intake, mean estimated expenditure and
+    the means of its daily 80 % bounds), all in kcal/day; NaN where a week has too few logged
+    days (intake, fewer than ``ENERGY_WEEK_MIN_DAYS``) or no expenditure estimate.
+    """
+    end = _day(ctx.end)
+    n_weeks = max(1, int((end - _day(ctx.start) + 1) // ENERGY_WEEK_DAYS))
+    last = end - ENERGY_WEEK_DAYS * np.arange(n_weeks)[::-1]  # last day of each week
+    centre = last - (ENERGY_WEEK_DAYS - 1) / 2
+    x = day_numbers(a.log.dates)
+    intake = np.full(n_weeks, np.nan)
+    tdee, low, high = (np.full(n_weeks, np.nan) for _ in range(3))
+    e = a.expenditure
+    xe = day_numbers(e.dates) if e is not None else np.empty(0)
+    for i, d1 in enumerate(last):
+        sel = (x > d1 - ENERGY_WEEK_DAYS) & (x <= d1)
+        v = a.log.intake_kcal[sel]
+        v = v[np.isfinite(v)]
+        if v.size >= ENERGY_WEEK_MIN_DAYS:
+            intake[i] = float(v.mean())
+        if e is not None:
+            es = (xe > d1 - ENERGY_WEEK_DAYS) & (xe <= d1) & np.isfinite(e.tdee_kcal)
+            if es.any():
+                tdee[i] = float(e.tdee_kcal[es].mean())
+                low[i] = float(e.low_kcal[es].mean())
+                high[i] = float(e.high_kcal[es].mean())
+    return centre, intake, tdee, low, high
+
+
 def _energy_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 66) -> Figure | None:
-    log, u, L = a.log, ctx.units, ctx.labels
-    sel = _window(a, log.dates, ctx)
-    intake = log.intake_kcal[sel]
-    have_tdee = a.expenditure is not None and len(a.expenditure.dates) > 0
-    if not np.isfinite(intake).any() and not have_tdee:
+    """Energy balance week by week: intake and expenditure as points, expenditure with its
+    80 % range as an error bar, and the planned intake of each phase as a dotted step."""
+    u = ctx.units
+    centre, intake, tdee, low, high = weekly_energy(a, ctx)
+    if not (np.isfinite(intake).any() or np.isfinite(tdee).any()):
         return None
-    x = day_numbers(log.dates[sel])
     fig = _figure(ctx, height_mm, (14, 3, 8, 2))
     ax = fig.add_subplot()
     _shade_phases(ax, a.phases, ctx, names=True)
     _grid(ax)
     lo_all, hi_all = np.inf, -np.inf
-    mean = rolling_mean(intake)
-    if np.isfinite(intake).any():
+    ok = np.isfinite(tdee)
+    if ok.any():
+        yerr = np.vstack([tdee[ok] - low[ok], high[ok] - tdee[ok]])
+        ax.errorbar(
+            centre[ok] + 0.9,
+            u.energy(tdee[ok]),
+            yerr=u.energy(yerr),
+            fmt="D",
+            ms=3.4,
+            mfc="white",
+            mec=ctx.accent,
+            mew=1.0,
+            ecolor=ctx.accent,
+            elinewidth=0.9,
+            capsize=1.6,
+            capthick=0.8,
+            zorder=5,
+        )
+        lo_all, hi_all = float(np.nanmin(low)), float(np.nanmax(high))
+    ok = np.isfinite(intake)
+    if ok.any():
         ax.plot(
-            x,
-            u.energy(intake),
+            centre[ok] - 0.9,
+            u.energy(intake[ok]),
             ls="none",
             marker="o",
-            ms=1.8,
+            ms=3.6,
             mew=0,
             color=T.WARM,
-            alpha=0.45,
-            zorder=3,
-            label=L["intake_daily"],
+            zorder=6,
         )
-        ax.plot(x, u.energy(mean), color=T.WARM, lw=1.3, zorder=4, label=L["intake_mean"])
-        lo_all, hi_all = np.nanmin(intake), np.nanmax(intake)
-    if have_tdee and a.expenditure is not None:
-        e = a.expenditure
-        esel = _window(a, e.dates, ctx)
-        xe = day_numbers(e.dates[esel])
-        tdee = e.tdee_kcal[esel]
-        ax.fill_between(
-            xe,
-            u.energy(e.low_kcal[esel]),
-            u.energy(e.high_kcal[esel]),
-            color=ctx.accent,
-            alpha=0.16,
-            lw=0,
-            zorder=2,
-            label=L["tdee_band"],
+        lo_all = min(lo_all, float(np.nanmin(intake)))
+        hi_all = max(hi_all, float(np.nanmax(intake)))
+    x0, x1 = _day(ctx.start), _day(ctx.end)
+    for ph in a.phases:
+        if ph.target_kcal is None:
+            continue
+        s0 = max(_day(ph.start), x0)
+        s1 = min(_day(ph.window_end), x1)
+        if s1 <= s0:
+            continue
+        ax.plot(
+            [s0, s1],
+            [float(u.energy(ph.target_kcal))] * 2,
+            color=T.DEEP,
+            lw=1.0,
+            ls=(0, (1, 1.5)),
+            zorder=4,
         )
-        ax.plot(xe, u.energy(tdee), color=ctx.accent, lw=1.5, zorder=5, label=L["tdee"])
-        # the deficit: the gap between expenditure and the weekly mean intake, where below
-        m = (
-            np.interp(xe, x, mean, left=np.nan, right=np.nan)
-            if len(x)
-            else np.full_like(xe, np.nan)
-        )
-        gap = np.isfinite(m) & np.isfinite(tdee) & (tdee > m)
-        if gap.any():
-            ax.fill_between(
-                xe,
-                u.energy(m),
-                u.energy(tdee),
-                where=gap,
-                color=T.SOFT_WARM,
-                lw=0,
-                zorder=1.5,
-                label=L["deficit_gap"],
-            )
-        if np.isfinite(e.low_kcal[esel]).any():
-            lo_all = min(lo_all, np.nanmin(e.low_kcal[esel]))
-            hi_all = max(hi_all, np.nanmax(e.high_kcal[esel]))
+        lo_all, hi_all = min(lo_all, ph.target_kcal), max(hi_all, ph.target_kcal)
     _y_ticks(ax, float(u.energy(lo_all)), float(u.energy(hi_all)), min_span=float(u.energy(600)))
     ax.set_ylabel(u.energy_label)
     _time_ticks(ax, ctx.start, ctx.end, u)
     return fig
+
+
+def has_planned_intake(a: ClientAnalysis, ctx: ChartContext) -> bool:
+    """Whether the energy chart draws a planned intake (a phase target inside the axis)."""
+    return any(
+        ph.target_kcal is not None
+        and min(_day(ph.window_end), _day(ctx.end)) > max(_day(ph.start), _day(ctx.start))
+        for ph in a.phases
+    )
 
 
 def _signals_figure(a: ClientAnalysis, ctx: ChartContext, height_mm: float = 80) -> Figure | None:
@@ -773,6 +817,12 @@ def _projection_figure(
     p = a.projection
     if p is None or len(p.dates) == 0:
         return None
+    n = len(p.dates) if ctx.projection_days is None else min(ctx.projection_days + 1, len(p.dates))
+    if n < 2:
+        return None
+    p = dataclasses.replace(
+        p, dates=p.dates[:n], weight_kg=p.weight_kg[:n], low_kg=p.low_kg[:n], high_kg=p.high_kg[:n]
+    )
     u, L = ctx.units, ctx.labels
     start = max(ctx.end - dt.timedelta(days=41), ctx.start)
     end = dt.date.fromisoformat(str(p.dates[-1].astype("datetime64[D]")))
@@ -836,6 +886,7 @@ def _projection_figure(
 LegendEntry = tuple[str, str, str]  # (symbol, colour hex, label)
 LINE, DOT, BLOCK, CROSS, DASHED, DOTTED, SQUARE, DIAMOND = "━", "●", "█", "✕", "╍", "┈", "■", "◆"
 TRIANGLE = "▲"
+OPEN_DIAMOND, BAR = "◇", "┃"
 
 
 def _tint(colour: str, alpha: float) -> str:
@@ -856,13 +907,11 @@ def legend(key: str, a: ClientAnalysis, ctx: ChartContext) -> list[LegendEntry]:
             out.append((CROSS, T.OUTLIER, L["outliers"]))
         return out
     if key == "energy":
-        out = [(DOT, _tint(T.WARM, 0.45), L["intake_daily"]), (LINE, T.WARM, L["intake_mean"])]
+        out = [(DOT, T.WARM, L["intake_week"])]
         if a.expenditure is not None:
-            out += [
-                (LINE, acc, L["tdee"]),
-                (BLOCK, _tint(acc, 0.16), L["tdee_band"]),
-                (BLOCK, T.SOFT_WARM, L["deficit_gap"]),
-            ]
+            out += [(OPEN_DIAMOND, acc, L["tdee_week"]), (BAR, acc, L["tdee_band"])]
+        if has_planned_intake(a, ctx):
+            out.append((DOTTED, T.DEEP, L["planned"]))
         return out
     if key == "bodycomp":
         out = []

@@ -1,4 +1,8 @@
-"""The client report: overview, charts, phase table, data quality, methods and cautions."""
+"""The client report: overview with "how we estimate this", charts, phase table, data
+quality and cautions, on at most four A4 pages.
+
+Equations, standard errors and references are not in the client report: they are for the
+practice and sit in the practitioner summary."""
 
 from __future__ import annotations
 
@@ -13,8 +17,17 @@ from reportlab.platypus import Flowable, PageBreak, Spacer
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis
 
-from .charts import CHARTS, FIGURES, ChartContext, ChartPages, chart_pages, legend
+from .charts import (
+    CHARTS,
+    FIGURES,
+    ChartContext,
+    ChartPages,
+    chart_pages,
+    has_planned_intake,
+    legend,
+)
 from .layout import card_grid, chart_block, data_table, practice_header, section_break
+from .outlook import outlook
 from .para import Paragraph
 from .pdfbuild import ChartSlot, Document, build, mark_heading
 from .theme import Theme, page_size, theme_for
@@ -23,7 +36,8 @@ from .viewmodel import ClientView, client_view
 from .wording import Wording, blocks, esc
 
 # Chart box heights in mm (the width is the text width).
-CHART_HEIGHTS_MM = {"weight": 76, "energy": 64, "signals": 78, "bodycomp": 46, "projection": 56}
+CHART_HEIGHTS_MM = {"weight": 84, "energy": 76, "signals": 78, "bodycomp": 46, "projection": 56}
+CAUTIONS_MIN_MM = 110  # about the height of the cautions without the practice contact
 HISTORY_DAYS = 183  # the time axis shows at most the last six months
 MIN_AXIS_DAYS = 28  # and at least four weeks, so a few early days do not fill the width
 
@@ -48,7 +62,25 @@ def chart_context(
     a: ClientAnalysis, config: Config, width_mm: float, labels: dict[str, str]
 ) -> ChartContext:
     u = Units.from_config(config)
-    return ChartContext(u, labels, config.report.accent_colour, width_mm, _axis_start(a), a.as_of)
+    return ChartContext(
+        u,
+        labels,
+        config.report.accent_colour,
+        width_mm,
+        _axis_start(a),
+        a.as_of,
+        projection_days=projection_days(a, config),
+    )
+
+
+def projection_days(a: ClientAnalysis, config: Config) -> int:
+    """Days of the projection the report shows: the configured weeks, none without a
+    weigh-in in the report month (the text then makes no projection either)."""
+    if a.quality.weight_days == 0:
+        return 0
+    u = Units.from_config(config)
+    look = outlook(a, config.report.projection_weeks, lambda kg: round(float(u.weight(kg)), 1))
+    return look.days if look is not None else 0
 
 
 def draw_charts(
@@ -58,8 +90,7 @@ def draw_charts(
     labels: dict[str, str],
     timing: Timing | None = None,
 ) -> dict[str, bytes | None]:
-    u = Units.from_config(config)
-    ctx = ChartContext(u, labels, config.report.accent_colour, width_mm, _axis_start(a), a.as_of)
+    ctx = chart_context(a, config, width_mm, labels)
     out: dict[str, bytes | None] = {}
     for key, fn in CHARTS.items():
         t0 = time.perf_counter()
@@ -107,6 +138,8 @@ def _figure_items(vm: ClientView, words: Wording) -> list[tuple[str, str, bool, 
         f = vm.figures[key]
         if f.known:
             value = esc(f.value)
+        elif f.reason == "no-data-in-month":
+            value = esc(words.labels["not_measured"])  # nothing measured: not a guess either
         elif f.reason in words.labels["not_estimated_for"]:
             value = esc(words.labels["not_estimated"])  # by design, not for lack of data
         else:
@@ -122,10 +155,12 @@ def _heading_hook(para: Paragraph, level: int) -> None:
 def render_client_report(
     analysis: ClientAnalysis, config: Config, *, timing: Timing | None = None
 ) -> bytes:
-    """The client's monthly report as PDF bytes (4-6 pages with every section)."""
+    """The client's monthly report as PDF bytes (at most 4 A4 pages with every section)."""
     theme = theme_for(config.report.accent_colour)
     words = Wording(config, "report/client.j2")
     vm = client_view(analysis, config)
+    axis = chart_context(analysis, config, 0.0, {})
+    vm.extra["planned_intake"] = has_planned_intake(analysis, axis)
     pagesize = page_size(config)
     width = pagesize[0] - 2 * 18 * mm
     sections = set(config.report.sections)
@@ -147,6 +182,12 @@ def render_client_report(
         story += card_grid(_figure_items(vm, words), theme, width)
         story.append(Spacer(1, 2 * mm))
         story += blocks(words.text("narrative", vm), theme, heading_hook=_heading_hook)
+
+    if "methods" in sections:
+        # plain-language "how we estimate this" fills page 1 after the narrative; the
+        # equations, standard errors and references are in the practitioner summary
+        story.append(section_break(40 * mm))
+        story += blocks(words.text("methods", vm), theme, heading_hook=_heading_hook)
 
     slots: list[ChartSlot] = []
     if "charts" in sections:
@@ -170,21 +211,19 @@ def render_client_report(
                 )
             )
 
-    if {"phases", "quality", "methods"} & sections:
-        story.append(PageBreak())
+    # phases, data quality and the cautions share the last page; they follow the charts on
+    # the same page when a client has few charts (no half-empty pages)
+    story.append(section_break(70 * mm))
     if "phases" in sections:
         story += blocks(words.text("phases", vm), theme, heading_hook=_heading_hook)
         story.append(_phase_table(vm, words, theme, width))
-        story.append(Spacer(1, 5 * mm))
-    if "quality" in sections:
-        story.append(section_break(45 * mm))
-        story += blocks(words.text("quality", vm), theme, heading_hook=_heading_hook)
         story.append(Spacer(1, 4 * mm))
-    if "methods" in sections:
-        story.append(section_break(70 * mm))
-        story += blocks(words.text("methods", vm), theme, heading_hook=_heading_hook)
-
-    story.append(PageBreak())
+    if "quality" in sections:
+        story.append(section_break(35 * mm))
+        story += blocks(words.text("quality", vm), theme, heading_hook=_heading_hook)
+        story.append(Spacer(1, 3 * mm))
+    # the cautions start where most of them fit, so their heading is not left at a page foot
+    story.append(section_break(CAUTIONS_MIN_MM * mm))
     story += blocks(words.text("cautions", vm), theme, heading_hook=_heading_hook)
 
     labels = words.labels

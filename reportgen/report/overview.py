@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from types import SimpleNamespace
 
 import numpy as np
@@ -72,11 +73,14 @@ def sort_lines(lines: list[OverviewLine]) -> list[OverviewLine]:
 
 def render_overview(
     lines: list[OverviewLine],
-    failures: list[tuple[str, str]],
+    failures: Sequence[tuple[str, str] | tuple[str, str, str]],
     month: ReportMonth | str,
     config: Config,
 ) -> bytes:
-    """The coach's overview of every client for the month as PDF bytes (landscape)."""
+    """The coach's overview of every client for the month as PDF bytes (landscape).
+
+    ``failures`` are (client id, reason) or (client id, name, reason): the clients without a
+    report, listed by name and id after the table."""
     theme = theme_for(config.report.accent_colour)
     words = Wording(config, "report/overview.j2")
     u = Units.from_config(config)
@@ -113,18 +117,23 @@ def render_overview(
         adapt = u.e(ln.adaptation_kcal, signed=True, unit=False)
         if ln.adaptation_pct is not None:
             adapt += f" ({u.pct(ln.adaptation_pct, dp=0, signed=True)})"
+        # no weigh-in in the month: the trend change and rate would be extrapolations
+        measured = ln.weight_days > 0
+        flags_cell = words.text("flags_cell", ln.flags)
+        if not measured:
+            flags_cell = words.text("no_data_cell") + (", " + flags_cell if flags_cell else "")
         rows.append(
             [
                 f"<b>{esc(ln.name)}</b><br/>{esc(ln.client_id)}",
                 words.text("phase_cell", view),
-                esc(u.w(ln.month_change_kg, signed=True, unit=False)),
-                esc(u.number(ln.weekly_rate_pct, 2, signed=True)),
+                esc(u.w(ln.month_change_kg if measured else None, signed=True, unit=False)),
+                esc(u.number(ln.weekly_rate_pct if measured else None, 2, signed=True)),
                 esc(u.e(ln.realised_deficit_kcal, unit=False)),
                 esc(u.e(ln.observed_tdee_kcal, unit=False)),
                 esc(adapt),
                 esc(u.number(ln.bodyfat_change_pct, 1, signed=True)),
                 esc(f"{ln.weight_days} / {ln.intake_days} of {ln.days_in_month}"),
-                words.text("flags_cell", ln.flags) or DASH,
+                flags_cell or DASH,
             ]
         )
     fr = [0.14, 0.15, 0.07, 0.06, 0.065, 0.075, 0.09, 0.06, 0.09, 0.19]
@@ -141,7 +150,12 @@ def render_overview(
         h = Paragraph(esc(L["failed"]), theme["h2"])
         mark_heading(h, 1)
         story.append(h)
-        frows = [[f"<b>{esc(cid)}</b>", esc(reason)] for cid, reason in sorted(failures)]
+        frows = []
+        for item in sorted(failures):
+            cid, reason = item[0], item[-1]
+            name = item[1] if len(item) == 3 else ""
+            who = f"<b>{esc(name)}</b><br/>{esc(cid)}" if name else f"<b>{esc(cid)}</b>"
+            frows.append([who, esc(reason)])
         story.append(
             data_table(
                 [esc(c) for c in L["failed_cols"]],

@@ -17,6 +17,7 @@ from reportgen.results import ClientAnalysis, Estimate
 from . import theme as T
 from .client import Timing
 from .layout import data_table
+from .outlook import outlook
 from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
 from .theme import Theme, page_size, theme_for
@@ -111,8 +112,8 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
             (
                 "bodyfat",
                 u.pct(last.bodyfat_pct),
-                f"± {u.number(last.bodyfat_se_pct, 1)} points (SEE)",
-                f"{_method_name(a, last.equation)} + {last.conversion.title()}, "
+                f"± {u.number(last.bodyfat_se_pct, 1)} points (equation standard error)",
+                f"{_method_name(a, last.equation)}, "
                 f"{u.d(last.date)}" + (f", Σ {u.number(last.sum_mm, 1)} mm" if last.sum_mm else ""),
             )
         )
@@ -144,21 +145,26 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
             )
         )
     pr = a.projection
-    if pr is not None and len(pr.weight_kg):
+    look = outlook(a, config.report.projection_weeks, lambda kg: round(float(u.weight(kg)), 1))
+    if pr is not None and look is not None and look.days and a.quality.weight_days:
         goal = ""
-        if pr.goal_weight_kg is not None:
-            goal = f"; goal {u.w(pr.goal_weight_kg)} " + (
-                f"by {u.d(pr.goal_date)}" if pr.goal_date else "not reached"
-            )
-        end = u.d(dt.date.fromisoformat(str(pr.dates[-1].astype("datetime64[D]"))))
+        if look.goal_kg is not None:
+            g = u.w(look.goal_kg)
+            goal = "; goal " + {
+                "reached": f"{g} reached (trend {u.w(a.current_weight_kg.value)})",
+                "on-track": f"{g} by {u.d(look.goal_date)}",
+                "beyond": f"{g} not within this horizon",
+                "away": f"{g}: trend moving away",
+            }.get(look.goal_status, g)
         rows.append(
             (
                 "projection",
-                u.w(float(pr.weight_kg[-1])),
-                f"{u.w(float(pr.low_kg[-1]), unit=False)}{chr(0x2013)}{u.w(float(pr.high_kg[-1]))}",
-                f"{M['hall']} ({u.e(pr.intake_kcal)}), to {end}{goal}",
+                u.w(look.weight_kg),
+                f"{u.w(look.low_kg, unit=False)}{chr(0x2013)}{u.w(look.high_kg)}",
+                f"{M['hall']} ({u.e(pr.intake_kcal)}), to {u.d(look.end)}{goal}",
             )
         )
+    if pr is not None:
         for rate, est in sorted(pr.intake_for_rate_kcal.items()):
             rows.append(
                 (

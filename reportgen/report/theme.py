@@ -37,7 +37,6 @@ PANEL = "#F2F4F5"  # table stripes, cards (L* 96)
 POINTS = "#8FA3B3"  # raw weigh-ins (L* 66)
 WARM = "#C76B1E"  # intake, lean mass (L* 55), reads mid-grey
 DEEP = "#3B2F63"  # second dark series: energy ratings, fat mass (L* 23)
-SOFT_WARM = "#F3D9BF"  # deficit gap fill (L* 88)
 OUTLIER = "#B0282E"  # excluded weigh-ins, drawn as crosses (L* 40)
 PHASE_FILLS = ("#EEF0EE", "#E2E6EA")  # alternating phase shading (L* 94 / 91)
 SEVERITY = {"urgent": "#B0282E", "caution": "#C76B1E", "info": "#5C6770"}

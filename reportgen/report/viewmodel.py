@@ -7,14 +7,18 @@ thresholds named below, so the wording stays free of numbers it would have to co
 
 from __future__ import annotations
 
+import datetime as dt
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
 
+from reportgen.analysis.quality import FLAG_INTAKE_DAYS
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate, PhaseResult
 
+from .outlook import outlook
 from .theme import missing_glyphs
 from .units import Units
 
@@ -89,7 +93,11 @@ def _estimate(u: Units, est: Estimate, kind: str, key: str) -> Figure:
     return Figure(key, value=u.fmt(est.value, kind), interval=u.interval(est, kind))
 
 
-def _rate_band(pct: float | None) -> str:
+def _rate_band(pct: float | None, rapid: bool) -> str:
+    """How the narrative words the current rate; "fast" exactly when the rapid-loss rule
+    (``science.flags.rapid_loss``, the rule of the rapid-loss flag) holds."""
+    if rapid:
+        return "fast"
     if pct is None:
         return "unknown"
     loss = -pct
@@ -99,9 +107,7 @@ def _rate_band(pct: float | None) -> str:
         return "gain"
     if loss < RATE_TARGET_LOW_PCT:
         return "slow"
-    if loss <= RATE_FAST_PCT:
-        return "target"
-    return "fast"
+    return "target"
 
 
 def _adapt_state(est: Estimate, pct: Estimate, implausible: bool) -> str:
@@ -162,22 +168,69 @@ def _signal_view(u: Units, s: Any) -> dict[str, str]:
     }
 
 
+def _beside(u: Units, value: float, limit: float, fmt: Callable[..., str]) -> str:
+    """``value`` formatted as the report prints it, never printed equal to ``limit``.
+
+    When rounding would print the value as the limit itself (1,196 and 1,200 kcal/day both
+    read "1,200"), it is printed with one more step of precision (kcal: whole numbers)."""
+    text = fmt(value)
+    if text == fmt(limit) and value != limit:
+        return fmt(value, fine=True)
+    return text
+
+
 def _flag_view(u: Units, f: Any) -> dict[str, Any]:
-    values: dict[str, str] = {}
-    for k, v in sorted(f.values.items()):
-        if isinstance(v, str):
-            values[k] = v
-        elif k.endswith("_kcal"):
-            values[k] = u.e(float(v))
-        elif k.endswith("_kg"):
-            values[k] = u.w(float(v))
-        elif k.endswith("_pct") or k.endswith("pct_per_week"):
-            values[k] = u.pct(float(v))
-        elif k.endswith("_years") or k == "weeks":
-            values[k] = u.number(float(v), 0)
-        else:
-            values[k] = u.number(float(v), 1)
-    return {"code": f.code, "severity": f.severity, "values": values}
+    """A flag as the report words it: the client's value and the limit, both formatted.
+
+    ``value``/``limit`` are empty for flags without a number (pregnancy).  ``window`` names
+    what the value is (e.g. the intake window); ``weeks`` the run of fast weeks."""
+    v = dict(f.values)
+
+    def energy(x: float, fine: bool = False) -> str:
+        return f"{round(float(u.energy(x))):,} {u.energy_label}" if fine else u.e(x)
+
+    def rate(x: float, fine: bool = False) -> str:
+        return u.pct(abs(x), dp=3 if fine else 2)
+
+    def pct(x: float, fine: bool = False) -> str:
+        return u.pct(abs(x), dp=2 if fine else 1)
+
+    def number(x: float, fine: bool = False) -> str:
+        return u.number(x, 2 if fine else 1)
+
+    out: dict[str, Any] = {
+        "code": f.code,
+        "severity": f.severity,
+        "value": "",
+        "limit": "",
+        "weeks": "",
+        "window": "",
+    }
+    if f.code in ("low-intake", "very-low-intake") and "intake_kcal" in v:
+        out["value"] = _beside(u, float(v["intake_kcal"]), float(v["threshold_kcal"]), energy)
+        out["limit"] = u.e(float(v["threshold_kcal"]))
+        out["window"] = str(FLAG_INTAKE_DAYS)
+    elif f.code == "rapid-loss":
+        limit = float(v["threshold_pct_per_week"])
+        shown = v.get("current_rate_pct_per_week", v.get("mean_rate_pct_per_week"))
+        if shown is not None:
+            out["value"] = _beside(u, float(shown), limit, rate)
+        out["limit"] = rate(limit)
+        if "weeks" in v:
+            out["weeks"] = u.number(float(v["weeks"]), 0)
+    elif f.code == "low-bmi":
+        out["value"] = _beside(u, float(v["bmi_kg_m2"]), float(v["threshold"]), number)
+        out["limit"] = number(float(v["threshold"]))
+    elif f.code == "minor" and "age_years" in v:
+        out["value"] = u.number(float(v["age_years"]), 0)
+        out["limit"] = u.number(float(v["threshold_years"]), 0)
+    elif f.code == "essential-fat":
+        out["value"] = _beside(u, float(v["bodyfat_pct"]), float(v["threshold_pct"]), pct)
+        out["limit"] = pct(float(v["threshold_pct"]))
+    elif f.code == "implausible-adaptation":
+        out["value"] = _beside(u, float(v["adaptation_pct"]), float(v["threshold_pct"]), pct)
+        out["limit"] = pct(float(v["threshold_pct"]))
+    return out
 
 
 def client_view(a: ClientAnalysis, config: Config) -> ClientView:
@@ -195,6 +248,9 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
             "status": ph.status,
         }
 
+    # No weigh-in inside the report month: the trend figures would be extrapolations, so
+    # they are not shown as this month's (the narrative says so on page 1).
+    no_month_data = a.quality.weight_days == 0
     figs: dict[str, Figure] = {}
     f = _estimate(u, a.current_weight_kg, "w", "weight")
     figs["weight"] = f
@@ -209,6 +265,9 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
             if pct.low is not None and pct.high is not None:
                 f.detail += f" ({u.interval(pct, 'pct_change')})"
     figs["rate"] = f
+    if no_month_data:
+        for key in ("weight", "change", "rate"):
+            figs[key] = Figure(key, reason="no-data-in-month")
     intake = Figure("intake")
     if a.month_mean_intake_kcal is not None:
         intake.value = u.e(a.month_mean_intake_kcal)
@@ -231,12 +290,19 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     figs["bodyfat"] = _bodyfat_figure(a, u)
 
     implausible = any(fl.code == "implausible-adaptation" for fl in a.flags)
-    month_change, rate_pct = a.month_change_kg.value, a.weekly_rate_pct.value
+    # the words say "fast" exactly when the rapid-loss flag (science.flags.rapid_loss) is up
+    rapid = any(fl.code == "rapid-loss" for fl in a.flags)
+    look = None if no_month_data else outlook(a, config.report.projection_weeks, _display(u))
+    last_weigh_in = _last_weigh_in(a)
     story: dict[str, Any] = {
         "change_dir": _direction(a.month_change_kg),
-        "change_abs": "" if month_change is None else u.w(abs(month_change)),
-        "rate_band": _rate_band(rate_pct),
-        "rate_pct_abs": "" if rate_pct is None else u.pct(abs(rate_pct), dp=2),
+        "change_abs": "" if a.month_change_kg.value is None else u.w(abs(a.month_change_kg.value)),
+        "rate_band": "unknown" if no_month_data else _rate_band(a.weekly_rate_pct.value, rapid),
+        "no_month_data": no_month_data,
+        "last_weigh_in": u.d(last_weigh_in) if last_weigh_in else "",
+        "rate_pct_abs": ""
+        if a.weekly_rate_pct.value is None
+        else u.pct(abs(a.weekly_rate_pct.value), dp=2),
         "rate_pct": u.pct(a.weekly_rate_pct.value, dp=2, signed=True)
         if a.weekly_rate_pct.known
         else "",
@@ -255,11 +321,17 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "weeks_in_deficit": str((ph.days_in_deficit or 0) // 7) if ph else "",
         "sessions": str(len(a.bodycomp)),
         "scale_bodyfat": bool(np.isfinite(a.log.body_fat_pct).any()),
-        "goal": "",
+        "goal": u.w(a.client.goal_weight_kg) if a.client.goal_weight_kg is not None else "",
+        "goal_status": "none",
+        "goal_direction": "",
         "goal_date": "",
-        "projection_weeks": str(config.report.projection_weeks),
+        "goal_earliest": "",
+        "goal_latest": "",
+        "projection_weeks": "",
+        "projection_date": "",
         "projection_end": "",
         "projection_band": "",
+        "projection_dir": "",
     }
     if ph is not None:
         story["adapt_state"] = _adapt_state(ph.adaptation_kcal, ph.adaptation_pct, implausible)
@@ -267,15 +339,29 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
             story["adapt_abs"] = u.e(abs(ph.adaptation_kcal.value))
         adapt_pct = ph.adaptation_pct.value
         story["adapt_large"] = bool(adapt_pct is not None and abs(adapt_pct) >= ADAPT_LARGE_PCT)
-    pr = a.projection
-    if pr is not None and len(pr.weight_kg):
-        story["projection_end"] = u.w(float(pr.weight_kg[-1]))
-        story["projection_band"] = (
-            f"{u.w(float(pr.low_kg[-1]), unit=False)}–{u.w(float(pr.high_kg[-1]))}"
-        )
-        if pr.goal_weight_kg is not None:
-            story["goal"] = u.w(pr.goal_weight_kg)
-            story["goal_date"] = u.d(pr.goal_date) if pr.goal_date else ""
+    if look is not None and look.days:
+        story["projection_weeks"] = look.weeks_text
+        story["projection_date"] = u.d(look.end)
+        story["projection_end"] = u.w(look.weight_kg)
+        story["projection_band"] = f"{u.w(look.low_kg, unit=False)}–{u.w(look.high_kg)}"
+        start = a.current_weight_kg.value
+        if start is not None:
+            delta = _display(u)(look.weight_kg) - _display(u)(start)
+            story["projection_dir"] = "flat" if delta == 0 else ("down" if delta < 0 else "up")
+        story["goal_status"] = look.goal_status
+        story["goal_direction"] = look.goal_direction
+        story["goal_date"] = u.d(look.goal_date) if look.goal_date else ""
+        story["goal_earliest"] = u.d(look.goal_earliest) if look.goal_earliest else ""
+        story["goal_latest"] = u.d(look.goal_latest) if look.goal_latest else ""
+    elif a.client.goal_weight_kg is not None and a.current_weight_kg.known and not no_month_data:
+        from .outlook import goal_status
+
+        kind = ph.kind if ph is not None else None
+        cur = float(a.current_weight_kg.value)  # type: ignore[arg-type]
+        direction, status = goal_status(cur, a.client.goal_weight_kg, kind, _display(u))
+        story["goal_status"] = status if status == "reached" else "none"
+        story["goal_direction"] = direction
+    extra_projection_days = look.days if look is not None else 0
 
     q = a.quality
     quality = {
@@ -308,6 +394,14 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "bmi": u.number(a.bmi, 1) if a.bmi is not None else "",
         "age": str(a.age_years) if a.age_years is not None else "",
         "notes": list(a.notes),
+        "projection_days": extra_projection_days,
+        # the signals chart draws a dashed line only where there is a pre-deficit baseline
+        "signal_baselines": any(
+            s.baseline is not None and s.days > 0
+            for s in a.signals
+            if s.name in ("steps", "hunger", "energy")
+        ),
+        "planned_intake": False,  # set by the layout: whether the energy chart draws it
     }
     return ClientView(
         practice=practice_view(config),
@@ -328,6 +422,18 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         sections=config.report.sections,
         extra=extra,
     )
+
+
+def _display(u: Units) -> Any:
+    """A weight rounded as the report prints it (one decimal in the display unit)."""
+    return lambda kg: round(float(u.weight(kg)), 1)
+
+
+def _last_weigh_in(a: ClientAnalysis) -> dt.date | None:
+    ok = np.isfinite(a.log.weight_used_kg) if a.log.n_days else np.zeros(0, bool)
+    if not ok.any():
+        return None
+    return dt.date.fromisoformat(str(a.log.dates[ok][-1].astype("datetime64[D]")))
 
 
 def _direction(est: Estimate) -> str:

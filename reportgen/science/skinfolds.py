@@ -178,9 +178,12 @@ class BodyFatEstimate:
     def method(self) -> MethodUsed:
         """The methods-page entry for this estimate."""
         if self.density_se_g_ml is not None:
-            see = f"SEE {self.density_se_g_ml:.4f} g/ml (about {self.se_pct:.1f} %BF here)"
+            see = (
+                f"standard error of estimate {self.density_se_g_ml:.4f} g/ml "
+                f"(about {self.se_pct:.1f} %BF here)"
+            )
         else:
-            see = f"SEE about {self.se_pct:.1f} %BF"
+            see = f"standard error of estimate about {self.se_pct:.1f} %BF"
         name = self.name
         if self.conversion in CONVERSION_NAMES:
             name = f"{name}; density to %BF by {CONVERSION_NAMES[self.conversion]}"

@@ -10,8 +10,9 @@ hides.  This module estimates it two ways:
   smoother, with a second, robust pass that down-weights spikes.  Gives the
   level and the slope with their variances on every calendar day, missing
   days included.
-* :func:`ema` - exponential smoothing with alpha 0.1/day, kept for comparison
-  (common practice in weight self-monitoring, no single source).
+* :func:`ema` - plain exponential smoothing, not used by the reports: a
+  smoothing baseline for the accuracy benchmark and a check of the
+  local-level filter (common practice, no single source).
 
 Rates over windows with noise-aware standard errors are in
 ``reportgen.science.rates``.

@@ -1,0 +1,390 @@
+"""Every statement a client acts on, checked against the analysis it came from.
+
+The "claims" test renders each sample client's report and checks the numbers of page 1
+against the analysis, formatted here independently (one decimal for kg, energy to 10 kcal,
+dates as "%d %b %Y"), and that the projection horizon, its end date and the goal status
+agree between the text and the projection chart.  The other tests pin one wrong statement
+each: horizon, goal reached, provenance tags, flags in words, one rapid-loss rule,
+captions, a month without data, and the batch counts.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+import re
+from functools import cache
+from pathlib import Path
+
+import numpy as np
+import pytest
+from _report_helpers import SAMPLE_BOOK, SAMPLE_MONTH, analyse_book, pdf_pages_text, sample_analysis
+from click.testing import CliRunner
+
+from reportgen.config import Config, ReportSettings
+from reportgen.report import (
+    make_overview_line,
+    render_client_report,
+    render_overview,
+    render_practitioner_summary,
+)
+from reportgen.report.charts import FIGURES
+from reportgen.report.client import chart_context, projection_days
+from reportgen.report.outlook import goal_status, outlook
+from reportgen.report.viewmodel import client_view
+from reportgen.results import ClientAnalysis
+from reportgen.science.flags import FlagInputs, rapid_loss, safety_flags
+
+CLIENTS = ("c001", "c002", "c003", "c004", "c005", "c006", "c008", "c009", "c010", "c011", "c012")
+MINUS = "\u2212"
+
+
+def flat(text: str) -> str:
+    return " ".join(text.split())
+
+
+def kg(x: float, signed: bool = False) -> str:
+    s = f"{abs(x):.1f} kg"
+    return (MINUS if x < 0 and s != "0.0 kg" else ("+" if signed and x > 0 else "")) + s
+
+
+def kcal(x: float) -> str:
+    v = round(x / 10) * 10
+    return (MINUS if v < 0 else "") + f"{abs(v):,.0f} kcal/day"
+
+
+def day(d: dt.date) -> str:
+    return d.strftime("%d %b %Y")
+
+
+def page_text(a: ClientAnalysis, config: Config) -> list[str]:
+    return [flat(t) for t in pdf_pages_text(render_client_report(a, config))]
+
+
+@cache
+def sample_pages(client_id: str, weeks: int = 8) -> tuple[str, ...]:
+    """The rendered client report of a sample client, per page (rendered once per run)."""
+    config = Config(report=ReportSettings(projection_weeks=weeks))
+    return tuple(page_text(sample_analysis(client_id), config))
+
+
+@cache
+def sample_practitioner(client_id: str) -> str:
+    return flat(
+        " ".join(pdf_pages_text(render_practitioner_summary(sample_analysis(client_id), Config())))
+    )
+
+
+def projection_line_end(a: ClientAnalysis, config: Config) -> dt.date | None:
+    """Last day of the dashed projected line as drawn in the chart."""
+    ctx = chart_context(a, config, 170.0, {k: k for k in _chart_labels()})
+    fig = FIGURES["projection"](a, ctx)
+    if fig is None:
+        return None
+    dashed = [ln for ln in fig.axes[0].get_lines() if ln.get_linestyle() not in ("-", "None")]
+    x_end = max(float(np.max(ln.get_xdata())) for ln in dashed)
+    return dt.date(1970, 1, 1) + dt.timedelta(days=round(x_end))
+
+
+def _chart_labels() -> list[str]:
+    from reportgen.report.wording import Wording
+
+    return list(Wording(Config(), "report/client.j2").labels["chart"])
+
+
+@pytest.mark.parametrize("client_id", CLIENTS)
+def test_claims_on_page_one_match_the_analysis(client_id: str) -> None:
+    a = sample_analysis(client_id)
+    config = Config()
+    pages = sample_pages(client_id)
+    p1 = pages[0]
+    assert len(pages) <= 4, f"{client_id}: {len(pages)} pages"
+    if a.quality.weight_days and a.current_weight_kg.known:
+        assert kg(a.current_weight_kg.value) in p1  # type: ignore[arg-type]
+    if a.quality.weight_days and a.month_change_kg.known:
+        change = a.month_change_kg.value
+        assert kg(change, signed=True) in p1  # type: ignore[arg-type]
+        if abs(change) >= 0.1:  # type: ignore[arg-type]
+            assert f"by {kg(abs(change))} in November 2026" in p1  # type: ignore[arg-type]
+    rate = a.weekly_rate_kg.value
+    if a.quality.weight_days and rate is not None:
+        assert f"{MINUS if rate < 0 else '+'}{abs(rate):.2f} kg/week" in p1
+    if a.month_mean_intake_kcal is not None:
+        assert kcal(a.month_mean_intake_kcal) in p1
+    ph = a.current_phase
+    if ph is not None and ph.observed_tdee_kcal.known and not a.special_handling:
+        assert kcal(ph.observed_tdee_kcal.value) in p1  # type: ignore[arg-type]
+    if ph is not None and ph.realised_deficit_kcal.known and not a.special_handling:
+        assert kcal(ph.realised_deficit_kcal.value) in p1  # type: ignore[arg-type]
+
+    # horizon, end date and goal: text and chart agree with the configured weeks
+    look = outlook(a, config.report.projection_weeks)
+    if look is None or a.special_handling:
+        assert "projected to reach" not in p1
+        return
+    horizon = min(7 * config.report.projection_weeks, len(a.projection.dates) - 1)  # type: ignore[union-attr]
+    assert look.days == horizon == projection_days(a, config)
+    end = a.as_of + dt.timedelta(days=horizon)
+    assert projection_line_end(a, config) == end
+    reached = (
+        round(a.current_weight_kg.value, 1) <= round(a.client.goal_weight_kg, 1)
+        if a.client.goal_weight_kg is not None
+        else False
+    )  # type: ignore[arg-type]
+    if reached and (ph is None or ph.kind != "surplus"):
+        assert f"You have reached your goal of {kg(a.client.goal_weight_kg)}" in p1  # type: ignore[arg-type]
+        assert "not reached" not in p1 and "would be reached" not in p1
+    else:
+        projected = a.projection.weight_kg[horizon]  # type: ignore[union-attr]
+        assert f"projected to reach about {kg(projected)}" in p1
+        assert f"by {day(end)}, {horizon // 7} weeks from now" in p1
+        if look.goal_date is not None:
+            assert a.as_of <= look.goal_date <= end
+            assert f"would be reached around {day(look.goal_date)}" in p1
+
+
+def test_projection_follows_the_configured_weeks_in_text_and_chart() -> None:
+    a = sample_analysis("c001")
+    p = a.projection
+    assert p is not None
+    for weeks in (4, 8, 16):
+        config = Config(report=ReportSettings(projection_weeks=weeks))
+        p1 = sample_pages("c001", weeks)[0]
+        end = a.as_of + dt.timedelta(days=7 * weeks)
+        assert f"projected to reach about {kg(p.weight_kg[7 * weeks])}" in p1
+        assert f"by {day(end)}, {weeks} weeks from now" in p1
+        assert projection_line_end(a, config) == end
+    # the 12-week value never appears under a shorter label
+    p1 = sample_pages("c001", 4)[0]
+    if kg(p.weight_kg[-1]) != kg(p.weight_kg[28]):
+        assert f"about {kg(p.weight_kg[-1])}" not in p1
+
+
+def test_goal_already_reached_turns_advice_to_maintenance() -> None:
+    a = sample_analysis("c008")  # trend 64.9 kg, goal 65.0 kg, eating about 1,170 kcal/day
+    assert a.client.goal_weight_kg is not None and a.current_weight_kg.known
+    assert round(a.current_weight_kg.value, 1) <= a.client.goal_weight_kg  # type: ignore[arg-type]
+    p1 = sample_pages("c008")[0]
+    assert "You have reached your goal of 65.0 kg" in p1
+    assert "maintenance" in p1
+    assert "is not reached within" not in p1
+    assert "goal 65.0 kg reached" in sample_practitioner("c008")
+
+
+@pytest.mark.parametrize(
+    ("current", "goal", "kind", "expected"),
+    [
+        (64.94, 65.0, "deficit", ("loss", "reached")),  # printed 64.9 <= 65.0
+        (65.04, 65.0, "deficit", ("loss", "reached")),  # printed 65.0: at the goal
+        (65.06, 65.0, "deficit", ("loss", "open")),  # printed 65.1
+        (60.0, 65.0, "deficit", ("loss", "reached")),  # below a loss goal
+        (60.0, 65.0, "maintenance", ("loss", "reached")),
+        (60.0, 65.0, "surplus", ("gain", "open")),  # a gain goal only in a surplus
+        (66.0, 65.0, "surplus", ("loss", "open")),  # goal below: not a gain goal
+        (70.0, None, "deficit", ("", "none")),
+    ],
+)
+def test_goal_status_rule(
+    current: float, goal: float | None, kind: str, expected: tuple[str, str]
+) -> None:
+    assert goal_status(current, goal, kind) == expected
+
+
+BANNED = ("from memory", "SEE SEE", "+ Siri", "Siri 1961 + ", "(SEE ", "SEE fat", "for comparison")
+
+
+@pytest.mark.parametrize("client_id", CLIENTS)
+def test_no_provenance_tags_in_any_pdf(client_id: str) -> None:
+    for text in (" ".join(sample_pages(client_id)), sample_practitioner(client_id)):
+        for tag in BANNED:
+            assert tag not in text, f"{client_id}: {tag!r} printed"
+        assert "Exponential smoothing" not in text and "exponential moving" not in text
+
+
+def test_client_report_has_no_equations_or_references() -> None:
+    text = " ".join(sample_pages("c001"))
+    assert "doi:" not in text and "standard error" not in text
+    assert "How we estimate this" in text and "not medical advice" in text
+
+
+def test_flag_states_value_as_shown_limit_and_what_to_do() -> None:
+    a = sample_analysis("c008")
+    flag = next(f for f in a.flags if f.code == "low-intake")
+    value, limit = float(flag.values["intake_kcal"]), float(flag.values["threshold_kcal"])
+    assert value < limit and round(value / 10) * 10 == limit  # rounds onto the limit
+    text = " ".join(sample_pages("c008"))
+    shown = f"{round(value):,} kcal/day"  # one step finer, so it never reads as the limit
+    assert (
+        f"Average logged intake over the last 14 days: {shown}; the lower limit is 1,200 kcal/day."
+        in text
+    )
+    assert "Talk to your coach" in text
+    practitioner = sample_practitioner("c008")
+    assert f"{shown}; the lower limit is 1,200 kcal/day" in practitioner
+    for raw in ("intake kcal", "threshold kcal", "_kcal", "threshold_"):
+        assert raw not in text and raw not in practitioner
+
+
+def test_one_rapid_loss_rule_for_words_and_flags() -> None:
+    """The rule (Helms, Aragon & Fitschen 2014: 0.5-1.0 %/week) and its two users."""
+    assert rapid_loss(-1.19) and not rapid_loss(-0.99) and not rapid_loss(None)
+    assert rapid_loss(-0.8, (-1.2, -1.1))  # two fast weeks in a row
+    assert not rapid_loss(-0.8, (-1.2, -0.9))
+    flags = safety_flags(FlagInputs(current_rate_pct=-1.19))
+    assert [f.code for f in flags] == ["rapid-loss"]
+    assert flags[0].values["current_rate_pct_per_week"] == pytest.approx(-1.19, abs=1e-12)
+    assert safety_flags(FlagInputs(current_rate_pct=-0.9)) == ()
+    for cid in CLIENTS:
+        a = sample_analysis(cid)
+        vm = client_view(a, Config())
+        flagged = any(f.code == "rapid-loss" for f in a.flags)
+        if a.weekly_rate_pct.known:  # the printed rate alone raises the flag past 1 %/week
+            assert flagged >= rapid_loss(a.weekly_rate_pct.value), cid
+        assert (vm.story["rate_band"] == "fast") == flagged, cid
+        text = " ".join(sample_pages(cid))
+        assert ("faster than the usual recommendation" in text) == flagged, cid
+        assert ("Weight is coming off faster than recommended" in text) == flagged, cid
+    # c008: -1.19 %/week, the case where words and flags used to disagree
+    c008 = sample_analysis("c008")
+    assert c008.weekly_rate_pct.value is not None and c008.weekly_rate_pct.value < -1.0
+    assert any(f.code == "rapid-loss" for f in c008.flags)
+
+
+def test_captions_describe_only_what_is_drawn(tmp_path: Path) -> None:
+    from _report_helpers import write_tiny_book
+
+    # a book that starts in deficit has no baseline before it: no dashed line is drawn
+    book = write_tiny_book(tmp_path / "b", "Nell Ashby", 30)
+    a = analyse_book(book, "t001")
+    vm = client_view(a, Config())
+    assert not vm.extra["signal_baselines"]
+    text = flat(" ".join(page_text(a, Config())))
+    assert "dashed line" not in text
+    c1 = " ".join(sample_pages("c001"))
+    assert "the dashed line marks your level before the first deficit" in c1
+    assert "The dotted line is the intake planned for each phase" in c1
+    for gone in ("shaded gap", "The shaded gap between the two lines"):
+        assert gone not in c1
+
+
+def _book_without_november(folder: Path, intake_in_november: bool = True) -> Path:
+    folder.mkdir(parents=True)
+    (folder / "logs").mkdir()
+    (folder / "clients.csv").write_text(
+        "client_id,name,sex,birth_date,height_cm,email,pregnant,goal_weight_kg\n"
+        "t001,Nell Ashby,female,1990-05-05,165,t@example.org,no,\n",
+        encoding="utf-8",
+    )
+    (folder / "phases.csv").write_text(
+        "client_id,name,start,end,kind,target_kcal\nt001,Spring cut,2026-09-01,,deficit,1700\n",
+        encoding="utf-8",
+    )
+    lines = ["date,weight_kg,intake_kcal,steps,hunger,energy,sleep_h"]
+    # 1 Sep to 30 Nov with weigh-ins until 31 Oct, or the whole log ending on 31 Oct
+    for i in range(91 if intake_in_november else 61):
+        d = dt.date(2026, 9, 1) + dt.timedelta(days=i)
+        w = f"{72.0 - 0.05 * i:.2f}" if d.month < 11 else ""
+        lines.append(f"{d.isoformat()},{w},1750,8000,4,6,7.0")
+    (folder / "logs" / "t001.csv").write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return folder
+
+
+@pytest.mark.parametrize("intake_in_november", [True, False])
+def test_month_without_weigh_ins_is_said_and_not_extrapolated(
+    tmp_path: Path, intake_in_november: bool
+) -> None:
+    from reportgen.cli import main
+
+    book = _book_without_november(tmp_path / "book", intake_in_november)
+    a = analyse_book(book, "t001")
+    assert a.quality.weight_days == 0
+    pages = page_text(a, Config())
+    p1 = pages[0]
+    assert "No weigh-ins were logged in November 2026" in p1
+    assert "the last one was on 31 Oct 2026" in p1
+    assert "came down by" not in p1 and "projected to reach" not in p1
+    assert p1.count("Not measured no weigh-ins in this month") == 3  # weight, change, rate
+    overview = flat(
+        " ".join(
+            pdf_pages_text(render_overview([make_overview_line(a)], [], SAMPLE_MONTH, Config()))
+        )
+    )
+    assert "no weigh-ins this month" in overview
+    out = tmp_path / "out"
+    result = CliRunner().invoke(
+        main,
+        [
+            "batch",
+            str(book),
+            "--month",
+            SAMPLE_MONTH,
+            "--out",
+            str(out),
+            "--quiet",
+            "--workers",
+            "1",
+        ],
+    )
+    assert result.exit_code == 0, result.output
+    manifest = json.loads((out / SAMPLE_MONTH / "manifest.json").read_text(encoding="utf-8"))
+    codes = [w["code"] for w in manifest["clients"]["t001"]["warnings"]]
+    assert "no-weigh-ins-in-month" in codes
+
+
+def test_batch_counts_a_failed_client_once(tmp_path: Path) -> None:
+    from reportgen.cli import main
+
+    out = tmp_path / "out"
+    result = CliRunner().invoke(
+        main,
+        [
+            "batch",
+            str(SAMPLE_BOOK),
+            "--month",
+            SAMPLE_MONTH,
+            "--out",
+            str(out),
+            "--clients",
+            "c001,c007",
+            "--workers",
+            "1",
+        ],
+    )
+    assert result.exit_code == 1
+    rows = {
+        m.group(1).strip(): int(m.group(2))
+        for m in re.finditer(r"│\s*([a-z ]+?)\s*│\s*(\d+)\s*│", result.output)
+    }
+    assert rows["done"] == 1 and rows["failed"] == 1
+    assert rows["of these with warnings"] <= rows["done"]
+    manifest = json.loads((out / SAMPLE_MONTH / "manifest.json").read_text(encoding="utf-8"))
+    assert manifest["clients"]["c007"]["status"] == "error"
+    overview = flat(" ".join(pdf_pages_text((out / SAMPLE_MONTH / "overview.pdf").read_bytes())))
+    assert "Callum Reid" in overview and "c007" in overview
+
+
+def test_overview_labels_body_fat_by_its_span() -> None:
+    lines = [make_overview_line(sample_analysis("c001"))]
+    text = flat(" ".join(pdf_pages_text(render_overview(lines, [], SAMPLE_MONTH, Config()))))
+    assert "Body fat, this phase" in text
+    card = sample_pages("c001")[0]
+    assert "since the first session" in card
+
+
+def test_goal_date_comes_with_the_range_of_the_projection_band() -> None:
+    """c005's goal lies inside the horizon: the date is the central path's first day at the
+    goal; the earliest is where the band's near edge gets there (the far edge does not)."""
+    a = sample_analysis("c005")
+    look = outlook(a, 8)
+    assert look is not None and look.goal_status == "on-track" and look.goal_date is not None
+    p = a.projection
+    assert p is not None and a.client.goal_weight_kg is not None
+    day_index = (look.goal_date - p.start).days
+    assert p.weight_kg[day_index] <= a.client.goal_weight_kg < p.weight_kg[day_index - 1]
+    assert look.goal_earliest is not None and look.goal_earliest <= look.goal_date
+    text = sample_pages("c005")[0]
+    assert f"would be reached around {day(look.goal_date)}" in text
+    if look.goal_latest is None:
+        assert f"({day(look.goal_earliest)} at the earliest)" in text
+    else:
+        assert f"(likely between {day(look.goal_earliest)} and {day(look.goal_latest)})" in text

@@ -1,0 +1,53 @@
+"""The month's methods document: written by the batch beside the overview, listed in the
+manifest, naming every equation used for the month's clients and the safety rules."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+from _report_helpers import SAMPLE_BOOK, SAMPLE_MONTH, pdf_pages_text, sample_analysis
+from click.testing import CliRunner
+
+from reportgen.cli import main
+from reportgen.config import Config
+from reportgen.manifest import sha256_bytes
+from reportgen.report.methods_doc import methods_used, render_methods
+from reportgen.science import flags as F
+
+
+def flat(data: bytes) -> str:
+    return " ".join(" ".join(pdf_pages_text(data)).split())
+
+
+def test_methods_document_lists_each_method_once_with_its_clients() -> None:
+    analyses = [sample_analysis(c) for c in ("c001", "c002", "c008")]
+    used = methods_used([a.methods for a in analyses])
+    codes = [m.code for m, _ in used]
+    assert len(codes) == len(set(codes)) and "ema" not in codes
+    for m, n in used:
+        assert n == sum(any(x.code == m.code for x in a.methods) for a in analyses)
+    text = flat(render_methods([a.methods for a in analyses], 3, SAMPLE_MONTH, Config()))
+    assert "Methods · November 2026" in text and "3 client reports" in text
+    for m, n in used:
+        assert " ".join(m.name.split()) in text
+        assert f"Used for {n} client" in text
+    # thresholds come from the rules themselves (science.flags)
+    assert f"loss over {F.RAPID_LOSS_PCT_PER_WEEK:.1f} % of body weight" in text
+    assert f"BMI under {F.BMI_UNDERWEIGHT:.1f} kg/m²" in text
+    for tag in ("from memory", "SEE SEE", "+ Siri", "(SEE "):
+        assert tag not in text
+
+
+def test_batch_writes_methods_pdf_beside_the_overview(tmp_path: Path) -> None:
+    out = tmp_path / "out"
+    args = ["batch", str(SAMPLE_BOOK), "--month", SAMPLE_MONTH, "--out", str(out)]
+    result = CliRunner().invoke(
+        main, [*args, "--clients", "c001,c008", "--quiet", "--workers", "1"]
+    )
+    assert result.exit_code == 0, result.output
+    month = out / SAMPLE_MONTH
+    data = (month / "methods.pdf").read_bytes()
+    manifest = json.loads((month / "manifest.json").read_text(encoding="utf-8"))
+    assert manifest["files"]["methods.pdf"] == sha256_bytes(data)
+    assert "2 client reports" in flat(data)
