@@ -36,6 +36,9 @@ REASON_CODES: tuple[str, ...] = (
     "baseline-phase",  # adaptation of the baseline phase itself (it is the reference)
     "early-phase",  # under 14 usable days after the first 7 of a phase that changed intake
     "not-estimable",  # the computation gave no finite value
+    "not-assessed",  # adaptation evidence needs the client's own baseline and observed TDEE
+    "not-measured",  # activity change: too few logged step counts in either window
+    "no-intake",  # logging check without logged intake
 )
 # PhaseResult.status:
 PHASE_STATUSES: tuple[str, ...] = ("ok", "running", "too-few-days", "special-handling")
@@ -46,7 +49,7 @@ PHASE_NOTE_CODES: tuple[str, ...] = (
     "expected-lower-confidence",  # expected TDEE from a resting equation x activity factor
     "baseline-first-weeks",  # baseline from the first weeks of data, not a maintenance phase
     "baseline-phase",  # this phase is the baseline: expected TDEE = its observed TDEE
-    "implausible-adaptation",  # |adaptation| > 20 % of expected: more likely logging/data
+    "implausible-adaptation",  # data alone far outside the literature for this cut: logging?
     "composition-change-from-skinfolds",  # fat/lean change from two skinfold sessions
     "composition-change-from-forbes",  # fat/lean change from the Forbes partition
 )
@@ -81,6 +84,9 @@ class Estimate:
     @classmethod
     def missing(cls, reason: str) -> Estimate:
         return cls(value=None, reason=reason)
+
+
+NOT_ASSESSED = Estimate.missing("not-assessed")
 
 
 @dataclass(frozen=True)
@@ -139,7 +145,9 @@ class PhaseResult:
     observed_tdee_kcal: Estimate
     expected_tdee_kcal: Estimate
     expected_method: str | None  # "own-baseline" or "resting-equation" (lower confidence)
-    adaptation_kcal: Estimate  # observed - expected; negative = below expected
+    # combined estimate (data and literature weighed by precision, with the logging-drift
+    # component); negative = below expected.  See reportgen.science.adaptation.
+    adaptation_kcal: Estimate
     adaptation_pct: Estimate  # of expected
     deficit_depth_pct: float | None  # realised deficit as % of maintenance
     days_in_deficit: int | None  # consecutive deficit days up to window end
@@ -149,6 +157,19 @@ class PhaseResult:
     lean_mass_change_kg: float | None
     status: str  # "ok", "running", "too-few-days", "special-handling", ...
     notes: tuple[str, ...] = ()
+    # The evidence behind adaptation_kcal, against the client's baseline (missing with
+    # reason "not-assessed" where there is no own baseline or no observed TDEE):
+    adaptation_data_kcal: Estimate = NOT_ASSESSED  # "your data alone"
+    adaptation_typical_kcal: Estimate = NOT_ASSESSED  # "typical for a deficit like this"
+    adaptation_implausible: bool = False  # data far outside the literature for this cut
+    logging_drift_probability: float | None = None  # weight of the logging-drift component
+    # the change in expenditure from the baseline, in parts (data alone)
+    expenditure_change_kcal: Estimate = NOT_ASSESSED
+    body_size_change_kcal: Estimate = NOT_ASSESSED  # expected: smaller body, less food
+    activity_change_kcal: Estimate = NOT_ASSESSED  # logged steps; "not-measured" without
+    metabolic_change_kcal: Estimate = NOT_ASSESSED  # remainder
+    implied_intake_kcal: Estimate = NOT_ASSESSED  # intake the weights imply
+    logging_gap_kcal: Estimate = NOT_ASSESSED  # logged minus implied intake
 
 
 @dataclass(frozen=True)

@@ -37,7 +37,11 @@ SUMMARY_COLUMNS: tuple[str, ...] = (
     "observed_tdee_high_kcal",
     "expected_tdee_kcal",
     "adaptation_kcal",
+    "adaptation_low_kcal",
+    "adaptation_high_kcal",
     "adaptation_pct",
+    "activity_change_kcal",
+    "implied_intake_kcal",
     "bodyfat_start_pct",
     "bodyfat_end_pct",
     "fat_mass_change_kg",
@@ -58,7 +62,11 @@ DECIMALS: dict[str, int] = {
     "observed_tdee_high_kcal": 0,
     "expected_tdee_kcal": 0,
     "adaptation_kcal": 0,
+    "adaptation_low_kcal": 0,
+    "adaptation_high_kcal": 0,
     "adaptation_pct": 1,
+    "activity_change_kcal": 0,
+    "implied_intake_kcal": 0,
     "bodyfat_start_pct": 1,
     "bodyfat_end_pct": 1,
     "fat_mass_change_kg": 2,
@@ -120,6 +128,7 @@ def phase_row(client_id: str, p: PhaseResult) -> SummaryRow:
         return format_number(v, DECIMALS[column])
 
     tdee = p.observed_tdee_kcal
+    adapt = p.adaptation_kcal
     row: SummaryRow = {
         "client_id": client_id,
         "phase": p.name,
@@ -142,7 +151,11 @@ def phase_row(client_id: str, p: PhaseResult) -> SummaryRow:
         ),
         "expected_tdee_kcal": est(p.expected_tdee_kcal, "expected_tdee_kcal"),
         "adaptation_kcal": est(p.adaptation_kcal, "adaptation_kcal"),
+        "adaptation_low_kcal": num(adapt.low if adapt.known else None, "adaptation_low_kcal"),
+        "adaptation_high_kcal": num(adapt.high if adapt.known else None, "adaptation_high_kcal"),
         "adaptation_pct": est(p.adaptation_pct, "adaptation_pct"),
+        "activity_change_kcal": est(p.activity_change_kcal, "activity_change_kcal"),
+        "implied_intake_kcal": est(p.implied_intake_kcal, "implied_intake_kcal"),
         "bodyfat_start_pct": num(p.bodyfat_start_pct, "bodyfat_start_pct"),
         "bodyfat_end_pct": num(p.bodyfat_end_pct, "bodyfat_end_pct"),
         "fat_mass_change_kg": num(p.fat_mass_change_kg, "fat_mass_change_kg"),

@@ -36,8 +36,9 @@ ISSUE_COLUMNS = (
     "client_id, phase, start, end, days, weight_days, intake_days, trend_start_kg, trend_end_kg, "
     "trend_change_kg, rate_pct_per_week, mean_intake_kcal, realised_deficit_kcal, "
     "observed_tdee_kcal, observed_tdee_low_kcal, observed_tdee_high_kcal, expected_tdee_kcal, "
-    "adaptation_kcal, adaptation_pct, bodyfat_start_pct, bodyfat_end_pct, fat_mass_change_kg, "
-    "lean_mass_change_kg, status"
+    "adaptation_kcal, adaptation_low_kcal, adaptation_high_kcal, adaptation_pct, "
+    "activity_change_kcal, implied_intake_kcal, bodyfat_start_pct, bodyfat_end_pct, "
+    "fat_mass_change_kg, lean_mass_change_kg, status"
 )
 
 
@@ -221,6 +222,8 @@ def test_known_values_fixed_decimals_and_csv_round_trip() -> None:
         expected_tdee_kcal=Estimate(2600.0),
         adaptation_kcal=Estimate(-99.8, -200.0, 10.0),
         adaptation_pct=Estimate(-3.84),
+        activity_change_kcal=Estimate(-42.4, -60.0, -25.0),
+        implied_intake_kcal=Estimate(2234.5, 2100.0, 2370.0),
         bodyfat_start_pct=28.04,
         bodyfat_end_pct=26.96,
         fat_mass_change_kg=-3.5,
@@ -251,7 +254,11 @@ def test_known_values_fixed_decimals_and_csv_round_trip() -> None:
             "observed_tdee_high_kcal": "2620",  # 2619.5 -> even
             "expected_tdee_kcal": "2600",
             "adaptation_kcal": "-100",
+            "adaptation_low_kcal": "-200",
+            "adaptation_high_kcal": "10",
             "adaptation_pct": "-3.8",
+            "activity_change_kcal": "-42",
+            "implied_intake_kcal": "2234",  # 2234.5 -> even
             "bodyfat_start_pct": "28.0",
             "bodyfat_end_pct": "27.0",
             "fat_mass_change_kg": "-3.50",

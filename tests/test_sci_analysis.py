@@ -59,7 +59,8 @@ def test_phases_cut_at_month_end(sim_analysis: tuple[object, ClientAnalysis]) ->
 
 
 def test_chain_identities(sim_analysis: tuple[object, ClientAnalysis]) -> None:
-    """TDEE = mean intake + deficit (notes §4.4); adaptation = observed - expected (§6)."""
+    """TDEE = mean intake + deficit; the data's adaptation = observed - expected, and the
+    combined estimate lies between it and the typical value (normal-normal combination)."""
     _, a = sim_analysis
     checked = 0
     for p in a.phases:
@@ -79,9 +80,14 @@ def test_chain_identities(sim_analysis: tuple[object, ClientAnalysis]) -> None:
             assert lo_ - 1e-9 <= e <= hi_ + 1e-9
             assert p.adaptation_kcal.reason == "baseline-phase"
             continue
-        assert p.adaptation_kcal.value == pytest.approx(
+        data = p.adaptation_data_kcal if p.adaptation_data_kcal.known else p.adaptation_kcal
+        assert data.value == pytest.approx(
             p.observed_tdee_kcal.value - p.expected_tdee_kcal.value, abs=1e-9
         )
+        if p.adaptation_data_kcal.known:
+            typical = p.adaptation_typical_kcal.value
+            lo_, hi_ = sorted((data.value, typical))
+            assert lo_ - 1e-6 <= p.adaptation_kcal.value <= hi_ + 1e-6
         assert p.adaptation_pct.value == pytest.approx(
             100 * p.adaptation_kcal.value / p.expected_tdee_kcal.value, abs=1e-9
         )

@@ -255,7 +255,13 @@ def test_the_stages_assemble_the_analysis(stages: ClientStages) -> None:
     deficit_phase = analysis.phases[1]
     expectation = stages.expectations[1]
     assert expectation is not None
-    assert deficit_phase.adaptation_kcal == expectation.adaptation.kcal
+    # the data's figure is the expectation's; the phase reports the combined estimate
+    assert deficit_phase.adaptation_data_kcal.value == pytest.approx(
+        expectation.adaptation.kcal.value, abs=1e-9
+    )
+    assessed = stages.adaptations[1]
+    assert assessed is not None
+    assert deficit_phase.adaptation_kcal == assessed.adaptation
     # 29 September to 30 November is 62 days: week 62 // 7 + 1 = 9
     assert analysis.current_phase == deficit_phase and analysis.week_of_phase == 9
     assert analysis.month_change_kg == stages.trend.month_change
@@ -271,6 +277,7 @@ def test_the_stages_assemble_the_analysis(stages: ClientStages) -> None:
         "hall-2008-energy-density",
         "expenditure-state-space",
         "hall-2011",
+        "adaptation-combined",
     ]
 
 

@@ -21,6 +21,7 @@ from reportgen.science.balance import (
     window_balance,
 )
 from reportgen.science.composition import energy_density_kcal_per_kg
+from reportgen.science.energy_density import energy_density_with_spread
 from reportgen.science.trend import Z80
 
 
@@ -63,11 +64,17 @@ def test_window_balance_noise_free_line() -> None:
     assert b.energy_density_low <= rho <= b.energy_density_high  # type: ignore[operator]
     assert b.fat_change_kg is not None and b.lean_change_kg is not None
     assert b.fat_change_kg + b.lean_change_kg == pytest.approx(-2.8, abs=1e-9)
-    # no weight noise and a constant intake: only the energy-density bracket is left
+    # no weight noise and a constant intake: only the energy-density uncertainty is left,
+    # the fat-mass bracket combined with the partition spread around Forbes' curve
     half = b.deficit_kcal.high - b.deficit_kcal.value  # type: ignore[operator]
     assert half > 0
     s_rho = (b.energy_density_high - b.energy_density_low) / 2  # type: ignore[operator]
-    assert half == pytest.approx(Z80 * 0.1 * s_rho, rel=1e-3)
+    _, s_part = energy_density_with_spread(20.0, -0.1 * 28)
+    assert half == pytest.approx(Z80 * 0.1 * math.hypot(s_rho, s_part), rel=1e-3)
+    # without the partition spread only the bracket is left
+    only = window_balance(w, np.full(28, 2000.0), 20.0, 2.7, lean_share_log_sd=0.0)
+    half0 = only.deficit_kcal.high - only.deficit_kcal.value  # type: ignore[operator]
+    assert half0 == pytest.approx(Z80 * 0.1 * s_rho, rel=1e-3)
 
 
 def test_interval_contains_estimate_and_widens_with_fewer_days() -> None:
@@ -243,3 +250,15 @@ def test_expenditure_path_matches_statsmodels_kalman_smoother() -> None:
     assert np.allclose(ours.tdee_kcal, reference.smoothed_state[1], rtol=0, atol=1e-6)
     assert np.allclose(ours.weight_kg, reference.smoothed_state[0], rtol=0, atol=1e-9)
     assert np.allclose(ours.sd_kcal, np.sqrt(reference.smoothed_state_cov[1, 1]), rtol=0, atol=1e-6)
+
+
+def test_measured_partition_replaces_forbes() -> None:
+    # Serial skinfolds put the lean share at 0.20 (SD 0.05): rho = 9440 x 0.8 + 1816 x 0.2
+    # = 7915.2 kcal/kg (Hall 2008 densities, computed here), deficit = 0.1 x rho.
+    w = _line(28, -0.1)
+    b = window_balance(w, np.full(28, 2000.0), 20.0, 0.0, lean_share=(0.2, 0.05))
+    assert b.energy_density_kcal_per_kg == pytest.approx(7915.2, rel=1e-12)
+    assert b.deficit_kcal.value == pytest.approx(791.52, rel=1e-9)
+    assert b.fat_change_kg == pytest.approx(-2.24, rel=1e-9)
+    half = b.deficit_kcal.high - b.deficit_kcal.value  # type: ignore[operator]
+    assert half == pytest.approx(Z80 * 0.1 * (9440 - 1816) * 0.05, rel=1e-3)

@@ -109,11 +109,11 @@ def test_expected_interval_carries_the_baseline_uncertainty() -> None:
         e = p.expected_tdee_kcal
         assert e.low is not None and e.high is not None
         assert e.high - e.low > 0.0
-        ad = p.adaptation_kcal
+        ad = p.adaptation_data_kcal
         ob = p.observed_tdee_kcal
         assert ad.low is not None and ad.high is not None
         assert ob.low is not None and ob.high is not None
-        # adaptation interval = observed and expected combined
+        # the data's adaptation interval = observed and expected combined
         assert ad.high - ad.low >= max(e.high - e.low, ob.high - ob.low) - 1e-6
 
 

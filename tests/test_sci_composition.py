@@ -34,7 +34,18 @@ def test_constants_match_sources() -> None:
     assert kcal_to_mj(RHO_FAT_KCAL_PER_KG) == pytest.approx(39.5, abs=0.005)
     # rhoL 7.6 MJ/kg = 1816 kcal/kg (from memory, unverified).
     assert kcal_to_mj(RHO_LEAN_KCAL_PER_KG) == pytest.approx(7.6, abs=0.005)
-    assert FORBES_C_KG == 10.4  # from memory (unverified), science notes §4.3
+
+    # Forbes' cross-sectional curve FFM = 10.4 ln(FM) + 14.2 (from memory, science notes
+    # §4.3): the lean share of a small change is dFFM/dBW = (dFFM/dF) / (1 + dFFM/dF),
+    # taken here by a numerical derivative of the curve itself, not from the constant.
+    def ffm(fm: float) -> float:
+        return 10.4 * math.log(fm) + 14.2
+
+    for fm in (8.0, 20.0, 45.0):
+        h = 1e-5
+        d = (ffm(fm + h) - ffm(fm - h)) / (2 * h)
+        assert lean_fraction_forbes(fm) == pytest.approx(d / (1 + d), rel=1e-8)
+    assert lean_fraction_forbes(20.0) == pytest.approx(FORBES_C_KG / (FORBES_C_KG + 20.0))
 
 
 def test_3500_rule_per_kg() -> None:

@@ -33,7 +33,7 @@ def test_healthy_adult_no_flags() -> None:
         mean_intake_kcal=1600.0,
         weekly_rates_pct=(-0.6, -0.7, -0.5),
         bodyfat_pct=28.0,
-        adaptation_pct=-6.0,
+        adaptation_implausible=False,
     )
     assert safety_flags(inputs) == ()
 
@@ -115,12 +115,16 @@ def test_minor_and_pregnant() -> None:
 
 
 def test_implausible_adaptation() -> None:
-    # beyond about 20 % of expected (common practice / judgment)
-    assert codes(FlagInputs(adaptation_pct=-20.0)) == []
-    f = only(FlagInputs(adaptation_pct=-25.0))
+    # the deficit-scaled rule is decided in reportgen.science.adaptation (tested there);
+    # the flag carries both figures for its wording
+    assert codes(FlagInputs(adaptation_implausible=False, adaptation_data_kcal=-500.0)) == []
+    f = only(
+        FlagInputs(
+            adaptation_implausible=True, adaptation_data_kcal=-480.0, adaptation_typical_kcal=-75.0
+        )
+    )
     assert (f.code, f.severity) == ("implausible-adaptation", "caution")
-    assert f.values == {"adaptation_pct": -25.0, "threshold_pct": 20.0}
-    assert codes(FlagInputs(adaptation_pct=22.0)) == ["implausible-adaptation"]
+    assert f.values == {"adaptation_kcal": -480.0, "typical_kcal": -75.0}
 
 
 def test_stable_order_everything_at_once() -> None:
@@ -132,7 +136,7 @@ def test_stable_order_everything_at_once() -> None:
         mean_intake_kcal=1000.0,
         weekly_rates_pct=(-1.5, -1.6),
         bodyfat_pct=12.0,
-        adaptation_pct=-30.0,
+        adaptation_implausible=True,
     )
     got = codes(inputs)
     assert got == [c for c in FLAG_CODES if c != "very-low-intake"]
@@ -147,10 +151,11 @@ def test_stable_order_everything_at_once() -> None:
     rates=st.lists(st.floats(allow_nan=True, allow_infinity=True), max_size=8),
     bf=st.one_of(st.none(), st.floats(allow_nan=True, allow_infinity=True)),
     ad=st.one_of(st.none(), st.floats(allow_nan=True, allow_infinity=True)),
+    implausible=st.booleans(),
     pregnant=st.booleans(),
 )
 def test_any_input_gives_ordered_unique_codes(
-    sex, age, bmi, intake, rates, bf, ad, pregnant
+    sex, age, bmi, intake, rates, bf, ad, implausible, pregnant
 ) -> None:
     flags = safety_flags(
         FlagInputs(
@@ -161,7 +166,8 @@ def test_any_input_gives_ordered_unique_codes(
             mean_intake_kcal=intake,
             weekly_rates_pct=tuple(rates),
             bodyfat_pct=bf,
-            adaptation_pct=ad,
+            adaptation_implausible=implausible,
+            adaptation_data_kcal=ad,
         )
     )
     got = [f.code for f in flags]

@@ -13,6 +13,8 @@ resting         :class:`RestingStage`: resting equations; :class:`RestingModel`
 balance         :class:`PhaseBalance` per phase: stored energy, observed TDEE
 baseline        the client's own reference (:class:`~reportgen.science.expected.Baseline`)
 expected        :class:`PhaseExpectation` per phase: expected TDEE, adaptation
+adaptation      :class:`~reportgen.science.adaptation.PhaseAdaptation` per phase: the
+                combined adaptation, the drop in expenditure in parts, implied intake
 phases          :class:`~reportgen.results.PhaseResult` per phase; the current phase
 expenditure     :class:`ExpenditureStage`: the daily expenditure path
 projection      :class:`~reportgen.results.Projection`
@@ -28,6 +30,7 @@ the client as failed).
 
 from __future__ import annotations
 
+from reportgen.analysis.adaptation import adaptation_stage
 from reportgen.analysis.balance import balance_stage
 from reportgen.analysis.baseline import baseline_stage
 from reportgen.analysis.composition import composition_stage
@@ -83,7 +86,8 @@ def run_stages(
     balances = balance_stage(ctx, trend, composition)
     baseline = baseline_stage(ctx, trend, composition, resting.model, balances)
     expectations = expected_stage(ctx, balances, composition, baseline, resting.model)
-    phases = phase_results(ctx, trend, composition, balances, expectations, baseline)
+    adaptations = adaptation_stage(ctx, composition, balances, expectations, baseline)
+    phases = phase_results(ctx, trend, composition, balances, expectations, baseline, adaptations)
     expenditure = expenditure_stage(ctx, trend, composition)
     projection = projection_stage(ctx, trend, composition, expenditure, baseline, resting.model)
     return ClientStages(
@@ -94,6 +98,7 @@ def run_stages(
         balances=balances,
         baseline=baseline,
         expectations=expectations,
+        adaptations=adaptations,
         phases=phases,
         expenditure=expenditure,
         projection=projection,

@@ -181,7 +181,7 @@ def first_weeks_window(windows: tuple[PhaseWindow, ...], n_days: int) -> tuple[i
     ``BASELINE_FIRST_WEEKS_DAYS`` days from the start of the data, or, when the
     first deficit (or surplus) starts inside that span, from
     ``BASELINE_SKIP_DAYS`` days after its start: the first one to two weeks of a
-    new intake are dominated by glycogen and water (science notes §4.4, §8), and
+    new intake are dominated by glycogen and water (Hall 2008; common practice), and
     the step they make is hardest to separate from tissue at the start of the
     data, where there is no level before it to compare with.
     """

@@ -171,8 +171,8 @@ def start_shift_index(phases: tuple[Phase, ...], log: DailyLog, as_of: dt.date) 
     """Log index where the intake changed at (or just before) the start of the data.
 
     When the first phase is a deficit or a surplus, the intake changed at its
-    start, and glycogen with its water shifts over the following days (science
-    notes §4.4; about 1-2 kg early in a diet).  A phase start inside the log is a
+    start, and glycogen with its water shifts over the following days (Hall 2008;
+    about 1-2 kg early in a diet).  A phase start inside the log is a
     knot anyway; this is the case where the data begin with the change, so there
     is no earlier segment for the step to be a knot of.  None when the first phase
     is maintenance or a break, or there are no phases.

@@ -3,7 +3,7 @@
 Observed TDEE comes from the phase's energy balance (stage 4); expected TDEE from
 the client's own baseline scaled to the phase's body size (Hall 2011), or, without
 a baseline, a resting equation times the activity factor.  Adaptation is their
-difference.  Short windows (science notes §4.4 and the §8 "short-window" rule):
+difference.  Short windows (common practice: glycogen and water dominate the first weeks):
 the first week after an intake change is mostly glycogen and water, so a phase
 that starts with one needs MIN_ANALYSIS_DAYS (14) usable days after its first
 EARLY_PHASE_SKIP_DAYS (7) before an observed TDEE or an adaptation is given

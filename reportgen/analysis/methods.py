@@ -35,6 +35,17 @@ METHODS: dict[str, MethodUsed] = {
         "energy imbalance on bodyweight. Lancet 2011;378:826-837. "
         "doi:10.1016/S0140-6736(11)60812-X",
     ),
+    "adaptation-combined": MethodUsed(
+        code="adaptation-combined",
+        name="Metabolic adaptation: own data and the literature expectation weighed by "
+        "precision, with a logging-drift component; intake implied by weight; steps at the "
+        "ACSM walking cost",
+        reference="Hall KD, et al. Lancet 2011;378:826-837 (adaptive thermogenesis). Leibel RL, "
+        "Rosenbaum M, Hirsch J. N Engl J Med 1995;332:621-628 (between-person spread). "
+        "Hall KD, Chow CC. Am J Clin Nutr 2011;94:66-74 and Sanghvi A, et al. Am J Clin Nutr "
+        "2015;102:353-358 (intake from weight). ACSM's Guidelines for Exercise Testing and "
+        "Prescription, metabolic equations (walking).",
+    ),
 }
 
 

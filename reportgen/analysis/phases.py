@@ -13,6 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from reportgen.analysis.adaptation import combined_pct
 from reportgen.analysis.balance import PhaseBalance
 from reportgen.analysis.composition import CompositionStage
 from reportgen.analysis.context import (
@@ -27,6 +28,7 @@ from reportgen.analysis.expected import EARLY_PHASE_DAYS, PhaseExpectation
 from reportgen.analysis.trend import TrendStage
 from reportgen.results import BodyCompResult, Estimate, PhaseResult
 from reportgen.science import expected as expected_tdee
+from reportgen.science.adaptation import PhaseAdaptation
 from reportgen.science.expected import Baseline
 from reportgen.science.rates import WindowRate
 
@@ -55,11 +57,15 @@ def phase_results(
     phases: tuple[PhaseBalance, ...],
     expectations: tuple[PhaseExpectation | None, ...],
     baseline: Baseline | None,
+    adaptations: tuple[PhaseAdaptation | None, ...] | None = None,
 ) -> tuple[PhaseResult, ...]:
     """Every phase's result, in start order."""
+    found = adaptations if adaptations is not None else tuple(None for _ in phases)
     return tuple(
-        phase_result(ctx, trend, composition, number, phase, expectation, baseline)
-        for number, (phase, expectation) in enumerate(zip(phases, expectations, strict=True))
+        phase_result(ctx, trend, composition, number, phase, expectation, baseline, assessed)
+        for number, (phase, expectation, assessed) in enumerate(
+            zip(phases, expectations, found, strict=True)
+        )
     )
 
 
@@ -83,7 +89,10 @@ def special_handling_part(phase: PhaseBalance) -> _EnergyPart:
 
 
 def energy_part(
-    phase: PhaseBalance, expectation: PhaseExpectation, baseline: Baseline | None
+    phase: PhaseBalance,
+    expectation: PhaseExpectation,
+    baseline: Baseline | None,
+    assessed: PhaseAdaptation | None = None,
 ) -> _EnergyPart:
     """Energy balance, observed and expected TDEE and adaptation of one phase."""
     window, balance = phase.window, phase.balance
@@ -96,9 +105,14 @@ def energy_part(
     notes = []
     if expectation.is_baseline:
         notes.append("baseline-phase")
-    elif expectation.adaptation.implausible:
+    elif assessed is not None and assessed.evidence.implausible:
+        # the data alone far outside the literature for this cut (deficit-scaled rule)
         notes.append("implausible-adaptation")
     expected = expectation.expected_tdee
+    adaptation_kcal, adaptation_pct = expectation.adaptation.kcal, expectation.adaptation.pct
+    if assessed is not None:
+        adaptation_kcal = assessed.adaptation
+        adaptation_pct = combined_pct(assessed.adaptation, expected)
     if window.logged_days < MIN_ANALYSIS_DAYS:
         status = "too-few-days"
     elif window.phase.end is None or window.phase.end > window.window_end:
@@ -119,8 +133,8 @@ def energy_part(
         observed_tdee=expectation.observed_tdee,
         expected_tdee=expected,
         expected_method=expectation.expected_method,
-        adaptation_kcal=expectation.adaptation.kcal,
-        adaptation_pct=expectation.adaptation.pct,
+        adaptation_kcal=adaptation_kcal,
+        adaptation_pct=adaptation_pct,
         depth_pct=expected_tdee.deficit_depth_pct(deficit.value, expected.value),
         status=status,
         notes=tuple(notes),
@@ -135,6 +149,7 @@ def phase_result(
     phase: PhaseBalance,
     expectation: PhaseExpectation | None,
     baseline: Baseline | None,
+    assessed: PhaseAdaptation | None = None,
 ) -> PhaseResult:
     """One phase's result from its balance and expectation (None: special handling)."""
     window = phase.window
@@ -150,8 +165,22 @@ def phase_result(
     if expectation is None:
         part = special_handling_part(phase)
     else:
-        part = energy_part(phase, expectation, baseline)
+        part = energy_part(phase, expectation, baseline, assessed)
     change = composition_change(composition.sessions, phase, expectation is None)
+    evidence: dict[str, object] = {}
+    if assessed is not None:
+        evidence = {
+            "adaptation_data_kcal": assessed.evidence.data,
+            "adaptation_typical_kcal": assessed.evidence.literature,
+            "adaptation_implausible": assessed.evidence.implausible,
+            "logging_drift_probability": assessed.evidence.logging_drift_probability,
+            "expenditure_change_kcal": assessed.change.total,
+            "body_size_change_kcal": assessed.change.body_size,
+            "activity_change_kcal": assessed.change.activity,
+            "metabolic_change_kcal": assessed.change.metabolic,
+            "implied_intake_kcal": assessed.implied_intake,
+            "logging_gap_kcal": assessed.logging_gap,
+        }
     return PhaseResult(
         name=window.phase.name,
         kind=window.phase.kind,
@@ -182,6 +211,7 @@ def phase_result(
         lean_mass_change_kg=change.lean_kg,
         status=part.status,
         notes=part.notes + change.notes,
+        **evidence,  # type: ignore[arg-type]
     )
 
 

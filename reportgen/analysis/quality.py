@@ -87,9 +87,7 @@ def flags(
     log = ctx.log
     client = ctx.record.client
     intake_start = max(log.n_days - FLAG_INTAKE_DAYS, 0)
-    latest_adaptation_pct = next(
-        (p.adaptation_pct.value for p in reversed(phases) if p.adaptation_pct.known), None
-    )
+    latest = next((p for p in reversed(phases) if p.adaptation_data_kcal.known), None)
     return safety_flags(
         FlagInputs(
             sex=client.sex,
@@ -102,7 +100,11 @@ def flags(
             # the rate the report prints: the same rapid-loss rule words and flags it
             current_rate_pct=trend.weekly_rate_pct.value,
             bodyfat_pct=composition.latest_bodyfat_pct,
-            adaptation_pct=latest_adaptation_pct,
+            adaptation_implausible=latest is not None and latest.adaptation_implausible,
+            adaptation_data_kcal=None if latest is None else latest.adaptation_data_kcal.value,
+            adaptation_typical_kcal=(
+                None if latest is None else latest.adaptation_typical_kcal.value
+            ),
         )
     )
 

@@ -15,6 +15,7 @@ from reportgen.analysis.quality import QualityStage
 from reportgen.analysis.resting import RestingStage
 from reportgen.analysis.trend import TrendStage
 from reportgen.results import ClientAnalysis, MethodUsed, PhaseResult, Projection
+from reportgen.science.adaptation import PhaseAdaptation
 from reportgen.science.expected import Baseline
 
 
@@ -29,6 +30,7 @@ class ClientStages:
     balances: tuple[PhaseBalance, ...]
     baseline: Baseline | None
     expectations: tuple[PhaseExpectation | None, ...]  # None under special handling
+    adaptations: tuple[PhaseAdaptation | None, ...]  # None where not assessed
     phases: tuple[PhaseResult, ...]
     expenditure: ExpenditureStage
     projection: Projection | None
@@ -44,6 +46,7 @@ class ClientStages:
             (METHODS["hall-2008-energy-density"],) if energy_analysis else (),
             self.expenditure.methods,
             (METHODS["hall-2011"],) if self.projection is not None else (),
+            (METHODS["adaptation-combined"],) if any(self.adaptations) else (),
         )
 
     def notes(self) -> tuple[str, ...]:

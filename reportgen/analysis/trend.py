@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -16,6 +17,7 @@ from reportgen.analysis.context import (
 )
 from reportgen.analysis.methods import METHODS
 from reportgen.results import Estimate, MethodUsed, TrendSeries
+from reportgen.science.noise_band import widen_level_variance
 from reportgen.science.rates import NoiseModel, fit_noise_model, segment_rate
 from reportgen.science.trend import TrendFit, local_linear_trend
 
@@ -67,6 +69,19 @@ def trend_stage(ctx: ClientContext) -> TrendStage:
         if w.end_index - w.start_index + 1 >= MIN_ANALYSIS_DAYS
     ]
     noise = fit_noise_model(weights_kg, spans or [(0, ctx.log.n_days - 1)], fit.weights)
+    if noise is not None:
+        # the smoother assumes independent noise; widen its level band for the AR(1)
+        # water swings the noise model found (variance of the mean of AR(1) points)
+        fit = dataclasses.replace(
+            fit,
+            level_var_kg2=widen_level_variance(
+                fit.level_var_kg2,
+                fit.noise_sd_kg**2,
+                noise.ar_var_kg2,
+                noise.phi,
+                noise.white_var_kg2,
+            ),
+        )
     last = ctx.last_index
     current_kg = float(fit.level_kg[last])
     recent_start = current_rate_start(ctx)

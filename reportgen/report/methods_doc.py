@@ -77,8 +77,9 @@ def flag_rules(u: Units) -> list[tuple[str, str, str]]:
         ),
         (
             "Expenditure estimate looks implausible",
-            f"adaptation beyond ±{F.IMPLAUSIBLE_ADAPTATION_PCT:.0f} % of expected expenditure",
-            "common practice",
+            "the client's own expenditure gap more than 2.5 SDs from what the literature "
+            "expects for a deficit of that depth and length",
+            "Hall et al. 2011 (adaptive thermogenesis); Leibel et al. 1995 (spread); judgment",
         ),
     ]
 

@@ -63,6 +63,12 @@ def make_overview_line(analysis: ClientAnalysis) -> OverviewLine:
         days_in_month=days,
         flags=flags,
         attention=attention,
+        adaptation_zero_inside=bool(
+            ph is not None
+            and ph.adaptation_kcal.low is not None
+            and ph.adaptation_kcal.high is not None
+            and ph.adaptation_kcal.low <= 0.0 <= ph.adaptation_kcal.high
+        ),
     )
 
 
@@ -115,7 +121,9 @@ def render_overview(
             week=str(ln.week_of_phase) if ln.week_of_phase else "",
         )
         adapt = u.e(ln.adaptation_kcal, signed=True, unit=False)
-        if ln.adaptation_pct is not None:
+        if ln.adaptation_zero_inside:
+            adapt += " (≈0)"
+        elif ln.adaptation_pct is not None:
             adapt += f" ({u.pct(ln.adaptation_pct, dp=0, signed=True)})"
         # no weigh-in in the month: the trend change and rate would be extrapolations
         measured = ln.weight_days > 0

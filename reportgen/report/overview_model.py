@@ -29,3 +29,4 @@ class OverviewLine:
     days_in_month: int
     flags: tuple[tuple[str, str], ...]  # (code, severity)
     attention: int  # sort key: higher means look at this client first
+    adaptation_zero_inside: bool = False  # its 80 % interval includes zero

@@ -93,9 +93,42 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
                 M.get(ph.expected_method or "", ph.expected_method or DASH),
             )
         )
+        if ph.adaptation_data_kcal.known:
+            # the three side by side: the data alone, the literature, their combination
+            rows.append(
+                ("adapt_data", *_est(u, ph.adaptation_data_kcal, "e_change"), M["adapt_data"])
+            )
+            rows.append(
+                (
+                    "adapt_typical",
+                    *_est(u, ph.adaptation_typical_kcal, "e_change"),
+                    M["adapt_typical"],
+                )
+            )
         v, i = _est(u, ph.adaptation_kcal, "e_change")
         pct = u.pct(ph.adaptation_pct.value, signed=True) if ph.adaptation_pct.known else ""
-        rows.append(("adaptation", v + (f" ({pct})" if pct else ""), i, "of expected"))
+        basis = "of expected"
+        if ph.adaptation_data_kcal.known:
+            k = ph.adaptation_kcal
+            zero_inside = k.low is not None and k.high is not None and k.low <= 0.0 <= k.high
+            basis = M["adapt_zero"] if zero_inside else M["adapt_combined"]
+        label = "adaptation_combined" if ph.adaptation_data_kcal.known else "adaptation"
+        rows.append((label, v + (f" ({pct})" if pct else ""), i, basis))
+        if ph.adaptation_data_kcal.known:
+            if ph.activity_change_kcal.known:
+                rows.append(
+                    ("activity", *_est(u, ph.activity_change_kcal, "e_change"), M["activity"])
+                )
+            else:
+                rows.append(("activity", M["not_measured"], "", M["activity_none"]))
+            if ph.implied_intake_kcal.known:
+                rows.append(
+                    (
+                        "implied_intake",
+                        *_est(u, ph.implied_intake_kcal, "e"),
+                        M["implied"].replace("{logged}", u.e(ph.mean_intake_kcal)),
+                    )
+                )
         rows.append(("depth", u.pct(ph.deficit_depth_pct), "", "realised deficit ÷ maintenance"))
         rows.append(("days_deficit", u.number(ph.days_in_deficit), "", "up to month end"))
     if a.resting_kcal:

@@ -32,8 +32,9 @@ RATE_FLAT_PCT = 0.1  # |rate| below this reads as "holding steady" (common pract
 ADAPT_MIN_PCT = 3.0
 # Signals: only changes the analysis sized "moderate" or "large" are called out.
 SIGNAL_NOTABLE = ("moderate", "large")
-# Below-expected expenditure of this share or more is worded as "check logging first": larger
-# than the 5-15 % usually attributed to adaptation (common practice, no single source).
+# Below-expected expenditure of this share or more is worded as "check logging first": several
+# times the 2-4 % of TDEE Hall et al. 2011's model expects for a moderate cut, and as large as
+# Rosenbaum & Leibel's 10-15 % at a maintained reduced weight (judgment).
 ADAPT_LARGE_PCT = 15.0
 LONG_DEFICIT_DAYS = 84  # 12 weeks of continuous deficit: suggest a break (common practice)
 
@@ -120,6 +121,33 @@ def _adapt_state(est: Estimate, pct: Estimate, implausible: bool) -> str:
     if pct.value is not None and abs(pct.value) < ADAPT_MIN_PCT:
         return "within"
     return "below" if est.value < 0 else "above"
+
+
+def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
+    """What the data say about each candidate cause of expenditure below expected."""
+    if not p.adaptation_typical_kcal.known or p.adaptation_typical_kcal.value is None:
+        return {}
+    out = {"adapt_typical": u.e(abs(p.adaptation_typical_kcal.value))}
+    act = p.activity_change_kcal
+    if act.known and act.value is not None:
+        out["adapt_activity"] = (
+            "fewer" if act.value < 0 else "more"
+        ) + f" steps, worth about {u.e(abs(act.value))}"
+    else:
+        out["adapt_activity"] = "not measured (steps not logged)"
+    gap = p.logging_gap_kcal
+    if gap.known and gap.value is not None and gap.low is not None and gap.high is not None:
+        if gap.high < 0:
+            out["adapt_logging"] = (
+                f"your weight suggests about {u.e(abs(gap.value))} more eaten than logged"
+            )
+        elif gap.low > 0:
+            out["adapt_logging"] = (
+                f"your weight suggests about {u.e(gap.value)} less eaten than logged"
+            )
+        else:
+            out["adapt_logging"] = "logged intake is in line with what your weight suggests"
+    return out
 
 
 def _phase_row(u: Units, p: PhaseResult) -> dict[str, str]:
@@ -227,9 +255,11 @@ def _flag_view(u: Units, f: Any) -> dict[str, Any]:
     elif f.code == "essential-fat":
         out["value"] = _beside(u, float(v["bodyfat_pct"]), float(v["threshold_pct"]), pct)
         out["limit"] = pct(float(v["threshold_pct"]))
-    elif f.code == "implausible-adaptation":
-        out["value"] = _beside(u, float(v["adaptation_pct"]), float(v["threshold_pct"]), pct)
-        out["limit"] = pct(float(v["threshold_pct"]))
+    elif f.code == "implausible-adaptation" and "adaptation_kcal" in v:
+        # the data alone against what the literature expects for this deficit
+        out["value"] = u.e(float(v["adaptation_kcal"]))
+        if "typical_kcal" in v:
+            out["limit"] = u.e(float(v["typical_kcal"]))
     return out
 
 
@@ -312,6 +342,11 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "bf_last_date": u.d(a.bodycomp[-1].date) if a.bodycomp else "",
         "adapt_state": "unknown",
         "adapt_abs": "",
+        # "expenditure below expected" and its three candidate causes (empty when the
+        # client has no own baseline to compare with)
+        "adapt_typical": "",
+        "adapt_activity": "",
+        "adapt_logging": "",
         "adapt_large": False,
         "signals": [_signal_view(u, s) for s in a.signals],
         "notable_signals": [_signal_view(u, s) for s in a.signals if s.size in SIGNAL_NOTABLE],
@@ -339,6 +374,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
             story["adapt_abs"] = u.e(abs(ph.adaptation_kcal.value))
         adapt_pct = ph.adaptation_pct.value
         story["adapt_large"] = bool(adapt_pct is not None and abs(adapt_pct) >= ADAPT_LARGE_PCT)
+        story.update(_adapt_causes(u, ph))
     if look is not None and look.days:
         story["projection_weeks"] = look.weeks_text
         story["projection_date"] = u.d(look.end)

@@ -1,13 +1,13 @@
 """Energy balance: stored energy, realised deficit, observed TDEE and a daily expenditure path.
 
 Observed TDEE over a window = mean logged intake + realised deficit, where the
-realised deficit is the energy drawn from body stores per day (science notes
-§4.4).  The energy per kg of the weight change comes from Hall 2008's tissue
-energy densities and Forbes' fat/lean partition (``reportgen.science.composition``),
-with the client's fat mass from the latest skinfold result or the BMI-based
+realised deficit is the energy drawn from body stores per day.  The energy per
+kg of the weight change comes from Hall 2008's tissue energy densities and
+Forbes' fat/lean partition (``reportgen.science.composition``), with the
+client's fat mass from the latest skinfold result or the BMI-based
 fallback.
 
-The 80 % interval (science notes §4.5) combines, as independent parts:
+The 80 % interval combines, as independent parts:
 
 * the rate's standard error from :func:`reportgen.science.rates.window_rate`,
   which allows for autocorrelated water swings (AR(1) plus white noise);
@@ -34,6 +34,7 @@ from reportgen.science.composition import (
     energy_density_kcal_per_kg,
     partition_weight_change_hall,
 )
+from reportgen.science.energy_density import LEAN_SHARE_LOG_SD, energy_density_with_spread
 from reportgen.science.kalman import InitialState, TwoStateModel, kalman_smoother
 from reportgen.science.rates import (
     SHIFT_PRIOR_SD_KG,
@@ -45,7 +46,7 @@ from reportgen.science.rates import (
 from reportgen.science.trend import Z80
 from reportgen.unit_constants import KJ_PER_KCAL
 
-MIN_DAYS = 14  # no expenditure from fewer days (science notes §4.4, §8: common practice)
+MIN_DAYS = 14  # no expenditure from fewer days (common practice: glycogen and water)
 MIN_WEIGH_INS = 8  # judgment: fewer weigh-ins than this cannot pin a rate
 MIN_INTAKE_DAYS = 7  # judgment: a mean intake from fewer logged days is not used
 KCAL_PER_KG_SPREADSHEET = 7700.0  # the constant a spreadsheet typically uses (common practice)
@@ -87,7 +88,7 @@ def observed_tdee_kcal(
     days: float,
     energy_density_kcal_per_kg_: float,
 ) -> float:
-    """Observed TDEE = mean intake - rho dW / days (science notes §4.4).
+    """Observed TDEE = mean intake - rho dW / days (energy balance; Hall 2008 for rho).
 
     Parameters
     ----------
@@ -103,7 +104,7 @@ def observed_tdee_kcal(
     Returns
     -------
     float
-        [kcal/day].  Check value (notes §10 item 33, computed there): 2000 kcal/day,
+        [kcal/day].  Check value (computed here): 2000 kcal/day,
         -1.0 kg in 14 days, 7700 kcal/kg gives 2550.
     """
     return mean_intake_kcal - energy_density_kcal_per_kg_ * weight_change_kg / days
@@ -112,8 +113,8 @@ def observed_tdee_kcal(
 def rate_se_iid_kg_per_day(noise_sd_kg: float, n_days: int) -> float:
     """Least-squares slope SE for n consecutive daily weights with independent noise.
 
-    sigma sqrt(12 / (n (n^2 - 1))) [kg/day] (science notes §4.5; the standard
-    regression result).  Check value (notes §10 item 50): n 14, sigma 0.5, times
+    sigma sqrt(12 / (n (n^2 - 1))) [kg/day] (the standard
+    regression result).  Check value (computed here): n 14, sigma 0.5, times
     7700 kcal/kg gives 255 kcal/day.
     """
     if n_days < 2:
@@ -200,6 +201,8 @@ def window_balance(
     robust_weights: FloatArray | None = None,
     noise: NoiseModel | None = None,
     rate: WindowRate | None = None,
+    lean_share_log_sd: float = LEAN_SHARE_LOG_SD,
+    lean_share: tuple[float, float] | None = None,
 ) -> WindowBalance:
     """Realised deficit and observed TDEE over one window, with 80 % intervals.
 
@@ -239,9 +242,13 @@ def window_balance(
     glycogen-and-water shift inside the window (1052 kcal/kg) when the rate
     comes from :func:`reportgen.science.rates.segment_rate`; TDEE = mean intake +
     deficit.
-    Var(deficit) = rho^2 SE(rate)^2 + rate^2 s_rho^2 with s_rho half the spread of
-    rho over F +/- SE(F) (judgment: the notes' bracket [Hall rho, 7700] would assume
-    pure adipose loss, which Hall 2008 shows is wrong for F < 30 kg);
+    Var(deficit) = rho^2 SE(rate)^2 + rate^2 s_rho^2 with s_rho combining half the
+    spread of rho over F +/- SE(F) and the between-person spread of the fat/lean
+    partition around Forbes' curve (``lean_share_log_sd``, log-SD of the lean share;
+    :func:`reportgen.science.energy_density.energy_density_with_spread`; 0 switches
+    it off); with ``lean_share`` (share, SD) from the client's serial skinfolds
+    (:func:`reportgen.science.energy_density.lean_share_from_skinfolds`) the
+    partition is the measured one instead of Forbes' curve;
     Var(TDEE) = Var(deficit) + s_I^2 / n_I.  Intervals are +/- 1.2816 SD (80 %).
     """
     w = np.asarray(weight_kg, dtype=float)
@@ -295,6 +302,17 @@ def window_balance(
         rho_lo, rho_hi = min(r_a, r_b), max(r_a, r_b)
         d_fat, d_lean = partition_weight_change_hall(fat_start_kg, change)
     s_rho = (rho_hi - rho_lo) / 2.0
+    if lean_share is not None and fat_start_kg is not None:
+        # the client's own measured composition change informs the partition (the
+        # intake-balance method of CALERIE, Racette et al. 2012)
+        p_lean, p_sd = lean_share
+        rho = RHO_FAT_KCAL_PER_KG * (1.0 - p_lean) + RHO_LEAN_KCAL_PER_KG * p_lean
+        s_rho = math.hypot(s_rho, (RHO_FAT_KCAL_PER_KG - RHO_LEAN_KCAL_PER_KG) * p_sd)
+        d_fat, d_lean = (1.0 - p_lean) * change, p_lean * change
+    elif fat_start_kg is not None and lean_share_log_sd > 0:
+        # people differ around Forbes' curve (training, protein): partition spread
+        _, s_part = energy_density_with_spread(fat_start_kg, change, 0.0, lean_share_log_sd)
+        s_rho = math.hypot(s_rho, s_part)
     # energy of the glycogen-and-water shift inside the window (0 unless fitted)
     g = GLYCOGEN_WATER_KCAL_PER_KG / days
     deficit = -(rho * rate.rate_kg_per_day + g * rate.shift_kg)

@@ -52,7 +52,7 @@ CONVERSION_REFERENCES = {
     ),
 }
 
-# Plausible whole-body density range for the warning (science notes §1: two-compartment
+# Plausible whole-body density range for the warning (Siri 1961 / Brozek 1963 two-compartment
 # assumptions break down outside it; common practice, no single source).
 DENSITY_PLAUSIBLE_G_ML = (0.99, 1.10)
 
@@ -176,7 +176,7 @@ def body_fat_se_pct(density_g_ml: float, density_se_g_ml: float, conversion: str
     Notes
     -----
     First-order propagation; at Db = 1.055 g/ml an SEE of 0.0077 g/ml is about
-    3.4 %BF with Siri (computed, science notes §1).
+    3.4 %BF with Siri (computed here: d%BF/dDb = -495/Db^2).
     """
     _check_density(density_g_ml)
     if conversion not in _COEFFS:

@@ -6,7 +6,8 @@ with the Hall et al. 2011 model terms (resting cost of fat and lean tissue,
 body-weight-proportional activity cost, thermic effect of food, cost of tissue
 change).  Metabolic adaptation is observed minus expected, the same definition
 as the model's adaptive thermogenesis and Fothergill 2016's residual
-expenditure (science notes §5, §6).
+expenditure (Hall et al. 2011; Fothergill et al. 2016 measure residual resting
+expenditure, a related but narrower quantity).
 
 When there is no usable baseline the fallback is a resting equation times an
 activity factor, which is much less certain and is labelled so.
@@ -22,7 +23,7 @@ from reportgen.results import Estimate
 from reportgen.science.hall import HALL_2011, HallParams
 from reportgen.science.trend import Z80
 
-# Literature magnitudes to set an estimate beside (science notes §6, each with its source
+# Literature magnitudes to set an estimate beside (each with its source
 # kind).  kcal/day unless the unit says otherwise.
 LITERATURE_ADAPTATION: tuple[tuple[str, str, str], ...] = (
     (
@@ -32,22 +33,29 @@ LITERATURE_ADAPTATION: tuple[tuple[str, str, str], ...] = (
     ),
     (
         "muller-2015",
-        "REE -266 kcal/day, adaptive thermogenesis -108 kcal/day after 3 weeks at -50 % intake",
+        "REE -266 kcal/day and adaptive thermogenesis -108 kcal/day after 3 weeks at -50 % "
+        "intake, of which about 36 is a change in FFM composition: about -72 kcal/day of "
+        "'true' adaptation, resting expenditure only",
         "published: Muller et al. 2015, AJCN 102:807-19, abstract",
     ),
     (
         "fothergill-2016",
-        "-499 +/- 207 kcal/day six years after extreme loss",
+        "-499 +/- 207 kcal/day of residual resting expenditure (RMR adjusted for FFM, FM and "
+        "age) six years after a 58 kg loss in class III obesity; not a TDEE figure",
         "published: Fothergill et al. 2016, Obesity 24:1612-9, abstract",
     ),
     (
         "synthesis",
-        "typically 5-15 % of TDEE (about 50-300 kcal/day) in moderate diets",
+        "moderate diets: about betaAT x intake cut, 70-100 kcal/day (2-4 % of TDEE) for a "
+        "500-700 kcal/day cut (Hall et al. 2011 model, betaAT 0.14 from memory), plus any fall "
+        "in activity; the 10-15 % below prediction of Rosenbaum & Leibel is TEE at a "
+        "maintained reduced weight after >= 10 % loss",
         "synthesis of the above, not a single published number",
     ),
 )
 # Beyond this share of expected TDEE an "adaptation" is more likely a logging or data
-# problem (common practice / judgment, science notes §6).
+# problem (common practice / judgment; the analysis now uses the deficit-scaled rule of
+# reportgen.science.adaptation).
 IMPLAUSIBLE_ADAPTATION_PCT = 20.0
 # Relative SD of a resting equation x activity factor for one person (judgment: resting
 # equations are within about 10 % for most adults and the activity factor is a guess).
@@ -128,7 +136,7 @@ def early_adaptation_kcal(
     Notes
     -----
     The Hall et al. 2011 model's tauAT dAT/dt = betaAT dEI - AT (betaAT 0.14,
-    tauAT 14 days; from memory, science notes §5) after a step dEI = -deficit at
+    tauAT 14 days; Hall et al. 2011, from memory) after a step dEI = -deficit at
     day 0: AT(t) = -betaAT deficit (1 - exp(-t/tauAT)), averaged over the window.
     For a 28-day window from the first day that is 0.077 x the deficit; for
     comparison Muller et al. 2015 (AJCN 102:807-19, abstract) measured 108
@@ -167,7 +175,7 @@ def activity_coefficient_kcal_per_kg_day(
     """Body-weight-proportional activity cost delta from a measured TDEE.
 
     delta = ((1 - betaTEF) TDEE - RMR) / BW [kcal/kg/day], the Hall 2011 definition
-    delta = ((1 - betaTEF) PAL - 1) RMR / BW with PAL = TDEE/RMR (science notes §5);
+    delta = ((1 - betaTEF) PAL - 1) RMR / BW with PAL = TDEE/RMR (Hall et al. 2011);
     not allowed below 0.
     """
     return max(((1.0 - params.beta_tef) * tdee_kcal - resting_kcal) / weight_kg, 0.0)
@@ -207,7 +215,7 @@ def expected_tdee_from_baseline(
     with gF 3.2, gL 22 kcal/kg/day, etaF 180, etaL 230 kcal/kg, betaTEF 0.10 and
     delta from the baseline (:func:`activity_coefficient_kcal_per_kg_day`): the
     terms of the Hall et al. 2011 expenditure equation other than adaptive
-    thermogenesis (science notes §5).  A constant fractional under-logging of
+    thermogenesis (Hall et al. 2011).  A constant fractional under-logging of
     intake enters E0 and the observed TDEE alike, so it largely cancels in the
     adaptation (it remains through betaTEF and the change in intake).
     """
@@ -269,7 +277,7 @@ def adaptation(observed: Estimate, expected: Estimate) -> Adaptation:
     Adaptation
         Negative means expenditure below what body size explains.  ``implausible``
         when |adaptation| exceeds 20 % of expected (more likely a logging or data
-        problem; common practice / judgment, science notes §6).
+        problem; common practice / judgment).
     """
     if not observed.known:
         return Adaptation(

@@ -35,9 +35,11 @@ Codes, in the fixed order :func:`safety_flags` returns them
     (Behnke's reference man/woman, about 3 % and 12 %, from memory; the
     warning margins are common practice).
 ``implausible-adaptation`` (caution)
-    Adaptation estimate beyond ±20 % of expected expenditure, more likely a
-    logging or data problem than physiology (common practice / judgment;
-    published adaptation is typically 5-15 %).
+    The client's data alone put expenditure more than 2.5 SDs from what the
+    literature expects for a deficit of this depth and length (the rule scales
+    with the deficit: Hall et al. 2011's adaptive-thermogenesis term with the
+    between-person spread of Leibel et al. 1995; see
+    ``reportgen.science.adaptation``); more likely a logging or data problem.
 
 References
 ----------
@@ -80,7 +82,6 @@ RAPID_LOSS_PCT_PER_WEEK = 1.0  # Helms 2014 (published)
 RAPID_LOSS_MIN_WEEKS = 2  # "sustained over two weeks or more"
 ESSENTIAL_FAT_MEN_PCT = 5.0  # from memory / common practice
 ESSENTIAL_FAT_WOMEN_PCT = 14.0  # from memory / common practice (upper end of 12-14 %)
-IMPLAUSIBLE_ADAPTATION_PCT = 20.0  # common practice / judgment
 
 
 @dataclass(frozen=True)
@@ -109,8 +110,12 @@ class FlagInputs:
         weeks), negative for a loss. [% of body weight/week]
     bodyfat_pct : float or None
         Latest body-fat estimate. [%]
-    adaptation_pct : float or None
-        Adaptation as % of expected expenditure (observed - expected). [%]
+    adaptation_implausible : bool
+        The client's data alone put expenditure far outside what the literature
+        expects for this deficit (``reportgen.science.adaptation``: more than 2.5
+        SDs from the expectation); more likely logging or data than metabolism.
+    adaptation_data_kcal, adaptation_typical_kcal : float or None
+        The two figures, for the flag's wording. [kcal/day]
     """
 
     sex: Sex | None = None
@@ -122,7 +127,9 @@ class FlagInputs:
     weekly_rates_pct: tuple[float, ...] = ()
     current_rate_pct: float | None = None
     bodyfat_pct: float | None = None
-    adaptation_pct: float | None = None
+    adaptation_implausible: bool = False
+    adaptation_data_kcal: float | None = None
+    adaptation_typical_kcal: float | None = None
 
 
 def _value(x: float | None) -> float | None:
@@ -271,13 +278,13 @@ def safety_flags(inputs: FlagInputs) -> tuple[Flag, ...]:
                 Flag("essential-fat", "caution", {"bodyfat_pct": bf, "threshold_pct": limit})
             )
 
-    ad = _value(inputs.adaptation_pct)
-    if ad is not None and abs(ad) > IMPLAUSIBLE_ADAPTATION_PCT:
-        flags.append(
-            Flag(
-                "implausible-adaptation",
-                "caution",
-                {"adaptation_pct": ad, "threshold_pct": IMPLAUSIBLE_ADAPTATION_PCT},
-            )
-        )
+    if inputs.adaptation_implausible:
+        shown: dict[str, float | str] = {}
+        for key, v in (
+            ("adaptation_kcal", _value(inputs.adaptation_data_kcal)),
+            ("typical_kcal", _value(inputs.adaptation_typical_kcal)),
+        ):
+            if v is not None:
+                shown[key] = v
+        flags.append(Flag("implausible-adaptation", "caution", shown))
     return tuple(flags)

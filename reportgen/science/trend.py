@@ -36,7 +36,7 @@ Z80 = 1.2815515655446004  # two-sided 80 % normal quantile, scipy.stats.norm.ppf
 
 # Grid of signal-to-noise ratios searched by maximum likelihood (variances relative
 # to the observation variance r).  Level ratios span a nearly-flat trend (1/400) to a
-# jumpy one (1/20), with 1/90 the EMA-equivalent value (science notes §7.3); slope
+# jumpy one (1/20), with 1/90 the EMA-equivalent value (steady-state gain, derived below); slope
 # ratios keep the slope changing over weeks, not days.  A 3 x 2 grid fitted the
 # benchmark's trend as well as a 5 x 3 one (RMSE 0.200 vs 0.217 kg) in 40 % of the time.
 LEVEL_RATIOS: tuple[float, ...] = (1 / 400, 1 / 90, 1 / 20)
@@ -232,7 +232,7 @@ def local_level_steady_gain(q_over_r: float) -> float:
 
     Notes
     -----
-    Derived in the science notes (§7.3): q/r = 1/90 gives K = 0.1, which is
+    Derived here from the steady-state Riccati equation: q/r = 1/90 gives K = 0.1, which is
     exponential smoothing with alpha 0.1.
     """
     q = float(q_over_r)
@@ -310,7 +310,7 @@ def ema(weight_kg: FloatArray, alpha: float = 0.1, missing: str = "carry") -> Fl
     -----
     Common practice in weight self-monitoring, no single source.  Step half-life
     ln 0.5 / ln(1 - alpha) = 6.58 days and lag (1 - alpha)/alpha = 9 days of slope
-    on a straight line for alpha 0.1 (science notes §7.3, computed there).
+    on a straight line for alpha 0.1 (computed here: slope (1 - alpha)/alpha).
     """
     if not 0.0 < alpha <= 1.0:
         raise ValueError(f"alpha must be in (0, 1], got {alpha!r}")
@@ -336,7 +336,7 @@ def ema(weight_kg: FloatArray, alpha: float = 0.1, missing: str = "carry") -> Fl
 def ema_series(dates: DateArray, weight_kg: FloatArray, alpha: float = 0.1) -> TrendSeries:
     """EMA as a :class:`~reportgen.results.TrendSeries` (bands and slope SD are NaN).
 
-    The slope is the 7-day difference of the EMA divided by 7 (science notes §7.3).
+    The slope is the 7-day difference of the EMA divided by 7 (common practice).
     """
     level = ema(weight_kg, alpha)
     slope = np.full(len(level), np.nan)

@@ -222,8 +222,8 @@ def simulate_client(
     lean0 = weight0 - fat0
     path = simulate_hall(fat0, lean0, intake_true, base, 0.0, off)
     # Glycogen with its water: a fast shift when the planned intake changes (about 0.9 kg
-    # for a 500 kcal/day cut, time constant 4 days; invented magnitudes in the range the
-    # science notes §4.4 describe, 1-2 kg early in a diet).
+    # for a 500 kcal/day cut, time constant 4 days; invented magnitudes in the usual
+    # 1-2 kg early in a diet).
     glyco_target = np.where(target < ei0, -GLYCOGEN_KG_PER_KCAL * (ei0 - target), 0.0)
     glyco = np.empty(n_days + 1)
     glycogen = spec.glycogen
