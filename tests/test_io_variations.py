@@ -26,6 +26,7 @@ from _io_helpers import (
     write_xlsx,
 )
 from click.testing import CliRunner
+from pypdf import PdfReader
 
 from reportgen.cli import main
 from reportgen.io.units import KCAL_PER_KJ, KG_PER_LB
@@ -236,6 +237,10 @@ def test_weight_only_client_is_read_and_reported(variation_book: Path, batch_run
     for key in ("mean_intake_kcal", "observed_tdee_kcal", "adaptation_kcal"):
         assert row[key] == "", key
     assert (batch_run / "c005.pdf").is_file()
+    # the words say why expenditure is missing: no intake at all, not "a few more weeks"
+    page1 = " ".join(PdfReader(batch_run / "c005.pdf").pages[0].extract_text().split())
+    assert "they need logged intake, and none is logged" in page1
+    assert "more weeks of weigh-ins and intake" not in page1
 
 
 # ------------------------------------------------------------------ headers (refusals)

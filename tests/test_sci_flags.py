@@ -184,3 +184,13 @@ def test_rapid_loss_with_absurd_rates_does_not_raise() -> None:
     huge = (-8.988465674311579e307, -8.98846567431158e307)
     flags = safety_flags(FlagInputs(sex="male", weekly_rates_pct=huge))
     assert [f.code for f in flags] == ["rapid-loss"]
+
+
+def test_rapid_loss_mean_stays_finite_at_the_float_limit() -> None:
+    """Three weeks at -1.797e308 (found by the property test): a sum of the thirds rounds
+    past the float limit; the running mean stays at the common value."""
+    limit = -1.7976931348623157e308
+    flags = safety_flags(FlagInputs(sex="male", weekly_rates_pct=(limit, limit, limit)))
+    (flag,) = flags
+    assert flag.values["mean_rate_pct_per_week"] == limit
+    assert all(math.isfinite(float(v)) for v in flag.values.values())

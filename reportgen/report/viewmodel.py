@@ -32,8 +32,9 @@ RATE_FLAT_PCT = 0.1  # |rate| below this reads as "holding steady" (common pract
 ADAPT_MIN_PCT = 3.0
 # Signals: only changes the analysis sized "moderate" or "large" are called out.
 SIGNAL_NOTABLE = ("moderate", "large")
-# Below-expected expenditure of this share or more is worded as "check logging first": larger
-# than the 5-15 % usually attributed to adaptation (common practice, no single source).
+# Below-expected expenditure of this share or more is worded as "check logging first": several
+# times the 2-4 % of TDEE Hall et al. 2011's model expects for a moderate cut, and as large as
+# Rosenbaum & Leibel's 10-15 % at a maintained reduced weight (judgment).
 ADAPT_LARGE_PCT = 15.0
 LONG_DEFICIT_DAYS = 84  # 12 weeks of continuous deficit: suggest a break (common practice)
 

@@ -33,17 +33,23 @@ LITERATURE_ADAPTATION: tuple[tuple[str, str, str], ...] = (
     ),
     (
         "muller-2015",
-        "REE -266 kcal/day, adaptive thermogenesis -108 kcal/day after 3 weeks at -50 % intake",
+        "REE -266 kcal/day and adaptive thermogenesis -108 kcal/day after 3 weeks at -50 % "
+        "intake, of which about 36 is a change in FFM composition: about -72 kcal/day of "
+        "'true' adaptation, resting expenditure only",
         "published: Muller et al. 2015, AJCN 102:807-19, abstract",
     ),
     (
         "fothergill-2016",
-        "-499 +/- 207 kcal/day six years after extreme loss",
+        "-499 +/- 207 kcal/day of residual resting expenditure (RMR adjusted for FFM, FM and "
+        "age) six years after a 58 kg loss in class III obesity; not a TDEE figure",
         "published: Fothergill et al. 2016, Obesity 24:1612-9, abstract",
     ),
     (
         "synthesis",
-        "typically 5-15 % of TDEE (about 50-300 kcal/day) in moderate diets",
+        "moderate diets: about betaAT x intake cut, 70-100 kcal/day (2-4 % of TDEE) for a "
+        "500-700 kcal/day cut (Hall et al. 2011 model, betaAT 0.14 from memory), plus any fall "
+        "in activity; the 10-15 % below prediction of Rosenbaum & Leibel is TEE at a "
+        "maintained reduced weight after >= 10 % loss",
         "synthesis of the above, not a single published number",
     ),
 )

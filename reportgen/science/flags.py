@@ -163,6 +163,18 @@ def rapid_loss_weeks(weekly_rates_pct: tuple[float, ...]) -> int:
     return n
 
 
+def _running_mean(values: tuple[float, ...]) -> float:
+    """Mean of finite numbers that stays finite near the float limit.
+
+    The running update stays between the smallest and largest value, where a sum
+    (or ``math.fsum``, which raises OverflowError) of rates near 1e308 would not.
+    """
+    mean = 0.0
+    for k, v in enumerate(values, 1):
+        mean += (v - mean) / k
+    return mean
+
+
 def rapid_loss(current_rate_pct: float | None, weekly_rates_pct: tuple[float, ...] = ()) -> bool:
     """The rapid-loss rule: loss faster than 1.0 % of body weight a week.
 
@@ -254,9 +266,7 @@ def safety_flags(inputs: FlagInputs) -> tuple[Flag, ...]:
         if weeks >= RAPID_LOSS_MIN_WEEKS:
             run = inputs.weekly_rates_pct[-weeks:]
             rapid_values["weeks"] = float(weeks)
-            # plain sum: an absurd rate saturates to -inf instead of raising
-            # (math.fsum raises OverflowError on an intermediate overflow)
-            rapid_values["mean_rate_pct_per_week"] = sum(r / weeks for r in run)
+            rapid_values["mean_rate_pct_per_week"] = _running_mean(run)
             rapid_values["fastest_rate_pct_per_week"] = min(run)
         flags.append(Flag("rapid-loss", "caution", rapid_values))
 
