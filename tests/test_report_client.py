@@ -395,3 +395,17 @@ def test_the_chart_fonts_are_made_byte_identically_wherever_they_are_made(tmp_pa
     time.sleep(1.1)  # a save-time timestamp would show up as a difference
     second = _chart_font_file(CHART_FONT_LATIN, CHART_FONT_LATIN_RANGES, tmp_path / "b")
     assert first.read_bytes() == second.read_bytes()
+
+
+def test_rating_changes_are_put_in_words_as_printed() -> None:
+    """Hunger and energy changes in words: under a point "about the same", two points or
+    more "clearly" (common practice, no single source), judged on the one-decimal value
+    the report prints beside the words."""
+    from reportgen.report.plateau_view import rating_words
+
+    assert rating_words(0.94) == "about the same as"
+    assert rating_words(-0.9) == "about the same as"
+    assert rating_words(0.96) == "a little higher than"  # printed +1.0
+    assert rating_words(1.5) == "a little higher than"
+    assert rating_words(-1.96) == "clearly lower than"  # printed −2.0
+    assert rating_words(3.0) == "clearly higher than"
