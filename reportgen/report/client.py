@@ -168,6 +168,7 @@ def render_client_report(
     pv = plateau_view(analysis, config) if "overview" in sections else None
     # the progress section states the ratings beside the causes and offers the break
     causes = pv is not None and showing_causes(pv)
+    vm.extra["plateau_causes"] = causes
     vm.extra["plateau_hunger"] = causes and pv is not None and bool(pv.hunger_words)
     vm.extra["plateau_energy"] = causes and pv is not None and bool(pv.energy_words)
     vm.extra["plateau_break"] = pv is not None and any(
