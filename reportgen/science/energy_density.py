@@ -183,6 +183,37 @@ def glycogen_step_kg(intake_change_kcal: float) -> tuple[float, float]:
     return GLYCOGEN_STEP_KG_PER_KCAL * d, GLYCOGEN_STEP_SD_KG_PER_KCAL * abs(d)
 
 
+# Smallest prior SD of a step (judgment): a phase change with little change in logged
+# intake can still move carbohydrate and salt, and the logged change is itself uncertain.
+GLYCOGEN_STEP_MIN_SD_KG = 0.3
+
+
+def glycogen_step_prior_sd_kg(intake_change_kcal: float) -> float:
+    """Prior SD of a zero-mean glycogen-and-water step for a trend fit. [kg]
+
+    Parameters
+    ----------
+    intake_change_kcal : float
+        Change in daily intake where the step starts. [kcal/day]
+
+    Returns
+    -------
+    float
+        sqrt(step^2 + sd^2) from :func:`glycogen_step_kg` (the root mean square
+        of the step about zero, so a zero-mean prior has the same second moment
+        as the sized one and does not pull the fit towards a value a client with
+        larger or smaller stores would not have), at least 0.3 kg. [kg]
+
+    Notes
+    -----
+    Check (computed here): a 1000 kcal/day cut gives sqrt(1.4^2 + 0.5^2) =
+    1.487 kg, about the 1-2 kg of glycogen with its water seen early in a diet
+    (Hall 2008, from memory).
+    """
+    step, sd = glycogen_step_kg(intake_change_kcal)
+    return max(math.hypot(step, sd), GLYCOGEN_STEP_MIN_SD_KG)
+
+
 def glycogen_remaining_share(days_since_change: float) -> tuple[float, float]:
     """Share of the glycogen step still to come after t days, with its SD.
 

@@ -19,6 +19,7 @@ The energy balance (``reportgen.science.balance``) turns these rates into energy
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -312,6 +313,12 @@ SEGMENT_MARGIN_DAYS = 56  # neighbouring days used on each side (judgment, tuned
 # a shift is absorbed without being mistaken for tissue.
 SHIFT_TAU_DAYS = 4.0
 SHIFT_PRIOR_SD_KG = 1.0
+# The time constant is uncertain, 3-10 days (uniform; see
+# reportgen.science.energy_density.GLYCOGEN_TAU_RANGE_DAYS): a fit that allows for it
+# uses the midpoints of three equal parts of that range (segment_rate's shift_tau_days).
+# The analysis does not use it yet: on bench/bench_adaptation.py it improved the
+# scenario with a slow, large glycogen shift but lost accuracy on honest clients.
+SHIFT_TAU_GRID_DAYS = (3.0 + 7.0 / 6.0, 6.5, 10.0 - 7.0 / 6.0)
 # A step that started this long before the first weigh-in is over (1 - exp(-3) = 95 %):
 # nothing of it is left to separate from tissue.
 START_SHIFT_SPAN_DAYS = 3 * SHIFT_TAU_DAYS
@@ -328,6 +335,8 @@ def segment_rate(
     shift_prior_sd_kg: float | None = SHIFT_PRIOR_SD_KG,
     edge_knots: bool = True,
     start_shift_at: int | None = None,
+    step_sd_kg: Mapping[int, float] | None = None,
+    shift_tau_days: Sequence[float] = (SHIFT_TAU_DAYS,),
 ) -> WindowRate | None:
     """Rate over a window from a piecewise-linear GLS fit that spans its edges.
 
@@ -357,6 +366,18 @@ def segment_rate(
         step starts there too, without a change of slope (there is no earlier
         segment).  Ignored when the step would be over before the first weigh-in
         (more than ``START_SHIFT_SPAN_DAYS`` earlier) or with no shift prior.
+    step_sd_kg : mapping of int to float, optional
+        Prior SD of the step starting at a given index, e.g. scaled with the size
+        of the intake change there
+        (:func:`reportgen.science.energy_density.glycogen_step_prior_sd_kg`);
+        steps not in it use ``shift_prior_sd_kg``. [kg]
+    shift_tau_days : sequence of float, default (4.0,)
+        Time constants of the step's exponential approach.  With more than one,
+        the model is fitted at each and the fits are averaged with weights
+        proportional to their marginal likelihoods (equal prior weights: the grid
+        stands for a uniform prior on the time constant); the rate's SE is that of
+        the mixture (law of total variance), so the uncertainty of the time
+        constant widens it. [day]
 
     Returns
     -------
@@ -403,46 +424,72 @@ def segment_rate(
         and t[0] - START_SHIFT_SPAN_DAYS <= start_shift_at <= t[0]
     ):
         sk.insert(0, start_shift_at)
-    if shift_prior_sd_kg is not None:
-        cols += [np.where(t >= k, 1.0 - np.exp(-(t - k) / SHIFT_TAU_DAYS), 0.0) for k in sk]
-    x = np.column_stack(cols)
-
-    def row(day: float) -> FloatArray:
-        """Design row at a (possibly unobserved) day, for linear functionals of beta."""
-        r = [1.0, day - t[0]] + [max(day - k, 0.0) for k in kn]
-        if shift_prior_sd_kg is not None:
-            r += [1.0 - math.exp(-(day - k) / SHIFT_TAU_DAYS) if day >= k else 0.0 for k in sk]
-        return np.asarray(r)
-
-    # Mean tissue rate over the window = (tissue at i1 + 1 - tissue at i0) / days, and
-    # the glycogen-and-water shift inside the window; with knots only at the window's
-    # edges the first is simply the slope of the window's segment.
+    x_lin = np.column_stack(cols)
     days = float(i1 + 1 - i0)
-    diff = row(i1 + 1.0) - row(float(i0))
-    sel = np.zeros(x.shape[1])
-    sel[:n_lin] = diff[:n_lin] / days
-    shift_sel = np.zeros(x.shape[1])
-    shift_sel[n_lin:] = diff[n_lin:]
-    prior = np.zeros(x.shape[1])
-    if shift_prior_sd_kg is not None:
-        prior[n_lin:] = 1.0 / shift_prior_sd_kg**2
+    n_steps = len(sk) if shift_prior_sd_kg is not None else 0
+    prior = np.zeros(n_lin + n_steps)
+    if shift_prior_sd_kg is not None and n_steps:
+        default_sd = shift_prior_sd_kg
+        sds = step_sd_kg or {}
+        prior[n_lin:] = [1.0 / sds.get(k, default_sd) ** 2 for k in sk]
     if noise is None:
         amp, phi, white = 0.0, 0.0, None
     else:
         amp, phi, white = noise.ar_var_kg2, noise.phi, noise.white_var_kg2
-    if white is None or amp + white <= 0:
-        # independent noise: WLS with the residual variance (prior scaled to it)
-        xw = x * wt[:, None]
-        beta = np.linalg.pinv(x.T @ xw) @ (xw.T @ y)
-        res = y - x @ beta
-        s2 = max(float(np.dot(wt, res * res) / max(t.size - x.shape[1], 1)), 1e-12)
-        cov = np.linalg.pinv(x.T @ xw / s2 + np.diag(prior))
-        beta = cov @ (xw.T @ y / s2)
-    else:
-        beta, cov = _gls_ar1_white(t, y, x, amp, phi, white / wt, prior)
+    taus = tuple(shift_tau_days) if n_steps else (SHIFT_TAU_DAYS,)
+    fits = []
+    s2 = None
+    for tau in taus:
+        x = x_lin
+        if n_steps:
+            steps = [np.where(t >= k, 1.0 - np.exp(-(t - k) / tau), 0.0) for k in sk]
+            x = np.column_stack([x_lin, *steps])
+        # Mean tissue rate over the window = (tissue at i1 + 1 - tissue at i0) / days, and
+        # the glycogen-and-water shift inside the window; with knots only at the window's
+        # edges the first is simply the slope of the window's segment.
+        diff = _row(i1 + 1.0, t[0], kn, sk[:n_steps], tau) - _row(
+            float(i0), t[0], kn, sk[:n_steps], tau
+        )
+        sel = np.zeros(x.shape[1])
+        sel[:n_lin] = diff[:n_lin] / days
+        shift_sel = np.zeros(x.shape[1])
+        shift_sel[n_lin:] = diff[n_lin:]
+        if white is None or amp + white <= 0:
+            # independent noise: WLS with the residual variance (prior scaled to it)
+            xw = x * wt[:, None]
+            if s2 is None:
+                # the variance from the fit without steps' prior, once for all time constants
+                beta0 = np.linalg.pinv(x.T @ xw) @ (xw.T @ y)
+                res0 = y - x @ beta0
+                s2 = max(float(np.dot(wt, res0 * res0) / max(t.size - x.shape[1], 1)), 1e-12)
+            info = x.T @ xw / s2 + np.diag(prior)
+            cov = np.linalg.pinv(info)
+            xty = xw.T @ y / s2
+            beta = cov @ xty
+            r = y - x @ beta
+            quad = float(np.dot(wt, r * r)) / s2 + float(beta @ (prior * beta))
+            log_ev = -0.5 * quad - 0.5 * _logdet(info)
+        else:
+            beta, cov, log_ev = _gls_ar1_white(t, y, x, amp, phi, white / wt, prior)
+        fits.append((log_ev, beta, cov, sel, shift_sel, x))
+    # average over the time constants, weights proportional to the marginal likelihoods
+    log_ev_all = np.array([f[0] for f in fits])
+    pw = np.exp(log_ev_all - log_ev_all.max())
+    pw /= pw.sum()
+    m_rate = np.array([float(f[3] @ f[1]) for f in fits])
+    m_shift = np.array([float(f[4] @ f[1]) for f in fits])
+    v_rate = np.array([float(f[3] @ f[2] @ f[3]) for f in fits])
+    v_shift = np.array([float(f[4] @ f[2] @ f[4]) for f in fits])
+    c_rs = np.array([float(f[3] @ f[2] @ f[4]) for f in fits])
+    slope = float(pw @ m_rate)
+    shift = float(pw @ m_shift)
+    var_rate = float(pw @ (v_rate + (m_rate - slope) ** 2))
+    var_shift = float(pw @ (v_shift + (m_shift - shift) ** 2))
+    cov_rs = float(pw @ (c_rs + (m_rate - slope) * (m_shift - shift)))
+    best = fits[int(np.argmax(pw))]
+    beta, x = best[1], best[5]
     res = y - x @ beta
-    slope = float(sel @ beta)
-    se = math.sqrt(max(float(sel @ cov @ sel), 0.0))
+    se = math.sqrt(max(var_rate, 0.0))
     tw = t[(t >= i0) & (t <= i1)]
     n_in = tw.size
     resid_sd = float(np.sqrt(np.mean(res * res)))
@@ -456,10 +503,24 @@ def segment_rate(
         resid_sd_kg=resid_sd,
         n_obs=n_in,
         days=i1 - i0 + 1,
-        shift_kg=float(shift_sel @ beta),
-        shift_se_kg=math.sqrt(max(float(shift_sel @ cov @ shift_sel), 0.0)),
-        rate_shift_cov=float(sel @ cov @ shift_sel),
+        shift_kg=shift,
+        shift_se_kg=math.sqrt(max(var_shift, 0.0)),
+        rate_shift_cov=cov_rs,
     )
+
+
+def _row(day: float, t0: float, kn: list[int], sk: list[int], tau: float) -> FloatArray:
+    """Design row of :func:`segment_rate` at a (possibly unobserved) day."""
+    r = [1.0, day - t0] + [max(day - k, 0.0) for k in kn]
+    r += [1.0 - math.exp(-(day - k) / tau) if day >= k else 0.0 for k in sk]
+    return np.asarray(r)
+
+
+def _logdet(a: FloatArray) -> float:
+    """log det of a symmetric positive semi-definite matrix (singular directions ignored)."""
+    ev = np.linalg.eigvalsh(a)
+    ev = ev[ev > 1e-12 * max(float(ev.max()), 1e-300)]
+    return float(np.sum(np.log(ev)))
 
 
 def _gls_ar1_white(
@@ -470,7 +531,7 @@ def _gls_ar1_white(
     phi: float,
     dvar: FloatArray,
     prior_precision: FloatArray | None = None,
-) -> tuple[FloatArray, FloatArray]:
+) -> tuple[FloatArray, FloatArray, float]:
     """GLS with Sigma = amp R(phi) + diag(dvar), R_ij = phi^|t_i - t_j|, in O(n).
 
     ``prior_precision`` adds a zero-mean Gaussian prior on the coefficients
@@ -478,7 +539,11 @@ def _gls_ar1_white(
 
     The AR(1) process sampled at (possibly irregular) times is Markov, so R^-1 is
     tridiagonal; by the Woodbury identity Sigma^-1 = D^-1 - D^-1 (R^-1/amp + D^-1)^-1
-    D^-1 with a banded inner solve.  Returns (beta, Var beta).
+    D^-1 with a banded inner solve.  Returns (beta, Var beta, log evidence), the
+    last up to terms that do not depend on X: -(y'S^-1 y - beta'X'S^-1 y)/2 -
+    log det(X'S^-1 X + P)/2, the log marginal likelihood of the data with the
+    coefficients integrated out (flat prior where P is 0), for comparing designs
+    that differ only in their prior-bearing columns.
     """
     dinv = 1.0 / dvar
     dx = x * dinv[:, None]
@@ -508,5 +573,10 @@ def _gls_ar1_white(
     if prior_precision is not None:
         info = info + np.diag(prior_precision)
     cov = np.linalg.pinv(info)
-    beta = cov @ (x.T @ siy)
-    return beta, cov
+    xty = x.T @ siy
+    beta = cov @ xty
+    # the minimised objective (y - X b)'S^-1 (y - X b) + b'P b, from the residuals
+    quad = float((y - x @ beta) @ (siy - six @ beta))
+    if prior_precision is not None:
+        quad += float(beta @ (prior_precision * beta))
+    return beta, cov, -0.5 * quad - 0.5 * _logdet(info)
