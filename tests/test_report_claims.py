@@ -452,3 +452,28 @@ def test_progress_section_matches_the_analysis(client_id: str) -> None:
             assert f"Your hunger ratings are {words} then" in section
         if p.energy_change is not None:
             assert f"energy ratings {RATING_WORDS[rating_key(p.energy_change)]} then" in section
+
+
+def test_cannot_tell_yet_prints_the_range_its_decision_used() -> None:
+    """'We cannot tell yet' is decided on the rate's 95 % interval holding zero
+    (science.plateau.ZERO_Z; two-sided normal 95 %, scipy.stats.norm.ppf(0.975)); the sentence
+    prints that range, so the page never pairs "cannot tell" with an 80 % range that excludes
+    no change."""
+    seen = 0
+    for cid in CLIENTS:
+        p = sample_analysis(cid).plateau
+        if p is None or p.reason != "interval-too-wide":
+            continue
+        seen += 1
+        r = p.recent_rate_pct_per_week
+        assert r.value is not None and r.low is not None and r.high is not None
+        se = (r.high - r.low) / (2 * 1.2815515655446004)  # 80 % half-width / norm.ppf(0.9)
+        lo, hi = r.value - 1.959963984540054 * se, r.value + 1.959963984540054 * se
+        assert lo <= 0.0 <= hi, cid  # the decision's interval holds no change
+        text = " ".join(sample_pages(cid))
+        m = re.search(r"vary too much \(95 % range (\S+) to (\S+) %, which holds no change\)", text)
+        assert m is not None, cid
+        printed_lo, printed_hi = (float(g.replace(MINUS, "-")) for g in m.groups())
+        assert printed_lo == pytest.approx(lo, abs=0.006), cid  # printed to 2 decimals
+        assert printed_hi == pytest.approx(hi, abs=0.006), cid
+    assert seen, "no sample client reads 'cannot tell yet' on a wide interval"

@@ -16,7 +16,9 @@ from reportlab.lib.units import mm
 from reportlab.platypus import Flowable, Table, TableStyle
 
 from reportgen.config import Config
-from reportgen.results import ClientAnalysis, PlateauResult
+from reportgen.results import ClientAnalysis, Estimate, PlateauResult
+from reportgen.science.plateau import ZERO_Z
+from reportgen.science.trend import Z80
 
 from . import theme as T
 from .para import Paragraph
@@ -37,6 +39,14 @@ class CauseRow:
     text: str = ""  # e.g. "120 kcal/day"
     interval: str = ""  # e.g. "40-200 kcal/day"
     closed: bool = True  # closed (True) or widened (False) the deficit
+
+
+def _decision_interval(u: Units, r: Estimate) -> str:
+    """The rate's 95 % range, widened from its printed 80 % range (normal, same SE)."""
+    if r.value is None or r.low is None or r.high is None:
+        return ""
+    half = (r.high - r.low) / 2 * ZERO_Z / Z80
+    return u.interval(Estimate(r.value, r.value - half, r.value + half), "pct_change")
 
 
 @dataclass
@@ -74,6 +84,8 @@ class PlateauView:
     gap: str = ""
     options: list[dict[str, str]] = field(default_factory=list)
     cautions: tuple[str, ...] = ()
+    # the 95 % range that the "cannot tell yet" decision uses (science.plateau.ZERO_Z)
+    rate_interval_decision: str = ""
 
 
 def plateau_view(a: ClientAnalysis, config: Config) -> PlateauView | None:
@@ -92,6 +104,7 @@ def plateau_view(a: ClientAnalysis, config: Config) -> PlateauView | None:
         weeks=p.recent_days // 7,
         rate=u.pct(r.value, dp=2, signed=True) if r.known else "",
         rate_interval=u.interval(r, "pct_change") if r.known else "",
+        rate_interval_decision=_decision_interval(u, r),
         planned=(
             u.pct(p.planned_rate_pct_per_week, dp=2, signed=True)
             if p.planned_rate_pct_per_week is not None
