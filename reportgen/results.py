@@ -19,6 +19,8 @@ from reportgen.month import ReportMonth
 
 FlagSeverity = Literal["info", "caution", "urgent"]
 
+Z80 = 1.2815515655446004  # two-sided 80 % normal quantile, scipy.stats.norm.ppf(0.9)
+
 # Stable codes set by ``reportgen.analysis`` (templates word them; tests check that no
 # other code appears).
 # Estimate.reason when a value is missing:
@@ -84,6 +86,18 @@ class Estimate:
     @classmethod
     def missing(cls, reason: str) -> Estimate:
         return cls(value=None, reason=reason)
+
+    @classmethod
+    def normal(cls, value: float, sd: float) -> Estimate:
+        """``value`` with the 80 % interval of a normal distribution of SD ``sd``."""
+        return cls(value, value - Z80 * sd, value + Z80 * sd)
+
+    @property
+    def normal_sd(self) -> float:
+        """The normal SD behind an 80 % interval (0.0 when there is no interval)."""
+        if self.low is None or self.high is None:
+            return 0.0
+        return (self.high - self.low) / (2.0 * Z80)
 
 
 NOT_ASSESSED = Estimate.missing("not-assessed")

@@ -30,7 +30,6 @@ from reportgen.science.adaptation import (
 )
 from reportgen.science.balance import WindowBalance
 from reportgen.science.expected import Baseline
-from reportgen.science.trend import Z80
 
 
 @dataclass(frozen=True)
@@ -39,12 +38,6 @@ class WindowSpan:
 
     first: int
     last: int
-
-
-def _sd(e: Estimate) -> float:
-    if e.low is None or e.high is None:
-        return 0.0
-    return (e.high - e.low) / (2.0 * Z80)
 
 
 def baseline_span(ctx: ClientContext, baseline: Baseline) -> WindowSpan | None:

@@ -18,7 +18,6 @@ from reportgen.io.model import ClientRecord, DailyLog, FloatArray, Phase
 from reportgen.month import ReportMonth
 from reportgen.results import Estimate
 from reportgen.science import balance as energy_balance
-from reportgen.science.trend import Z80
 
 MIN_ANALYSIS_DAYS = energy_balance.MIN_DAYS
 # Phase kinds whose start is an intake change when they are the first phase of the data.
@@ -189,7 +188,7 @@ def estimate(value: float | None, sd: float | None) -> Estimate:
         return Estimate.missing("not-estimable")
     if sd is None or not math.isfinite(sd):
         return Estimate(value)
-    return Estimate(value, value - Z80 * sd, value + Z80 * sd)
+    return Estimate.normal(value, sd)
 
 
 def scaled(value: Estimate, factor: float) -> Estimate:

@@ -15,7 +15,7 @@ from reportgen.analysis.context import ClientContext, PhaseWindow
 from reportgen.analysis.expenditure import ExpenditureStage
 from reportgen.analysis.resting import RestingModel
 from reportgen.analysis.trend import TrendStage
-from reportgen.results import Estimate, PlateauOption, PlateauPart, PlateauResult
+from reportgen.results import Estimate, PlateauResult
 from reportgen.science.expected import Baseline
 from reportgen.science.plateau_assess import PlateauInputs, assess_plateau
 
@@ -101,7 +101,7 @@ def plateau_stage(
         planned_source=got.planned_source,
         recent_days=recent_days,
         change_kcal=missing if c is None else c.change_kcal,
-        parts=() if c is None else tuple(PlateauPart(p.code, p.kcal) for p in c.parts),
+        parts=() if c is None else c.parts,
         leftover_kcal=None if c is None else c.leftover_kcal,
         largest=None if c is None else c.largest,
         causes_reason=got.causes_reason,
@@ -113,7 +113,7 @@ def plateau_stage(
         hunger_change=got.hunger_change,
         energy_change=got.energy_change,
         gap_kcal=got.gap_kcal,
-        options=tuple(PlateauOption(o.code, dict(o.values)) for o in got.options.options),
+        options=got.options.options,
         cautions=got.options.cautions,
     )
 

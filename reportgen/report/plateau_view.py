@@ -18,7 +18,6 @@ from reportlab.platypus import Flowable, Table, TableStyle
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate, PlateauResult
 from reportgen.science.plateau import ZERO_Z
-from reportgen.science.trend import Z80
 
 from . import theme as T
 from .para import Paragraph
@@ -45,7 +44,7 @@ def _decision_interval(u: Units, r: Estimate) -> str:
     """The rate's 95 % range, widened from its printed 80 % range (normal, same SE)."""
     if r.value is None or r.low is None or r.high is None:
         return ""
-    half = (r.high - r.low) / 2 * ZERO_Z / Z80
+    half = ZERO_Z * r.normal_sd
     return u.interval(Estimate(r.value, r.value - half, r.value + half), "pct_change")
 
 

@@ -47,7 +47,6 @@ from reportgen.science._checks import finite
 from reportgen.science.hall import HALL_2011, HallParams
 from reportgen.science.implied_intake import implied_intake as _implied
 from reportgen.science.implied_intake import implied_intake_change_kcal
-from reportgen.science.trend import Z80
 
 # Between-person spread of adaptation relative to its mean: Leibel et al. 1995 report the
 # fall in TEE after >= 10 % loss as 6 +/- 3 (never obese) and 8 +/- 5 (obese) kcal/kg FFM/day
@@ -147,10 +146,6 @@ def literature_adaptation_kcal(
     cv = math.hypot(BETWEEN_PERSON_CV, COEFFICIENT_CV)
     sd = math.hypot(cv * mean, LITERATURE_SD_FLOOR_KCAL)
     return mean, sd
-
-
-def _interval(mean: float, sd: float) -> Estimate:
-    return Estimate(mean, mean - Z80 * sd, mean + Z80 * sd)
 
 
 def _normal_cdf(x: float) -> float:
@@ -265,7 +260,7 @@ def combine_adaptation(
         p_drift = e1 / (e0 + e1)
         weights, means, sds = [1 - p_drift, p_drift], [m0, m1], [s0, s1]
     if p_drift < 1e-9:
-        combined = _interval(m0, s0)
+        combined = Estimate.normal(m0, s0)
     else:
         combined = Estimate(
             _mixture_quantile(weights, means, sds, 0.5),
@@ -275,8 +270,8 @@ def combine_adaptation(
     assert combined.low is not None and combined.high is not None
     implausible = abs(d - m) > IMPLAUSIBLE_Z * math.hypot(sd, se)
     return AdaptationEvidence(
-        data=_interval(d, se),
-        literature=_interval(m, sd),
+        data=Estimate.normal(d, se),
+        literature=Estimate.normal(m, sd),
         combined=combined,
         data_weight=w0,
         logging_drift_probability=p_drift,
@@ -409,25 +404,19 @@ def decompose_expenditure_change(
     if measured:
         act = _require("activity_kcal", activity_kcal)
         asd = _require("activity_sd_kcal", activity_sd_kcal)
-        activity = _interval(act, asd)
+        activity = Estimate.normal(act, asd)
     else:
         act = asd = 0.0
         activity = Estimate.missing("not-measured")
     rem = tot - body - act
     rsd = math.sqrt(tse * tse + bsd * bsd + asd * asd)
     return ExpenditureChange(
-        total=_interval(tot, tse),
-        body_size=_interval(body, bsd),
+        total=Estimate.normal(tot, tse),
+        body_size=Estimate.normal(body, bsd),
         activity=activity,
-        metabolic=_interval(rem, rsd),
+        metabolic=Estimate.normal(rem, rsd),
         activity_measured=measured,
     )
-
-
-def _sd(e: Estimate) -> float:
-    if e.low is None or e.high is None:
-        return 0.0
-    return (e.high - e.low) / (2.0 * Z80)
 
 
 @dataclass(frozen=True)
@@ -509,7 +498,7 @@ def assess_phase_adaptation(
     assert observed_tdee.value is not None and expected_tdee.value is not None
     assert phase_deficit.value is not None
     d_def = phase_deficit.value - baseline_deficit_kcal
-    d_def_se = math.hypot(_sd(phase_deficit), 0.0)
+    d_def_se = phase_deficit.normal_sd
     cut = implied_intake_change_kcal(d_def, body_size_kcal, 0.0, 0.0, params)
     lit_mean, lit_sd = literature_adaptation_kcal(min(cut, 0.0), first_day, days, params)
     cut = implied_intake_change_kcal(d_def, body_size_kcal, lit_mean, 0.0, params)
@@ -517,7 +506,7 @@ def assess_phase_adaptation(
     if activity is None:
         lit_sd = math.hypot(lit_sd, UNMEASURED_ACTIVITY_SD_KCAL)
 
-    obs_sd, exp_sd = _sd(observed_tdee), _sd(expected_tdee)
+    obs_sd, exp_sd = observed_tdee.normal_sd, expected_tdee.normal_sd
     total = observed_tdee.value - baseline_tdee_kcal
     total_se = math.hypot(obs_sd, baseline_tdee_se_kcal)
     body = expected_tdee.value - baseline_tdee_kcal

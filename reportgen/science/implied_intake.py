@@ -37,7 +37,6 @@ from dataclasses import dataclass
 from reportgen.results import Estimate
 from reportgen.science._checks import finite
 from reportgen.science.hall import HALL_2011, HallParams
-from reportgen.science.trend import Z80
 
 
 def _req(name: str, value: object) -> float:
@@ -145,9 +144,9 @@ def implied_intake(
         + (k * _req("deficit_change_se_kcal", deficit_change_se_kcal)) ** 2
         + (k * _req("adaptation_sd_kcal", adaptation_sd_kcal)) ** 2
     )
-    imp = Estimate(value, value - Z80 * sd, value + Z80 * sd)
+    imp = Estimate.normal(value, sd)
     if logged_kcal is None or not finite(logged_kcal):
         return ImpliedIntake(imp, None, Estimate.missing("no-intake"))
     g = float(logged_kcal) - value
     gsd = math.hypot(sd, _req("logged_se_kcal", logged_se_kcal))
-    return ImpliedIntake(imp, float(logged_kcal), Estimate(g, g - Z80 * gsd, g + Z80 * gsd))
+    return ImpliedIntake(imp, float(logged_kcal), Estimate.normal(g, gsd))

@@ -56,7 +56,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from reportgen.io.model import FloatArray
-from reportgen.results import Estimate
+from reportgen.results import Estimate, PlateauOption
 from reportgen.science.flags import (
     BMI_UNDERWEIGHT,
     INTAKE_FLOOR_MEN_KCAL,
@@ -468,16 +468,8 @@ def progress_status(
 
 
 @dataclass(frozen=True)
-class DiscussionOption:
-    """An option to discuss with the client, with the numbers behind it."""
-
-    code: str  # "intake-for-planned-rate", "extra-steps", "maintenance-break", "recheck"
-    values: dict[str, float] = field(default_factory=dict)
-
-
-@dataclass(frozen=True)
 class PlateauOptions:
-    options: tuple[DiscussionOption, ...]
+    options: tuple[PlateauOption, ...]
     cautions: tuple[str, ...]  # "refer-practitioner", "below-intake-floor", "minor", ...
 
 
@@ -574,14 +566,10 @@ def discussion_options(
         cautions.append("low-bmi")
     if cautions:
         return PlateauOptions((), ("refer-practitioner", *cautions))
-    opts: list[DiscussionOption] = []
+    opts: list[PlateauOption] = []
     if status == "likely-water":
         return PlateauOptions(
-            (
-                DiscussionOption(
-                    "recheck", {"days_min": RECHECK_DAYS[0], "days_max": RECHECK_DAYS[1]}
-                ),
-            ),
+            (PlateauOption("recheck", {"days_min": RECHECK_DAYS[0], "days_max": RECHECK_DAYS[1]}),),
             (),
         )
     if status in ("stalled", "slower"):
@@ -596,13 +584,13 @@ def discussion_options(
                     vals |= {"low_kcal": ifr.low, "high_kcal": ifr.high}
                 if recent_intake_kcal is not None:
                     vals["change_kcal"] = ifr.value - recent_intake_kcal
-                opts.append(DiscussionOption("intake-for-planned-rate", vals))
+                opts.append(PlateauOption("intake-for-planned-rate", vals))
         if gap_kcal is not None and gap_kcal > 0 and kcal_per_step is not None:
             steps = steps_to_close_gap(gap_kcal, kcal_per_step)
             vals = {"steps": float(steps), "gap_kcal": gap_kcal}
             if steps > STEPS_LARGE:
                 vals["large"] = 1.0
-            opts.append(DiscussionOption("extra-steps", vals))
+            opts.append(PlateauOption("extra-steps", vals))
     if (
         status not in ("too-early", "not-in-deficit")
         and days_in_deficit is not None
@@ -611,7 +599,7 @@ def discussion_options(
         and deficit_depth_pct >= BREAK_MIN_DEPTH_PCT
     ):
         opts.append(
-            DiscussionOption(
+            PlateauOption(
                 "maintenance-break",
                 {
                     "weeks": float(BREAK_WEEKS),

@@ -38,7 +38,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from reportgen.io.model import FloatArray
-from reportgen.results import Estimate
+from reportgen.results import Estimate, PlateauPart
 from reportgen.science.adaptation import (
     ExpenditureChange,
     body_size_change_kcal,
@@ -48,7 +48,6 @@ from reportgen.science.adaptation import (
 )
 from reportgen.science.hall import HALL_2011, HallParams
 from reportgen.science.implied_intake import implied_intake
-from reportgen.science.trend import Z80
 
 CAUSE_CODES: tuple[str, ...] = ("intake", "body-size", "activity", "metabolic", "logging")
 
@@ -104,19 +103,11 @@ def signal_mean(values: FloatArray) -> tuple[float | None, float | None]:
 
 
 @dataclass(frozen=True)
-class CausePart:
-    """One cause's effect on the realised deficit (negative = it closed the deficit)."""
-
-    code: str  # one of CAUSE_CODES
-    kcal: Estimate  # 80 % interval; missing with reason "not-measured" when not measured
-
-
-@dataclass(frozen=True)
 class DeficitChangeCauses:
     """Why the realised deficit changed between the phase's first weeks and now."""
 
     change_kcal: Estimate  # recent - early realised deficit (negative = shrank)
-    parts: tuple[CausePart, ...]
+    parts: tuple[PlateauPart, ...]
     leftover_kcal: float  # change minus the sum of the parts (what noise keeps unplaced)
     largest: str | None  # code of the part that closed the deficit most, if any did
     intake_change_kcal: float | None  # logged intake now minus then
@@ -126,15 +117,11 @@ class DeficitChangeCauses:
     metabolic_expected_kcal: float  # the literature expectation used as the prior mean
     expenditure: ExpenditureChange  # the adaptation work's decomposition of the change
 
-    def part(self, code: str) -> CausePart:
+    def part(self, code: str) -> PlateauPart:
         for p in self.parts:
             if p.code == code:
                 return p
         raise KeyError(code)
-
-
-def _est(value: float, sd: float) -> Estimate:
-    return Estimate(value, value - Z80 * sd, value + Z80 * sd)
 
 
 def deficit_change_causes(
@@ -266,13 +253,13 @@ def deficit_change_causes(
     sd_u = s_u * math.sqrt(max(1 - s_u * s_u / total, 0.0))
     leftover = innov * noise_var / total
     values: dict[str, Estimate] = {
-        "intake": _est(*intake_part),
-        "body-size": _est(size, size_sd),
+        "intake": Estimate.normal(*intake_part),
+        "body-size": Estimate.normal(size, size_sd),
         "activity": expenditure.activity,
-        "metabolic": _est(d_at, sd_at),
-        "logging": _est(-d_u, sd_u),
+        "metabolic": Estimate.normal(d_at, sd_at),
+        "logging": Estimate.normal(-d_u, sd_u),
     }
-    out_parts = tuple(CausePart(code, values[code]) for code in CAUSE_CODES)
+    out_parts = tuple(PlateauPart(code, values[code]) for code in CAUSE_CODES)
     closing = [(p.kcal.value, p.code) for p in out_parts if p.kcal.value is not None]
     worst = min(closing, default=None)
     largest = worst[1] if worst is not None and worst[0] < 0 else None
@@ -289,7 +276,7 @@ def deficit_change_causes(
         params=params,
     )
     return DeficitChangeCauses(
-        change_kcal=_est(d_change, d_sd),
+        change_kcal=Estimate.normal(d_change, d_sd),
         parts=out_parts,
         leftover_kcal=leftover,
         largest=largest,

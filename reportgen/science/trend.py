@@ -29,10 +29,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from reportgen.io.model import DateArray, FloatArray
+from reportgen.results import Z80 as Z80
 from reportgen.results import TrendSeries
 from reportgen.science.kalman import InitialState, TwoStateModel, kalman_smoother
-
-Z80 = 1.2815515655446004  # two-sided 80 % normal quantile, scipy.stats.norm.ppf(0.9)
 
 # Grid of signal-to-noise ratios searched by maximum likelihood (variances relative
 # to the observation variance r).  Level ratios span a nearly-flat trend (1/400) to a
