@@ -305,34 +305,28 @@ def trend_with_water(
     y = [float(v) if math.isfinite(v) else math.nan for v in w]
     h = [white_share / max(float(x), 1e-9) for x in u]
 
-    def run(ql: float, qs: float, smooth: bool) -> tuple[float, int, TrendWaterOutput]:
+    def run(ql: float, qs: float, smooth: bool) -> tuple[float, TrendWaterOutput]:
+        """Concentrated scale (mean v^2/F; the noise model's total without terms)."""
         model = TrendWaterModel(ql, qs, phi, water_q, _DIFFUSE, _DIFFUSE_SLOPE)
         out = trend_water_smoother(y, h, model, smooth=smooth, diffuse_observations=2)
-        if out.terms == 0:
-            return 1.0, 0, out
-        s = max(out.sum_sq / out.terms, 1e-12)
-        return s, out.terms, out
+        s = max(out.sum_sq / out.terms, 1e-12) if out.terms else tot
+        return s, out
 
     if level_ratio is not None and slope_ratio is not None:
         ql, qs = float(level_ratio), float(slope_ratio)
+    elif n_obs <= 2:  # two weigh-ins only set the level and slope: no likelihood to compare
+        ql, qs = LEVEL_RATIOS[1], SLOPE_RATIOS[0]
     else:
         best: tuple[float, float, float] | None = None
         for ql_ in WATER_LEVEL_RATIOS:
             for qs_ in SLOPE_RATIOS:
-                s, m, out = run(ql_, qs_, smooth=False)
-                if m == 0:
-                    best = (0.0, LEVEL_RATIOS[1], SLOPE_RATIOS[0])
-                    break
-                loglik = -0.5 * (out.sum_log_f + m * math.log(s))
+                s, out = run(ql_, qs_, smooth=False)
+                loglik = -0.5 * (out.sum_log_f + out.terms * math.log(s))
                 if best is None or loglik > best[0]:
                     best = (loglik, ql_, qs_)
-            if best is not None and best[0] == 0.0:
-                break
         assert best is not None
         ql, qs = best[1], best[2]
-    s, m, out = run(ql, qs, smooth=True)
-    if m == 0:
-        s = tot
+    s, out = run(ql, qs, smooth=True)
     sm = out.smoothed
     assert sm is not None
     return TrendFit(
