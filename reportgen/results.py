@@ -287,7 +287,7 @@ class PlateauResult:
     water_reasons: tuple[str, ...]
     recent_rate_pct_per_week: Estimate
     planned_rate_pct_per_week: float | None
-    planned_source: str | None  # "target" or "early-rate"
+    planned_source: str | None  # "target", "early-rate" or "target-and-early-rate"
     recent_days: int
     change_kcal: Estimate  # realised deficit now minus in the phase's first weeks
     parts: tuple[PlateauPart, ...]  # empty when the causes cannot be split

@@ -87,7 +87,8 @@ def plateau_stage(
     got = assess_plateau(inputs)
     st = got.status
     c = got.causes
-    recent_days = got.recent.days if got.recent is not None else 0
+    # the span of the rate the status used (four weeks, or longer by the sequential rule)
+    recent_days = st.window_days or (got.recent.days if got.recent is not None else 0)
     missing = Estimate.missing(got.causes_reason or "not-estimable")
     return PlateauResult(
         phase_name=win.phase.name,
