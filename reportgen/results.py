@@ -304,6 +304,8 @@ class PlateauResult:
     gap_kcal: float | None  # planned minus recent realised deficit
     options: tuple[PlateauOption, ...]
     cautions: tuple[str, ...]
+    # the same rate as recent_rate_pct_per_week, in kg/week at today's trend weight
+    recent_rate_kg_per_week: Estimate = field(default_factory=lambda: Estimate.missing("no-rate"))
 
     def part(self, code: str) -> PlateauPart | None:
         for p in self.parts:

@@ -466,13 +466,24 @@ def test_maintenance_break_after_a_long_deep_deficit() -> None:
     assert got.options[0].values["weeks"] == 2.0  # MATADOR's two-week breaks
     assert _opts("on-track", days_in_deficit=83, deficit_depth_pct=30.0).options == ()
     assert _opts("on-track", days_in_deficit=120, deficit_depth_pct=19.9).options == ()
-    assert _opts("too-early", days_in_deficit=120, deficit_depth_pct=30.0).options == ()
+    # one rule (science.diet_break), whatever the status: a new deficit phase inside a
+    # long run of them is still a long deficit
+    assert [
+        o.code for o in _opts("too-early", days_in_deficit=120, deficit_depth_pct=30.0).options
+    ] == ["maintenance-break"]
+    # unknown depth: the length alone decides, as in the narrative
+    unknown = _opts("on-track", days_in_deficit=90, deficit_depth_pct=None)
+    assert [o.code for o in unknown.options] == ["maintenance-break"]
+    assert "depth_pct" not in unknown.options[0].values
+    assert _opts("not-in-deficit", days_in_deficit=120, deficit_depth_pct=30.0).options == ()
 
 
 def test_likely_water_means_recheck() -> None:
-    got = _opts("likely-water", days_in_deficit=120, deficit_depth_pct=30.0)
+    got = _opts("likely-water", days_in_deficit=60, deficit_depth_pct=30.0)
     assert [o.code for o in got.options] == ["recheck"]
     assert got.options[0].values == {"days_min": 7, "days_max": 14}
+    long = _opts("likely-water", days_in_deficit=120, deficit_depth_pct=30.0)
+    assert [o.code for o in long.options] == ["recheck", "maintenance-break"]
 
 
 # ---------------------------------------------------------------- recent rate

@@ -116,6 +116,19 @@ def plateau_stage(
         gap_kcal=got.gap_kcal,
         options=got.options.options,
         cautions=got.options.cautions,
+        recent_rate_kg_per_week=_kg_per_week(st.rate_pct_per_week, trend.current_weight_kg),
+    )
+
+
+def _kg_per_week(pct: Estimate, weight_kg: float) -> Estimate:
+    """A rate in % of body weight per week as kg/week at the weight it was scaled by."""
+    if pct.value is None:
+        return pct
+    k = weight_kg / 100.0
+    return Estimate(
+        pct.value * k,
+        None if pct.low is None else pct.low * k,
+        None if pct.high is None else pct.high * k,
     )
 
 

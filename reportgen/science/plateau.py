@@ -57,6 +57,7 @@ import numpy as np
 
 from reportgen.io.model import FloatArray
 from reportgen.results import Estimate, PlateauOption
+from reportgen.science.diet_break import BREAK_WEEKS, diet_break_due
 from reportgen.science.flags import (
     BMI_UNDERWEIGHT,
     INTAKE_FLOOR_MEN_KCAL,
@@ -130,14 +131,8 @@ BREAK_WATER_DAYS = GLYCOGEN_WEEKS_DAYS  # glycogen refilled in a break leaves wi
 INTAKE_RISE_KCAL = 300.0  # a step up in mean intake inside the window (second vs first half)
 MIN_HALF_LOGGED_DAYS = 5
 
-# Options.
-# A break at maintenance is suggested after this long a deficit at this depth (judgment,
-# informed by MATADOR, Byrne et al. 2018 [4]_: 16 weeks of restriction to 67 % of energy
-# requirements; two-week breaks at maintenance between two-week blocks gave more fat loss
-# and a smaller fall in resting expenditure than continuous restriction).
-BREAK_MIN_DAYS_IN_DEFICIT = 84
-BREAK_MIN_DEPTH_PCT = 20.0
-BREAK_WEEKS = 2  # MATADOR's break length
+# Options.  When a break at maintenance is offered: science.diet_break, the one rule the
+# report's narrative uses too (evidence from Byrne et al. 2018 [4]_, judgment marked there).
 STEPS_ROUND = 100
 STEPS_LARGE = 5000  # more extra steps than this a day: say so (judgment)
 RECHECK_DAYS = (7, 14)
@@ -626,11 +621,11 @@ def discussion_options(
       below the intake floor (1200 kcal/day women, 1500 men; common practice,
       flags.py): then the caution "below-intake-floor" instead.
     * ``extra-steps``: the gap over the cost per step (:func:`steps_to_close_gap`).
-    * ``maintenance-break``: after at least 12 weeks in deficit at a depth of at
-      least 20 % of maintenance (judgment, informed by Byrne et al. 2018 [4]_,
-      whose two-week breaks at maintenance gave more fat loss than continuous
-      restriction to 67 % of requirements), whatever the status.
-    * ``likely-water``: "recheck" in 7-14 days, nothing else.
+    * ``likely-water``: "recheck" in 7-14 days, and no option that changes intake.
+    * ``maintenance-break``: whenever ``diet_break.diet_break_due`` says so (at
+      least 12 weeks in deficit at a depth of at least 20 % of maintenance, or of
+      unknown depth; evidence and judgment in ``reportgen.science.diet_break``),
+      whatever the status, so that the report's narrative and this section agree.
     """
     cautions: list[str] = []
     if minor:
@@ -643,9 +638,8 @@ def discussion_options(
         return PlateauOptions((), ("refer-practitioner", *cautions))
     opts: list[PlateauOption] = []
     if status == "likely-water":
-        return PlateauOptions(
-            (PlateauOption("recheck", {"days_min": RECHECK_DAYS[0], "days_max": RECHECK_DAYS[1]}),),
-            (),
+        opts.append(
+            PlateauOption("recheck", {"days_min": RECHECK_DAYS[0], "days_max": RECHECK_DAYS[1]})
         )
     if status in ("stalled", "slower"):
         ifr = intake_for_planned_rate
@@ -666,21 +660,10 @@ def discussion_options(
             if steps > STEPS_LARGE:
                 vals["large"] = 1.0
             opts.append(PlateauOption("extra-steps", vals))
-    if (
-        status not in ("too-early", "not-in-deficit")
-        and days_in_deficit is not None
-        and deficit_depth_pct is not None
-        and days_in_deficit >= BREAK_MIN_DAYS_IN_DEFICIT
-        and deficit_depth_pct >= BREAK_MIN_DEPTH_PCT
-    ):
-        opts.append(
-            PlateauOption(
-                "maintenance-break",
-                {
-                    "weeks": float(BREAK_WEEKS),
-                    "days_in_deficit": float(days_in_deficit),
-                    "depth_pct": deficit_depth_pct,
-                },
-            )
-        )
+    if status != "not-in-deficit" and diet_break_due(days_in_deficit, deficit_depth_pct):
+        assert days_in_deficit is not None
+        vals = {"weeks": float(BREAK_WEEKS), "days_in_deficit": float(days_in_deficit)}
+        if deficit_depth_pct is not None:
+            vals["depth_pct"] = deficit_depth_pct
+        opts.append(PlateauOption("maintenance-break", vals))
     return PlateauOptions(tuple(opts), tuple(cautions))
