@@ -89,6 +89,12 @@ def test_overview_lists_every_client_and_every_failure() -> None:
     assert "Clients without a report this month" in text
     assert '"81,6kg" is not a number' in text
     assert reader.metadata.author == "Kestrel Row Nutrition"
+    # the cautions, thresholds from science.flags
+    assert "Not medical advice or a diagnosis" in text
+    assert "medical supervision for anyone under 18, pregnant or breastfeeding" in text
+    assert "a BMI under 18.5, a medical condition or a history of disordered eating" in text
+    assert "intake below about 1,200 kcal/day (women) or 1,500 kcal/day (men)" in text
+    assert "a loss over about 1 % of body weight a week" in text
     assert non_embedded_fonts(data) == []
     assert not chars_outside(data, 14 * 72 / 25.4)
 
