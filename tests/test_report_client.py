@@ -423,3 +423,13 @@ def test_phase_table_names_kinds_in_words(tmp_path: Path) -> None:
     table = flat(next(p for p in pages if "Phases so far" in p))
     assert "Report month no phases recorded 01 Nov 2026" in table
     assert "Report month month" not in table
+
+
+def test_eating_above_expenditure_is_said_as_above_not_a_negative_below() -> None:
+    """c006 holds steady in maintenance with a realised deficit of about -50 kcal/day."""
+    ph = sample_analysis("c006").current_phase
+    assert ph is not None and ph.realised_deficit_kcal.value < 0
+    text = flat(pdf_pages_text(rendered("c006"))[0])
+    size = kcal(abs(ph.realised_deficit_kcal.value))
+    assert f"about {size} kcal/day above what you burned" in text
+    assert "below what you burned" not in text

@@ -150,6 +150,14 @@ def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
     return out
 
 
+def _deficit_words(u: Units, ph: PhaseResult | None) -> tuple[str, str]:
+    """The realised deficit as a size and a side: ("50 kcal/day", "below" or "above")."""
+    value = ph.realised_deficit_kcal.value if ph is not None else None
+    if value is None:
+        return "", ""
+    return u.e(abs(value)), "below" if value >= 0 else "above"
+
+
 def _phase_row(u: Units, p: PhaseResult) -> dict[str, str]:
     def est(e: Estimate, kind: str) -> str:
         return u.fmt(e.value, kind, unit=False) if e.known else "–"
@@ -327,6 +335,9 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     story: dict[str, Any] = {
         "change_dir": _direction(a.month_change_kg),
         "change_abs": "" if a.month_change_kg.value is None else u.w(abs(a.month_change_kg.value)),
+        # the realised deficit in words: "about 50 kcal/day more than", never "−50 ... below"
+        "deficit_abs": _deficit_words(u, ph)[0],
+        "deficit_side": _deficit_words(u, ph)[1],
         "rate_band": "unknown" if no_month_data else _rate_band(a.weekly_rate_pct.value, rapid),
         "no_month_data": no_month_data,
         "last_weigh_in": u.d(last_weigh_in) if last_weigh_in else "",
