@@ -112,3 +112,15 @@ def test_empty_batch_renders() -> None:
     data = render_overview([], [("c001", "no daily log file")], SAMPLE_MONTH, Config())
     text = " ".join(pdf_pages_text(data))
     assert "No clients in this batch." in text and "no daily log file" in text
+
+
+def test_header_counts_what_is_listed_first() -> None:
+    """The header must not say flagged clients come first when stalled ones sort above
+    cautions: it counts both groups that are listed first."""
+    data = render_overview(lines(), [], SAMPLE_MONTH, CONFIG)
+    text = " ".join(" ".join(pdf_pages_text(data)).split())
+    flagged = sum(1 for ln in lines() if ln.flags)
+    stalled = sum(1 for ln in lines() if ln.progress_status in PROGRESS_WEIGHT)
+    assert flagged and stalled  # the sample book has both
+    assert f"listed first: {flagged} with flags and {stalled} whose progress has stalled" in text
+    assert "to look at first" not in text

@@ -105,6 +105,7 @@ def render_overview(
         month=ReportMonth(month).label,
         count=str(len(ordered)),
         attention=str(sum(1 for ln in ordered if ln.flags)),
+        stalled=str(sum(1 for ln in ordered if ln.progress_status in PROGRESS_WEIGHT)),
         failed=str(len(failures)),
         caution=caution_values(u),
     )
