@@ -52,7 +52,7 @@ def test_one_page_with_identification_period_and_references(client_id: str) -> N
         cited = short_citation(m.reference, doi=False)
         assert " ".join(cited.split()) in text, f"{m.code}: citation"
     assert "Practitioner's note" in text and "Signature" in text
-    assert f"{a.quality.days_in_period} days analysed" in text
+    assert f"November 2026 ({a.quality.days_in_period} days): weigh-ins on" in text
 
 
 @pytest.mark.parametrize("client_id", ["c001", "c002"])
@@ -154,3 +154,14 @@ def test_summary_carries_the_cautions() -> None:
     text = flat(rendered("c001"))
     for phrase in CAUTIONS:
         assert phrase in text, phrase
+
+
+def test_pregnancy_statuses_and_blank_estimates_in_words(tmp_path: Path) -> None:
+    """Special handling: the phase status and the blank estimates say so in words, once."""
+    book = write_tiny_book(tmp_path / "book", "Petra Quill", days=40, pregnant=True)
+    text = flat(render_practitioner_summary(analyse_book(book, "t001"), CONFIG))
+    assert "Special handling: pregnant." in text
+    assert "special-handling" not in text
+    assert "– trend only" in text  # the phase table's status column
+    assert "not estimated: this client needs medical supervision; energy" not in text
+    assert text.count("not estimated: this client needs medical supervision") == 4

@@ -217,11 +217,11 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
                     f"for {u.pct(-rate, dp=2)} body weight/week",
                 )
             )
-    # An estimate that could not be made says why in the method column, where there is room.
-    for n, (key, value, interval, method) in enumerate(rows):
+    # An estimate that could not be made says why in the method column, where there is room
+    # (in place of the method: nothing was computed by it).
+    for n, (key, value, interval, _method) in enumerate(rows):
         if value == DASH and interval.startswith("(") and interval.endswith(")"):
-            why = interval[1:-1]
-            rows[n] = (key, value, "", why if method in ("", DASH) else f"{why}; {method}")
+            rows[n] = (key, value, "", interval[1:-1])
     return SummaryView(base=vm, rows=rows, ident=ident)
 
 
@@ -411,7 +411,7 @@ def render_practitioner_summary(
                 esc(p["tdee"]),
                 esc(p["adaptation"]),
                 esc(p["bodyfat"]),
-                esc(p["status"]),
+                words.text("phase_status", p["status"]),
             ]
             for p in sv.phases
         ]
