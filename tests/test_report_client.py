@@ -433,3 +433,17 @@ def test_eating_above_expenditure_is_said_as_above_not_a_negative_below() -> Non
     size = kcal(abs(ph.realised_deficit_kcal.value))
     assert f"about {size} kcal/day above what you burned" in text
     assert "below what you burned" not in text
+
+
+def test_special_handling_cards_do_not_say_not_estimated_twice(tmp_path: Path) -> None:
+    book = write_tiny_book(tmp_path / "book", "Petra Quill", days=40, pregnant=True)
+    page1 = flat(pdf_pages_text(render_client_report(analyse_book(book, "t001"), CONFIG))[0])
+    assert "Not estimated trend weight only: this client needs medical supervision" in page1
+    assert "Not estimated not estimated" not in page1
+
+
+def test_a_minor_is_not_sent_to_a_midwife(tmp_path: Path) -> None:
+    book = write_tiny_book(tmp_path / "book", "Milo Young", days=40, birth_date="2010-03-01")
+    page1 = flat(pdf_pages_text(render_client_report(analyse_book(book, "t001"), CONFIG))[0])
+    assert "Because you are under 18" in page1 and "these need the care of a doctor." in page1
+    assert "midwife" not in page1

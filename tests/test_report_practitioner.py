@@ -163,5 +163,5 @@ def test_pregnancy_statuses_and_blank_estimates_in_words(tmp_path: Path) -> None
     assert "Special handling: pregnant." in text
     assert "special-handling" not in text
     assert "– trend only" in text  # the phase table's status column
-    assert "not estimated: this client needs medical supervision; energy" not in text
-    assert text.count("not estimated: this client needs medical supervision") == 4
+    assert "medical supervision; energy balance" not in text
+    assert text.count("trend weight only: this client needs medical supervision") == 4
