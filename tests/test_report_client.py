@@ -447,3 +447,16 @@ def test_a_minor_is_not_sent_to_a_midwife(tmp_path: Path) -> None:
     page1 = flat(pdf_pages_text(render_client_report(analyse_book(book, "t001"), CONFIG))[0])
     assert "Because you are under 18" in page1 and "these need the care of a doctor." in page1
     assert "midwife" not in page1
+
+
+def test_activity_baseline_without_a_deficit_phase_is_the_first_two_weeks(tmp_path: Path) -> None:
+    """No phases: the signals' baseline is the first 14 logged days (science.signals), not
+    "before the first deficit"; c001 has a baseline phase before its deficit."""
+    book = write_tiny_book(tmp_path / "book", "Nell Ashby", days=60)
+    (book / "phases.csv").unlink()
+    text = flat(" ".join(pdf_pages_text(render_client_report(analyse_book(book, "t001"), CONFIG))))
+    assert "the dashed line marks your level in your first two weeks of logs" in text
+    assert "before the first deficit" not in text
+    assert "marks your level before the first deficit" in flat(
+        " ".join(pdf_pages_text(rendered("c001")))
+    )

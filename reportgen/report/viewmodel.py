@@ -449,6 +449,9 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
             if s.name in ("steps", "hunger", "energy")
         ),
         "planned_intake": False,  # set by the layout: whether the energy chart draws it
+        # the signals' baseline is the time before the first deficit phase, or without one
+        # the first 14 logged days (science.signals.summarise_signal)
+        "signal_baseline_before_deficit": any(p.kind == "deficit" for p in a.phases),
     }
     return ClientView(
         practice=practice_view(config),
