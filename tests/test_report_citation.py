@@ -40,6 +40,15 @@ def test_journal_reference_loses_its_title_and_keeps_authors_source_and_doi() ->
     )
 
 
+def test_without_doi_the_source_still_ends_with_its_stop() -> None:
+    assert (
+        short_citation(MIFFLIN, doi=False) == "Mifflin MD, et al. Am J Clin Nutr 1990;51:241-247."
+    )
+    assert short_citation(HALL_FORBES, doi=False) == (
+        "Hall KD. Int J Obes 2008;32:573-576. Forbes GB. Nutr Rev 1987;45:225-231."
+    )
+
+
 def test_two_references_in_one_and_a_title_ending_in_a_question_mark() -> None:
     assert short_citation(HALL_FORBES) == (
         "Hall KD. Int J Obes 2008;32:573-576. doi:10.1038/sj.ijo.0803720. "
@@ -71,8 +80,13 @@ PIECES = st.sampled_from(
 @given(st.lists(st.one_of(PIECES, st.text(max_size=12)), max_size=30).map("".join))
 def test_never_longer_and_every_source_and_doi_kept(text: str) -> None:
     """Reference-like pieces in any order: the result is never longer, and every
-    "Year;" (a journal source) and every DOI of the input is still there."""
+    "Year;" (a journal source) and every DOI of the input is still there (without DOIs:
+    every source outside them)."""
     short = short_citation(text)
     assert len(short) <= len(text)
     assert re.findall(r"(?:1[89]|20)\d\d;", short) == re.findall(r"(?:1[89]|20)\d\d;", text)
     assert short.count("doi:") == text.count("doi:")
+    bare = short_citation(text, doi=False)
+    assert len(bare) <= len(short)
+    outside_dois = re.sub(r" doi:\S+", "", text)  # a "Year;" inside a DOI is no source
+    assert re.findall(r"(?:1[89]|20)\d\d;", bare) == re.findall(r"(?:1[89]|20)\d\d;", outside_dois)

@@ -430,3 +430,40 @@ def test_phase_table_names_kinds_in_words(tmp_path: Path) -> None:
     table = flat(next(p for p in pages if "Phases so far" in p))
     assert "Report month no phases recorded 01 Nov 2026" in table
     assert "Report month month" not in table
+
+
+def test_eating_above_expenditure_is_said_as_above_not_a_negative_below() -> None:
+    """c006 holds steady in maintenance with a realised deficit of about -50 kcal/day."""
+    ph = sample_analysis("c006").current_phase
+    assert ph is not None and ph.realised_deficit_kcal.value < 0
+    text = flat(pdf_pages_text(rendered("c006"))[0])
+    size = kcal(abs(ph.realised_deficit_kcal.value))
+    assert f"about {size} kcal/day above what you burned" in text
+    assert "below what you burned" not in text
+
+
+def test_special_handling_cards_do_not_say_not_estimated_twice(tmp_path: Path) -> None:
+    book = write_tiny_book(tmp_path / "book", "Petra Quill", days=40, pregnant=True)
+    page1 = flat(pdf_pages_text(render_client_report(analyse_book(book, "t001"), CONFIG))[0])
+    assert "Not estimated trend weight only: this client needs medical supervision" in page1
+    assert "Not estimated not estimated" not in page1
+
+
+def test_a_minor_is_not_sent_to_a_midwife(tmp_path: Path) -> None:
+    book = write_tiny_book(tmp_path / "book", "Milo Young", days=40, birth_date="2010-03-01")
+    page1 = flat(pdf_pages_text(render_client_report(analyse_book(book, "t001"), CONFIG))[0])
+    assert "Because you are under 18" in page1 and "these need the care of a doctor." in page1
+    assert "midwife" not in page1
+
+
+def test_activity_baseline_without_a_deficit_phase_is_the_first_two_weeks(tmp_path: Path) -> None:
+    """No phases: the signals' baseline is the first 14 logged days (science.signals), not
+    "before the first deficit"; c001 has a baseline phase before its deficit."""
+    book = write_tiny_book(tmp_path / "book", "Nell Ashby", days=60)
+    (book / "phases.csv").unlink()
+    text = flat(" ".join(pdf_pages_text(render_client_report(analyse_book(book, "t001"), CONFIG))))
+    assert "the dashed line marks your level in your first two weeks of logs" in text
+    assert "before the first deficit" not in text
+    assert "marks your level before the first deficit" in flat(
+        " ".join(pdf_pages_text(rendered("c001")))
+    )

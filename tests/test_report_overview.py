@@ -89,6 +89,12 @@ def test_overview_lists_every_client_and_every_failure() -> None:
     assert "Clients without a report this month" in text
     assert '"81,6kg" is not a number' in text
     assert reader.metadata.author == "Kestrel Row Nutrition"
+    # the cautions, thresholds from science.flags
+    assert "Not medical advice or a diagnosis" in text
+    assert "medical supervision for anyone under 18, pregnant or breastfeeding" in text
+    assert "a BMI under 18.5, a medical condition or a history of disordered eating" in text
+    assert "intake below about 1,200 kcal/day (women) or 1,500 kcal/day (men)" in text
+    assert "a loss over about 1 % of body weight a week" in text
     assert non_embedded_fonts(data) == []
     assert not chars_outside(data, 14 * 72 / 25.4)
 
@@ -106,3 +112,15 @@ def test_empty_batch_renders() -> None:
     data = render_overview([], [("c001", "no daily log file")], SAMPLE_MONTH, Config())
     text = " ".join(pdf_pages_text(data))
     assert "No clients in this batch." in text and "no daily log file" in text
+
+
+def test_header_counts_what_is_listed_first() -> None:
+    """The header must not say flagged clients come first when stalled ones sort above
+    cautions: it counts both groups that are listed first."""
+    data = render_overview(lines(), [], SAMPLE_MONTH, CONFIG)
+    text = " ".join(" ".join(pdf_pages_text(data)).split())
+    flagged = sum(1 for ln in lines() if ln.flags)
+    stalled = sum(1 for ln in lines() if ln.progress_status in PROGRESS_WEIGHT)
+    assert flagged and stalled  # the sample book has both
+    assert f"listed first: {flagged} with flags and {stalled} whose progress has stalled" in text
+    assert "to look at first" not in text

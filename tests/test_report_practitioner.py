@@ -49,9 +49,10 @@ def test_one_page_with_identification_period_and_references(client_id: str) -> N
         # the name's headline (up to a colon) and the citation without titles; methods.pdf
         # carries both in full
         assert " ".join(m.name.split(":")[0].split()) in text, f"reference {m.code} missing"
-        assert " ".join(short_citation(m.reference).split()) in text, f"{m.code}: citation"
+        cited = short_citation(m.reference, doi=False)
+        assert " ".join(cited.split()) in text, f"{m.code}: citation"
     assert "Practitioner's note" in text and "Signature" in text
-    assert f"{a.quality.days_in_period} days analysed" in text
+    assert f"November 2026 ({a.quality.days_in_period} days): weigh-ins on" in text
 
 
 @pytest.mark.parametrize("client_id", ["c001", "c002"])
@@ -120,8 +121,8 @@ def test_the_densest_pages_stay_legible_and_references_are_not_smaller(client_id
 
 def test_reference_list_drops_titles_but_keeps_what_finds_the_paper() -> None:
     text = flat(rendered("c001"))
-    # Mifflin et al. 1990: authors shortened, title left out, journal, volume, pages, DOI kept
-    assert "Mifflin MD, et al. Am J Clin Nutr 1990;51:241-247. doi:10.1093/ajcn/51.2.241" in text
+    # Mifflin et al. 1990: authors shortened, title and DOI left out, journal, volume, pages kept
+    assert "Mifflin MD, et al. Am J Clin Nutr 1990;51:241-247. [4]" in text
     assert "A new predictive equation for resting energy expenditure" not in text
 
 
@@ -134,3 +135,33 @@ def test_a_book_without_phases_gets_words_not_codes(tmp_path: Path) -> None:
     assert "Report month (no phases recorded)" in text
     assert "no baseline period to compare against" in text
     assert "(no-baseline)" not in text and " month 01 Nov" not in text
+
+
+CAUTIONS = (
+    "Not medical advice or a diagnosis",
+    "local regulations and licensed practice come first",
+    "medical supervision for anyone under 18, pregnant or breastfeeding",
+    "a BMI under 18.5",
+    "a history of disordered eating",
+    "intake below about 1,200 kcal/day (women) or 1,500 kcal/day (men)",
+    "800 kcal/day only under medical care",
+    "a loss over about 1 % of body weight a week",
+)
+
+
+def test_summary_carries_the_cautions() -> None:
+    """The thresholds are science.flags' (1,200/1,500/800 kcal/day, BMI 18.5, 1 %/week)."""
+    text = flat(rendered("c001"))
+    for phrase in CAUTIONS:
+        assert phrase in text, phrase
+
+
+def test_pregnancy_statuses_and_blank_estimates_in_words(tmp_path: Path) -> None:
+    """Special handling: the phase status and the blank estimates say so in words, once."""
+    book = write_tiny_book(tmp_path / "book", "Petra Quill", days=40, pregnant=True)
+    text = flat(render_practitioner_summary(analyse_book(book, "t001"), CONFIG))
+    assert "Special handling: pregnant." in text
+    assert "special-handling" not in text
+    assert "– trend only" in text  # the phase table's status column
+    assert "medical supervision; energy balance" not in text
+    assert text.count("trend weight only: this client needs medical supervision") == 4

@@ -3,7 +3,8 @@
 The methods table holds full references in the Vancouver style the analysis writes
 (``Authors. Title. Journal Year;Volume:Pages. doi:...``). A one-page summary has no room for
 titles, so :func:`short_citation` keeps what finds the paper (first authors, journal, year,
-volume, pages, DOI) and leaves the title out; ``methods.pdf`` keeps the full text. Anything
+volume, pages, and the DOI unless asked not to) and leaves the title out; ``methods.pdf``
+keeps the full text. Anything
 that is not a journal reference in that form (a book, a report, free text) is returned as it
 is, so nothing is ever lost or garbled.
 """
@@ -34,11 +35,18 @@ def _short_authors(authors: str) -> str:
     return f"{names[0]}, et al"
 
 
-def short_citation(reference: str) -> str:
+# ". doi:10.1093/ajcn/51.2.241" with the stops around it, up to the next space or the end;
+# it becomes the one stop that ends the source before it
+_DOI = re.compile(r"\.? doi:\S+?\.?(?=\s|$)")
+
+
+def short_citation(reference: str, *, doi: bool = True) -> str:
     """``reference`` with the titles of its journal references left out, authors shortened
-    to the first one plus "et al" when there are more than two."""
+    to the first one plus "et al" when there are more than two; without DOIs when ``doi``
+    is false (journal, year, volume and pages still find the paper)."""
 
     def shorten(m: re.Match[str]) -> str:
         return f"{_short_authors(m['authors'])}. {m['source']}"
 
-    return _JOURNAL_REFERENCE.sub(shorten, reference)
+    short = _JOURNAL_REFERENCE.sub(shorten, reference)
+    return short if doi else _DOI.sub(".", short)

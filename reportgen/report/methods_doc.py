@@ -23,6 +23,7 @@ from reportgen.month import ReportMonth
 from reportgen.results import MethodUsed
 from reportgen.science import flags as F
 
+from .cautions import caution_values
 from .layout import data_table, practice_header
 from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
@@ -118,12 +119,7 @@ def render_methods(
         adapt_min=u.pct(ADAPT_MIN_PCT, dp=0),
         projection_weeks=str(config.report.projection_weeks),
         recent_weeks=str(RECENT_DAYS // 7),
-        adult_age=str(F.ADULT_AGE_YEARS),
-        bmi_low=u.number(F.BMI_UNDERWEIGHT, 1),
-        floor_women=u.e(F.INTAKE_FLOOR_WOMEN_KCAL),
-        floor_men=u.e(F.INTAKE_FLOOR_MEN_KCAL),
-        vlcd=u.e(F.INTAKE_VLCD_KCAL),
-        rapid=u.pct(F.RAPID_LOSS_PCT_PER_WEEK, dp=0),
+        **caution_values(u),
         methods=[
             SimpleNamespace(name=m.name, see=m.see or "", reference=m.reference, clients=str(n))
             for m, n in used

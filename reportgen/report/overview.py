@@ -13,6 +13,7 @@ from reportgen.config import Config
 from reportgen.month import ReportMonth
 from reportgen.results import ClientAnalysis
 
+from .cautions import caution_values
 from .layout import data_table, practice_header
 from .overview_model import OverviewLine
 from .para import Paragraph
@@ -104,7 +105,9 @@ def render_overview(
         month=ReportMonth(month).label,
         count=str(len(ordered)),
         attention=str(sum(1 for ln in ordered if ln.flags)),
+        stalled=str(sum(1 for ln in ordered if ln.progress_status in PROGRESS_WEIGHT)),
         failed=str(len(failures)),
+        caution=caution_values(u),
     )
     story: list[Flowable] = []
     story += practice_header(config, theme, width)[:1]
@@ -159,6 +162,7 @@ def render_overview(
         story.append(Paragraph(esc(L["none"]), theme["body"]))
     story.append(Spacer(1, 2 * mm))
     story.append(Paragraph(words.text("footnote", vm), theme["small"]))
+    story.append(Paragraph(words.text("caution", vm), theme["small"]))
     if failures:
         story.append(Spacer(1, 5 * mm))
         h = Paragraph(esc(L["failed"]), theme["h2"])

@@ -18,6 +18,7 @@ from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate
 
 from . import theme as T
+from .cautions import caution_values
 from .citation import short_citation
 from .client import Timing
 from .layout import data_table
@@ -216,11 +217,11 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
                     f"for {u.pct(-rate, dp=2)} body weight/week",
                 )
             )
-    # An estimate that could not be made says why in the method column, where there is room.
-    for n, (key, value, interval, method) in enumerate(rows):
+    # An estimate that could not be made says why in the method column, where there is room
+    # (in place of the method: nothing was computed by it).
+    for n, (key, value, interval, _method) in enumerate(rows):
         if value == DASH and interval.startswith("(") and interval.endswith(")"):
-            why = interval[1:-1]
-            rows[n] = (key, value, "", why if method in ("", DASH) else f"{why}; {method}")
+            rows[n] = (key, value, "", interval[1:-1])
     return SummaryView(base=vm, rows=rows, ident=ident)
 
 
@@ -249,9 +250,10 @@ def _method_name(a: ClientAnalysis, code: str) -> str:
 
 def _short_method(m: dict[str, str]) -> dict[str, str]:
     """A method for the summary's reference list: its name up to a colon (the name's
-    headline; the rest restates what the table says) and the citation without titles.
-    ``methods.pdf`` carries both in full."""
-    return {**m, "name": m["name"].split(":")[0], "reference": short_citation(m["reference"])}
+    headline; the rest restates what the table says) and the citation without titles and
+    DOIs (room for the cautions).  ``methods.pdf`` carries both in full."""
+    short = short_citation(m["reference"], doi=False)
+    return {**m, "name": m["name"].split(":")[0], "reference": short}
 
 
 def _title(text: str, theme: Theme, width: float, outline: str) -> list[Flowable]:
@@ -409,7 +411,7 @@ def render_practitioner_summary(
                 esc(p["tdee"]),
                 esc(p["adaptation"]),
                 esc(p["bodyfat"]),
-                esc(p["status"]),
+                words.text("phase_status", p["status"]),
             ]
             for p in sv.phases
         ]
@@ -454,7 +456,8 @@ def render_practitioner_summary(
         # the cells' size: the references are read, not decoration
         refs_style = ParagraphStyle("refs", parent=theme["small"], leading=T.SIZE_SMALL * 1.2)
         body.append(Paragraph(f"<b>{esc(L['references'])}.</b> {refs}", refs_style))
-    body.append(Paragraph(words.text("footnote", sv), theme["small"]))
+    caution = words.text("caution", caution_values(Units.from_config(config)))
+    body.append(Paragraph(words.text("footnote", sv) + " " + caution, theme["small"]))
     body.append(Spacer(1, 1 * mm))
     sig = _signature(words, theme, width)
     story: list[Flowable] = [

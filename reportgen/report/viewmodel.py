@@ -158,6 +158,14 @@ def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
     return out
 
 
+def _deficit_words(u: Units, ph: PhaseResult | None) -> tuple[str, str]:
+    """The realised deficit as a size and a side: ("50 kcal/day", "below" or "above")."""
+    value = ph.realised_deficit_kcal.value if ph is not None else None
+    if value is None:
+        return "", ""
+    return u.e(abs(value)), "below" if value >= 0 else "above"
+
+
 def _phase_row(u: Units, p: PhaseResult) -> dict[str, str]:
     def est(e: Estimate, kind: str) -> str:
         return u.fmt(e.value, kind, unit=False) if e.known else "–"
@@ -348,6 +356,9 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     story: dict[str, Any] = {
         "change_dir": _direction(a.month_change_kg),
         "change_abs": "" if a.month_change_kg.value is None else u.w(abs(a.month_change_kg.value)),
+        # the realised deficit in words: "about 50 kcal/day more than", never "−50 ... below"
+        "deficit_abs": _deficit_words(u, ph)[0],
+        "deficit_side": _deficit_words(u, ph)[1],
         "rate_band": "unknown"
         if no_month_data
         else _rate_band(pct.value, rapid, a.plateau.status if span_weeks and a.plateau else None),
@@ -460,6 +471,9 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
             if s.name in ("steps", "hunger", "energy")
         ),
         "planned_intake": False,  # set by the layout: whether the energy chart draws it
+        # the signals' baseline is the time before the first deficit phase, or without one
+        # the first 14 logged days (science.signals.summarise_signal)
+        "signal_baseline_before_deficit": any(p.kind == "deficit" for p in a.phases),
     }
     return ClientView(
         practice=practice_view(config),
