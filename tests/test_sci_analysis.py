@@ -368,3 +368,30 @@ def test_rapid_loss_flag_from_the_trend() -> None:
     assert "rapid-loss" in {f.code for f in fast.flags}
     assert "rapid-loss" not in {f.code for f in slow.flags}
     assert fast.weekly_rate_pct.value == pytest.approx(-1.5, abs=0.3)
+
+
+def test_realised_deficit_does_not_depend_on_logged_intake(
+    sim_analysis: tuple[object, ClientAnalysis],
+) -> None:
+    """The realised deficit is read from the weigh-ins alone.
+
+    Same weigh-ins, intake under-logged by a share that grows from 0 to 20 % and a
+    third of the days unlogged: every phase's realised deficit and its interval are
+    unchanged (observed TDEE, which adds logged intake, moves).  The property the
+    energy balance states (deficit = energy drawn from stores, from the weight).
+    """
+    sim, base = sim_analysis
+    record = sim.record  # type: ignore[attr-defined]
+    log = record.log
+    n = len(log.intake_kcal)
+    share = np.clip(np.arange(n) / n, 0.0, 1.0) * 0.2
+    intake = log.intake_kcal * (1.0 - share)
+    intake[np.arange(n) % 3 == 1] = np.nan
+    altered = dataclasses.replace(record, log=dataclasses.replace(log, intake_kcal=intake))
+    other = analyse_client(altered, sim.month, SETTINGS)  # type: ignore[attr-defined]
+    assert len(other.phases) == len(base.phases)
+    moved = 0
+    for a, b in zip(base.phases, other.phases, strict=True):
+        assert a.realised_deficit_kcal == b.realised_deficit_kcal
+        moved += a.observed_tdee_kcal != b.observed_tdee_kcal
+    assert moved > 0

@@ -2,14 +2,18 @@
 
 A daily weigh-in is the underlying body mass plus day-to-day noise (water,
 gut content, scale): 0.4-0.7 kg SD is typical.  The trend is what the noise
-hides.  This module estimates it two ways:
+hides.  This module estimates it these ways:
 
 * :func:`local_linear_trend` - the structural time-series model of Harvey
   (1989) / Durbin & Koopman (2012), fitted per client by concentrated maximum
   likelihood on a small grid of signal-to-noise ratios, Kalman filter + RTS
   smoother, with a second, robust pass that down-weights spikes.  Gives the
   level and the slope with their variances on every calendar day, missing
-  days included.
+  days included.  It treats the noise as independent from day to day.
+* :func:`trend_with_water` - the same model with the water swings as an AR(1)
+  state of their own (their persistence from the client's noise model), so
+  that the level's band allows for noise that lasts for days; the reports'
+  trend.
 * :func:`ema` - plain exponential smoothing, not used by the reports: a
   smoothing baseline for the accuracy benchmark and a check of the
   local-level filter (common practice, no single source).
