@@ -416,3 +416,17 @@ def test_rating_changes_are_put_in_words_as_printed() -> None:
     assert rating_words(1.5) == "a little higher than"
     assert rating_words(-1.96) == "clearly lower than"  # printed −2.0
     assert rating_words(3.0) == "clearly higher than"
+
+
+def test_phase_table_names_kinds_in_words(tmp_path: Path) -> None:
+    """The phase table says "diet break" and, for a book without phases, "no phases
+    recorded" under the window's name, never the analysis' codes "break" or "month"."""
+    pages = pdf_pages_text(rendered("c008"))
+    table = flat(next(p for p in pages if "Phases so far" in p))
+    assert "Diet break diet break 28 Sep 2026" in table
+    book = write_tiny_book(tmp_path / "book", "Nell Ashby", days=40)
+    (book / "phases.csv").unlink()
+    pages = pdf_pages_text(render_client_report(analyse_book(book, "t001"), CONFIG))
+    table = flat(next(p for p in pages if "Phases so far" in p))
+    assert "Report month no phases recorded 01 Nov 2026" in table
+    assert "Report month month" not in table

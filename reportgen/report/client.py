@@ -347,7 +347,7 @@ def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> 
     header = [esc(c) + (f"<br/>{esc(u)}" if u else "") for c, u in zip(cols, units, strict=True)]
     rows = [
         [
-            f"<b>{esc(p['name'])}</b><br/>{esc(p['kind'])}",
+            f"<b>{esc(p['name'])}</b><br/>{words.text('phase_kind', p['kind'])}",
             esc(p["dates"]),
             p["days"],
             esc(p["intake"]),
