@@ -109,6 +109,8 @@ class PlateauSim:
     fat_start_est_kg: float  # fat mass at the start as a skinfold session would give it
     true_parts: dict[str, float] = field(default_factory=dict)  # effect on deficit, kcal/day
     true_recent_rate_pct: float = math.nan
+    # the same client's recent tissue rate without the cause (the first pass)
+    rate_without_cause_pct: float = math.nan
     true_deficit_change_kcal: float = math.nan
 
 
@@ -345,6 +347,7 @@ def simulate_plateau(
         parts["intake"] = -(1 - p.tef) * d_lm
         parts["logging"] = -(1 - p.tef) * (d_true_intake - d_lm)
     tissue_rate = (run.tissue[n - 1] - run.tissue[r0]) / (n - 1 - r0) * 7
+    rate0 = (first.tissue[n - 1] - first.tissue[r0]) / (n - 1 - r0) * 7
     status = "on-track"
     accepted: tuple[str, ...] = ("on-track",)
     if cause is not None:
@@ -372,5 +375,6 @@ def simulate_plateau(
         fat_start_est_kg=fat_est,
         true_parts=parts,
         true_recent_rate_pct=100 * tissue_rate / float(run.weight[r0:].mean()),
+        rate_without_cause_pct=100 * rate0 / float(first.weight[r0:].mean()),
         true_deficit_change_kcal=mean(run.energy_gap, r0, n) - mean(run.energy_gap, e0, e1),
     )
