@@ -78,3 +78,17 @@ def test_figure_leaning_on_the_typical_value_says_so() -> None:
     text = " ".join(pdf_pages_text(render_client_report(b, Config()))).replace("\n", " ")
     assert "Expenditure below expected" in text
     assert "your own data alone cannot yet show it" in text
+
+
+def test_sample_client_with_expenditure_below_expected() -> None:
+    # c017 (invented): a long cut whose expenditure falls beyond her smaller body; her own
+    # data alone already exclude zero, and the combined interval does too
+    a = sample_analysis("c017")
+    ph = a.current_phase
+    assert ph is not None and ph.adaptation_kcal.high is not None
+    assert ph.adaptation_kcal.high < 0
+    assert ph.adaptation_data_kcal.high is not None and ph.adaptation_data_kcal.high < 0
+    assert ph.activity_change_kcal.known  # steps logged
+    text = " ".join(pdf_pages_text(render_client_report(a, Config()))).replace("\n", " ")
+    assert "Expenditure below expected" in text
+    assert "data alone cannot yet show it" not in text
