@@ -23,7 +23,12 @@ Targets (issue "Metabolic adaptation a practitioner can defend"): adaptation MAE
 scenario (TDEE on honest logs); median half-width <= 150 kcal/day; deficit
 <= 1.3 x LS bound; trend band 0.75-0.85; recovery >= 0.5.
 
-Run:  python bench/bench_adaptation.py [--clients 40] [--seed 3] [--only NAME]
+``--diag`` also prints, per scenario, the median stated SE of the data (observed minus
+expected), of the baseline and of the phase's observed TDEE, and the literature's SD,
+each beside the RMS of its actual error, with the median data weight and the mean
+logging-drift probability: where the interval's width comes from.
+
+Run:  python bench/bench_adaptation.py [--clients 40] [--seed 3] [--only NAME] [--diag]
 """
 
 from __future__ import annotations
