@@ -14,7 +14,9 @@ at least ``--min-weeks`` weeks, the script prints side by side:
 * median adaptation half-width on deficit phases of 8 weeks or more;
 * realised-deficit RMS error relative to the least-squares bound (rho x the true
   SD of the least-squares slope under the world's noise);
-* 80 % trend band coverage of the true body mass (fat + lean + glycogen);
+* 80 % trend band coverage of the true body mass (fat + lean + glycogen) at the
+  time of each day's weigh-in (before that day's intake: the mass the weigh-in
+  measures);
 * for the "adaptation x2" scenario: the share of the difference between the truth
   and the typical value that the tool recovers.
 
@@ -106,7 +108,7 @@ def _sheet(world: World, i0: int, i1: int) -> tuple[float, float, float] | None:
 
 def score(world: World, a: ClientAnalysis, t: Tally, min_days: int) -> None:
     if a.trend is not None:
-        m = world.mass_true_kg
+        m = world.mass_at_weigh_in_kg
         lo, hi = a.trend.level_low_kg, a.trend.level_high_kg
         sl = slice(7, len(m))
         t.trend_cover.extend(((lo[sl] <= m[sl]) & (m[sl] <= hi[sl])).tolist())

@@ -25,8 +25,9 @@ Scenarios: ``intake-creep`` (true and logged intake rise), ``activity-drop`` (st
 fall), ``metabolic`` (an extra adaptation builds up), ``logging-drift`` (true intake
 rises but the log does not show it: unlogged high days, or, in 30 % of clients,
 smaller entries), ``water-weekend`` (two or three high days just before the report
-date, otherwise on plan) and ``no-stall``.  A cause ramps in between the end of the
-phase's first weeks (deficit day 42) and the start of the recent window, sized
+date, otherwise on plan) and ``no-stall``; ``fast-loss`` (a deeper cut, on plan) adds
+clients losing 0.5 %/week or more for the false-stall check.  A cause ramps in between
+the end of the phase's first weeks (deficit day 42) and the start of the recent window, sized
 from a first pass without it to close 92-100 % of the recent deficit (a stall).
 
 Invented data for testing only; no real person's data.
@@ -48,6 +49,9 @@ SCENARIOS: tuple[str, ...] = (
     "water-weekend",
     "no-stall",
 )
+# Not one of the issue's six scenarios: clients losing fast on plan, enough of them to
+# test the false-stall rate (clients losing 0.5 %/week or more called "stalled").
+EXTRA_SCENARIOS: tuple[str, ...] = ("fast-loss",)
 CAUSE_OF: dict[str, str | None] = {
     "intake-creep": "intake",
     "activity-drop": "activity",
@@ -55,6 +59,7 @@ CAUSE_OF: dict[str, str | None] = {
     "logging-drift": "logging",
     "water-weekend": None,
     "no-stall": None,
+    "fast-loss": None,
 }
 RECENT_DAYS = 28
 EARLY_FIRST, EARLY_DAYS = 14, 28  # deficit days 14..41 (after the glycogen weeks)
@@ -217,7 +222,7 @@ def simulate_plateau(
     rng: np.random.Generator, scenario: str, month_end: dt.date = dt.date(2026, 11, 30)
 ) -> PlateauSim:
     """One simulated client for ``scenario`` (one of :data:`SCENARIOS`)."""
-    if scenario not in SCENARIOS:
+    if scenario not in SCENARIOS + EXTRA_SCENARIOS:
         raise ValueError(f"unknown scenario {scenario!r}")
     p = _person(rng)
     maint_days = int(rng.integers(21, 36))
@@ -236,6 +241,8 @@ def simulate_plateau(
         if scenario == "activity-drop"
         else rng.uniform(550, 900)
         if scenario == "no-stall"
+        else rng.uniform(750, 1100)
+        if scenario == "fast-loss"
         else rng.uniform(450, 750)
     )
     # constant under-reporting in 40 % of clients; the plan is met in the log's terms

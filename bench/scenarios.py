@@ -119,6 +119,9 @@ class World:
     weigh_mask: np.ndarray
     phases: tuple[PhaseTruth, ...]
     under_report: str
+    # body mass when the day's weigh-in is taken (before that day's intake and
+    # expenditure), i.e. what the weigh-in of day t measures under its noise
+    mass_at_weigh_in_kg: np.ndarray
 
 
 def simulate(rng: np.random.Generator, sc: Scenario, cid: str) -> World:
@@ -289,6 +292,7 @@ def simulate(rng: np.random.Generator, sc: Scenario, cid: str) -> World:
         weigh_mask=mask,
         phases=tuple(truths),
         under_report=sc.under_report,
+        mass_at_weigh_in_kg=w_start,
     )
 
 

@@ -287,7 +287,7 @@ class PlateauResult:
     water_reasons: tuple[str, ...]
     recent_rate_pct_per_week: Estimate
     planned_rate_pct_per_week: float | None
-    planned_source: str | None  # "target" or "early-rate"
+    planned_source: str | None  # "target", "early-rate" or "target-and-early-rate"
     recent_days: int
     change_kcal: Estimate  # realised deficit now minus in the phase's first weeks
     parts: tuple[PlateauPart, ...]  # empty when the causes cannot be split
@@ -304,6 +304,8 @@ class PlateauResult:
     gap_kcal: float | None  # planned minus recent realised deficit
     options: tuple[PlateauOption, ...]
     cautions: tuple[str, ...]
+    # the same rate as recent_rate_pct_per_week, in kg/week at today's trend weight
+    recent_rate_kg_per_week: Estimate = field(default_factory=lambda: Estimate.missing("no-rate"))
 
     def part(self, code: str) -> PlateauPart | None:
         for p in self.parts:

@@ -110,7 +110,12 @@ def test_claims_on_page_one_match_the_analysis(client_id: str) -> None:
         assert kg(change, signed=True) in p1  # type: ignore[arg-type]
         if abs(change) >= 0.1:  # type: ignore[arg-type]
             assert f"by {kg(abs(change))} in November 2026" in p1  # type: ignore[arg-type]
-    rate = a.weekly_rate_kg.value
+    # page 1's rate: the progress section's recent rate while a deficit runs, else the
+    # smoothed slope (test_page_one_and_progress_section_tell_one_rate)
+    recent = a.plateau.recent_rate_kg_per_week if a.plateau is not None else None
+    rapid = any(f.code == "rapid-loss" for f in a.flags)
+    use_recent = recent is not None and recent.known and not rapid
+    rate = recent.value if use_recent and recent is not None else a.weekly_rate_kg.value
     if a.quality.weight_days and rate is not None:
         assert f"{MINUS if rate < 0 else '+'}{abs(rate):.2f} kg/week" in p1
     if a.month_mean_intake_kcal is not None:
@@ -477,3 +482,83 @@ def test_cannot_tell_yet_prints_the_range_its_decision_used() -> None:
         assert printed_lo == pytest.approx(lo, abs=0.006), cid  # printed to 2 decimals
         assert printed_hi == pytest.approx(hi, abs=0.006), cid
     assert seen, "no sample client reads 'cannot tell yet' on a wide interval"
+
+
+def signed2(x: float, unit: str) -> str:
+    s = f"{abs(x):.2f} {unit}"
+    zero = f"0.00 {unit}"
+    return (MINUS if x < 0 and s != zero else ("+" if x > 0 and s != zero else "")) + s
+
+
+@pytest.mark.parametrize("client_id", CLIENTS)
+def test_page_one_and_progress_section_tell_one_rate(client_id: str) -> None:
+    """Page 1 and "Is progress stalling?" name the same weekly rate, each with its span
+    (page 1 keeps the smoothed slope, named so, only when the rapid-loss flag is up, as
+    the flag is about that slope), and page 1's words about the rate follow the section's
+    reading: a reader never sees a lagging smoothed slope on the card (c016 before:
+    -0.30 %/week) beside a flat recent rate in the section (+0.12 %/week), nor "rising"
+    or "slow loss" above "stalled"."""
+    a = sample_analysis(client_id)
+    pages = sample_pages(client_id)
+    p1 = pages[0]
+    text = " ".join(pages)
+    p = a.plateau
+    if a.quality.weight_days == 0:
+        return
+    rapid = any(f.code == "rapid-loss" for f in a.flags)
+    if p is None or not p.recent_rate_pct_per_week.known or rapid:
+        # the smoothed slope, named as such (the rapid-loss flag is about that slope)
+        if a.weekly_rate_kg.known:
+            assert "Weekly rate, smoothed" in p1
+            assert "smoothed trend)." in p1
+        return
+    weeks = p.recent_days // 7
+    assert weeks >= 3
+    kgw, pct = p.recent_rate_kg_per_week.value, p.recent_rate_pct_per_week.value
+    assert kgw is not None and pct is not None
+    # the kg and % forms are the same rate at today's trend weight
+    assert a.current_weight_kg.value is not None
+    assert kgw == pytest.approx(pct * a.current_weight_kg.value / 100, rel=0.02)
+    # card and narrative: the recent rate, named with its span
+    assert f"{signed2(kgw, 'kg/week')}" in p1
+    assert f"Weekly rate, last {weeks} weeks" in p1 and f"{pct2(pct)} (" in p1
+    assert f"Over the last {weeks} weeks it changed by {signed2(kgw, 'kg/week')}" in p1
+    # the progress section: the same rate over the same span
+    assert f"Over the last {weeks} weeks your trend weight changed by {pct2(pct)}" in text
+    # no second, different weekly rate on page 1
+    smooth = a.weekly_rate_kg.value
+    if smooth is not None and signed2(smooth, "kg/week") != signed2(kgw, "kg/week"):
+        assert signed2(smooth, "kg/week") not in p1
+    # the words follow the section's reading
+    if p.status == "stalled":
+        assert "Your weight is holding steady" in p1
+        assert "Your trend is rising" not in p1 and "That can be fine" not in p1
+    if p.status == "gaining":
+        assert "Your trend is rising" in p1
+    if p.status == "slower":
+        assert "That can be fine" not in p1
+
+
+def test_one_diet_break_rule_in_narrative_and_progress_section() -> None:
+    """The narrative's "a planned break at maintenance may be due" and the progress
+    section's break option come from one rule (science.diet_break): when the progress
+    section is shown it alone speaks about the break, and it offers it exactly when
+    the rule holds on its inputs; without the section the narrative follows the rule on
+    the phase's depth."""
+    from reportgen.science.diet_break import diet_break_due
+
+    narrative = "a planned break at maintenance may be due"
+    for cid in CLIENTS:
+        a = sample_analysis(cid)
+        text = " ".join(sample_pages(cid))
+        ph = a.current_phase
+        p = a.plateau
+        offered = p is not None and any(o.code == "maintenance-break" for o in p.options)
+        assert (
+            "a planned break of about 2 weeks at maintenance is an option" in text
+        ) is offered, cid
+        if p is not None:
+            assert narrative not in text, cid
+        else:
+            due = ph is not None and diet_break_due(ph.days_in_deficit, ph.deficit_depth_pct)
+            assert (narrative in text) is due, cid

@@ -134,10 +134,17 @@ def expected_headlines(a: ClientAnalysis) -> list[tuple[str, str, str]]:
         out.append(("trend high", kg(a.current_weight_kg.high), "kg"))
     if a.month_change_kg.known:
         out.append(("month change", kg(a.month_change_kg.value, signed=True), "kg"))
-    if a.weekly_rate_kg.known:
-        out.append(("weekly rate", kg(a.weekly_rate_kg.value, 2, signed=True), "kg/week"))
-    if a.weekly_rate_pct.known:
-        out.append(("weekly rate %", kg(a.weekly_rate_pct.value, 2, signed=True), "%"))
+    # page 1's rate: the progress section's recent rate while a deficit runs (unless the
+    # rapid-loss flag, about the smoothed slope, is up), else the smoothed slope
+    p = a.plateau
+    rapid = any(f.code == "rapid-loss" for f in a.flags)
+    recent = p is not None and p.recent_rate_kg_per_week.known and not rapid
+    rate_kg = p.recent_rate_kg_per_week if recent and p is not None else a.weekly_rate_kg
+    rate_pct = p.recent_rate_pct_per_week if recent and p is not None else a.weekly_rate_pct
+    if rate_kg.known:
+        out.append(("weekly rate", kg(rate_kg.value, 2, signed=True), "kg/week"))
+    if rate_pct.known:
+        out.append(("weekly rate %", kg(rate_pct.value, 2, signed=True), "%"))
     if a.month_mean_intake_kcal is not None:
         out.append(("intake", kcal(a.month_mean_intake_kcal), "kcal/day"))
     if ph is not None:
@@ -409,3 +416,17 @@ def test_rating_changes_are_put_in_words_as_printed() -> None:
     assert rating_words(1.5) == "a little higher than"
     assert rating_words(-1.96) == "clearly lower than"  # printed −2.0
     assert rating_words(3.0) == "clearly higher than"
+
+
+def test_phase_table_names_kinds_in_words(tmp_path: Path) -> None:
+    """The phase table says "diet break" and, for a book without phases, "no phases
+    recorded" under the window's name, never the analysis' codes "break" or "month"."""
+    pages = pdf_pages_text(rendered("c008"))
+    table = flat(next(p for p in pages if "Phases so far" in p))
+    assert "Diet break diet break 28 Sep 2026" in table
+    book = write_tiny_book(tmp_path / "book", "Nell Ashby", days=40)
+    (book / "phases.csv").unlink()
+    pages = pdf_pages_text(render_client_report(analyse_book(book, "t001"), CONFIG))
+    table = flat(next(p for p in pages if "Phases so far" in p))
+    assert "Report month no phases recorded 01 Nov 2026" in table
+    assert "Report month month" not in table

@@ -4,6 +4,7 @@ manifest, naming every equation used for the month's clients and the safety rule
 from __future__ import annotations
 
 import json
+import re
 from pathlib import Path
 
 from _report_helpers import SAMPLE_BOOK, SAMPLE_MONTH, pdf_pages_text, sample_analysis
@@ -51,3 +52,26 @@ def test_batch_writes_methods_pdf_beside_the_overview(tmp_path: Path) -> None:
     manifest = json.loads((month / "manifest.json").read_text(encoding="utf-8"))
     assert manifest["files"]["methods.pdf"] == sha256_bytes(data)
     assert "2 client reports" in flat(data)
+
+
+def test_methods_document_carries_the_cautions_and_ends_each_reference() -> None:
+    """The practice's methods sheet goes to referral partners on its own: it says what the
+    reports are not, who needs medical supervision (thresholds from science.flags) and
+    that local rules come first; each reference ends before "Used for"."""
+    analyses = [sample_analysis(c) for c in ("c001", "c008")]
+    text = flat(render_methods([a.methods for a in analyses], 2, SAMPLE_MONTH, Config()))
+    for phrase in (
+        "not medical advice or a diagnosis",
+        "licensed health professional",
+        "pregnant or breastfeeding",
+        f"under {F.ADULT_AGE_YEARS},",
+        "history of disordered eating",
+        f"BMI under {F.BMI_UNDERWEIGHT:.1f}",
+        f"below about {F.INTAKE_FLOOR_WOMEN_KCAL:,.0f} kcal/day for women",
+        f"below {F.INTAKE_VLCD_KCAL:,.0f} kcal/day only under medical care",
+        f"more than about {F.RAPID_LOSS_PCT_PER_WEEK:.0f} % of body weight a week",
+        "Local regulations and the scope of licensed practice take precedence",
+    ):
+        assert phrase in text, phrase
+    assert re.search(r"\d Used for", text) is None  # "...51.2.241 Used for" lacked its stop
+    assert "doi:10.1093/ajcn/51.2.241. Used for" in text

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import re
+from collections import Counter
 from functools import cache
 from pathlib import Path
 
@@ -20,6 +21,7 @@ from pypdf import PdfReader
 
 from reportgen.config import Config, PracticeSettings
 from reportgen.report import render_practitioner_summary
+from reportgen.report.citation import short_citation
 
 CONFIG = Config(practice=PracticeSettings(name="Kestrel Row Nutrition"))
 MINUS = "\u2212"
@@ -44,7 +46,10 @@ def test_one_page_with_identification_period_and_references(client_id: str) -> N
     assert "Practitioner summary" in text and a.client.name in text and a.client.client_id in text
     assert "November 2026" in text
     for m in a.methods:
-        assert " ".join(m.name.split()) in text, f"reference {m.code} missing"
+        # the name's headline (up to a colon) and the citation without titles; methods.pdf
+        # carries both in full
+        assert " ".join(m.name.split(":")[0].split()) in text, f"reference {m.code} missing"
+        assert " ".join(short_citation(m.reference).split()) in text, f"{m.code}: citation"
     assert "Practitioner's note" in text and "Signature" in text
     assert f"{a.quality.days_in_period} days analysed" in text
 
@@ -63,7 +68,7 @@ def test_measurements_carry_values_and_80_percent_intervals(client_id: str) -> N
     if a.bodycomp:
         last = a.bodycomp[-1]
         assert f"{last.bodyfat_pct:.1f} %" in text
-        assert f"± {last.bodyfat_se_pct:.1f} points (equation standard error)" in text
+        assert f"± {last.bodyfat_se_pct:.1f} points ± is the equation's standard error" in text
 
 
 def test_fonts_embedded_and_text_inside_the_margins() -> None:
@@ -84,3 +89,48 @@ def test_thin_data_and_odd_names_still_give_one_page(tmp_path: Path) -> None:
     assert len(PdfReader(io.BytesIO(data)).pages) == 1
     assert name in flat(data)
     assert "No flags raised." in flat(data)
+
+
+def char_sizes(data: bytes) -> Counter[float]:
+    import pdfplumber
+
+    with pdfplumber.open(io.BytesIO(data)) as pdf:
+        chars = pdf.pages[0].chars
+    return Counter(round(float(ch["size"]), 2) for ch in chars if not ch["text"].isspace())
+
+
+@pytest.mark.parametrize("client_id", ["c001", "c014"])
+def test_the_densest_pages_stay_legible_and_references_are_not_smaller(client_id: str) -> None:
+    """c001 and c014 carry the most rows, methods and plateau text of the sample book.  The
+    page shrinks to fit only as a last resort; the table text must stay at 5.9 pt or more and
+    nothing (the column heads are the smallest) under 5.5 pt, a floor for dense print that
+    is common practice, no single source.  The references are set like the table cells."""
+    import pdfplumber
+
+    data = rendered(client_id)
+    sizes = char_sizes(data)
+    body = sizes.most_common(1)[0][0]
+    assert body >= 5.9, sizes
+    assert min(sizes) >= 5.5, sizes
+    with pdfplumber.open(io.BytesIO(data)) as pdf:
+        words = pdf.pages[0].extract_words(extra_attrs=["size"])
+    koopman = [w for w in words if w["text"].startswith("Koopman")]  # only in the references
+    assert koopman and all(abs(float(w["size"]) - body) < 0.01 for w in koopman)
+
+
+def test_reference_list_drops_titles_but_keeps_what_finds_the_paper() -> None:
+    text = flat(rendered("c001"))
+    # Mifflin et al. 1990: authors shortened, title left out, journal, volume, pages, DOI kept
+    assert "Mifflin MD, et al. Am J Clin Nutr 1990;51:241-247. doi:10.1093/ajcn/51.2.241" in text
+    assert "A new predictive equation for resting energy expenditure" not in text
+
+
+def test_a_book_without_phases_gets_words_not_codes(tmp_path: Path) -> None:
+    """No phases recorded: the month is one window; its kind and the reasons for blank
+    estimates are said in words, not as the analysis' codes."""
+    book = write_tiny_book(tmp_path / "book", "Nell Ashby", days=40)
+    (book / "phases.csv").unlink()
+    text = flat(render_practitioner_summary(analyse_book(book, "t001"), CONFIG))
+    assert "Report month (no phases recorded)" in text
+    assert "no baseline period to compare against" in text
+    assert "(no-baseline)" not in text and " month 01 Nov" not in text

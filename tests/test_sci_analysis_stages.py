@@ -30,7 +30,8 @@ Z80 = 1.2815516  # standard normal 90th percentile (any normal table): 80 % inte
 FORBES_C_KG = 10.4  # Forbes' curve constant as refitted by Hall 2007 (from memory)
 RHO_FAT = 9440.0  # kcal/kg, Hall 2008 / Hall 2011 (published, science notes §4.2)
 RHO_LEAN = 1816.0  # kcal/kg, Hall 2011 (from memory, science notes §4.2)
-GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / 4.184 / 4  # 17.6 kJ/g glycogen with 3 g water (§4.4)
+# 17.6 kJ/g glycogen (Hall 2008, published) with 2.7 g water per g (Hall's model, from memory)
+GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / 4.184 / 3.7
 
 
 def worked_record() -> ClientRecord:
@@ -160,7 +161,7 @@ def test_stage_stored_energy_and_observed_tdee(stages: ClientStages) -> None:
     assert balance.fat_change_kg == pytest.approx(fat_change, abs=1e-6)
     assert balance.energy_density_kcal_per_kg == pytest.approx(rho, abs=0.01)
     # stored energy per day, with the glycogen-and-water step at the phase start
-    # (science notes §4.4): deficit = -(rho x rate + 1052 kcal/kg x shift / days)
+    # deficit = -(rho x rate + 1137 kcal/kg x shift / days)
     deficit = -(rho * rate + GLYCOGEN_WATER_KCAL_PER_KG * shift / days)
     assert balance.deficit_kcal.value == pytest.approx(deficit, abs=0.01)
     # constructed: 0.05 kg/day x about 6550 kcal/kg (a woman with ~18 kg fat; Hall 2008

@@ -166,12 +166,12 @@ def test_expenditure_path_handles_missing_intake_and_weight() -> None:
 
 
 def test_glycogen_shift_energy_enters_the_deficit() -> None:
-    """deficit = -(rho rate + 1052 shift / days); 1052 kcal/kg = 17.6 MJ/kg glycogen (Hall
-    2008, published) held with about 3 g water per g (from memory)."""
+    """deficit = -(rho rate + 1137 shift / days); 1137 kcal/kg = 17.6 MJ/kg glycogen (Hall
+    2008, published) held with 2.7 g water per g as in Hall's model (from memory)."""
     from reportgen.science.balance import GLYCOGEN_WATER_KCAL_PER_KG
     from reportgen.science.rates import WindowRate
 
-    assert pytest.approx(17.6e3 / 4.184 / 4, rel=1e-12) == GLYCOGEN_WATER_KCAL_PER_KG
+    assert pytest.approx(17.6e3 / 4.184 / 3.7, rel=1e-12) == GLYCOGEN_WATER_KCAL_PER_KG
     rate = WindowRate(-0.05, 0.0, 0.0, 0.0, 0.0, 28, 28, shift_kg=-0.8, shift_se_kg=0.0)
     b = window_balance(_line(28, -0.05), np.full(28, 2000.0), 25.0, 0.0, rate=rate)
     rho = b.energy_density_kcal_per_kg

@@ -57,8 +57,11 @@ BASE = {"phase_days": 70, "recent_days": 28, "recent_weigh_ins": 20}
         (-0.9, 0.1, -0.5, "on-track", None),
         # hi = -0.2 + 0.098 < 0; -0.2 + 0.45 = 0.25 > 1.645 x 0.05 = 0.082: slower
         (-0.2, 0.05, -0.6, "slower", None),
-        # lo = 0.3 - 0.196 > 0: gaining
+        # lo = 0.3 - 0.196 = 0.104 > 0.1 (the gain margin): gaining
         (0.3, 0.1, -0.5, "gaining", None),
+        # lo = 0.15 - 0.098 = 0.052: above zero but inside the 0.1 margin, so no real
+        # gain; 0.15 + 0.5 > 1.645 x 0.05: a stall (judgment margin, see GAIN_MARGIN)
+        (0.15, 0.05, -0.5, "stalled", None),
         # hi >= 0 but 0.3 <= 1.645 x 0.2 = 0.329: both zero and the plan are possible
         (-0.2, 0.2, -0.5, "too-few-data", "interval-too-wide"),
     ],
@@ -124,6 +127,47 @@ def test_water_does_not_excuse_a_stall_that_was_there_before() -> None:
     )
     assert before_flat.status == "stalled"
     assert before_flat.water_reasons == reasons
+
+
+def test_water_settles_an_undecided_window() -> None:
+    # the four-week interval holds zero and the plan; with water at the end the honest
+    # answer is "likely water, recheck", not "cannot tell"
+    got = pl.progress_status(-0.2, 0.2, -0.5, water_reasons=("break-before",), **BASE)
+    assert got.status == "likely-water"
+    assert got.underlying == "too-few-data"
+
+
+def test_shortfall_before_the_high_days_reports_that_rate_and_span() -> None:
+    got = pl.progress_status(
+        0.3,
+        0.1,
+        -0.5,
+        water_reasons=("high-intake-days",),
+        rate_before_water=(0.02, 0.08),
+        before_water_days=24,
+        **BASE,
+    )
+    assert got.status == "stalled"
+    assert got.rate_pct_per_week.value == pytest.approx(0.02)
+    assert got.rate_pct_per_week.high == pytest.approx(0.02 + Z80 * 0.08)
+    assert got.window_days == 24
+
+
+def test_reference_rate_pools_agreeing_estimates() -> None:
+    # hand-calculated: weights 1/0.2^2 = 25 and 1/0.1^2 = 100;
+    # (25 x -0.5 + 100 x -0.4) / 125 = -0.42, SE 1/sqrt(125) = 0.0894
+    ref, se, pooled = pl.reference_rate(-0.5, 0.2, (-0.4, 0.1))
+    assert pooled
+    assert ref == pytest.approx(-0.42)
+    assert se == pytest.approx(1 / math.sqrt(125))
+
+
+def test_reference_rate_keeps_the_plan_when_they_disagree() -> None:
+    # |-0.6 - -0.1| = 0.5 > 1.96 x sqrt(0.1^2 + 0.1^2) = 0.277: the client never ran at plan
+    assert pl.reference_rate(-0.6, 0.1, (-0.1, 0.1)) == (-0.6, 0.1, False)
+    assert pl.reference_rate(-0.6, 0.1, None) == (-0.6, 0.1, False)
+    assert pl.reference_rate(None, 0.0, (-0.3, 0.1)) == (None, 0.0, False)
+    assert pl.reference_rate(-0.6, 0.1, (math.nan, 0.1)) == (-0.6, 0.1, False)
 
 
 def test_water_leaves_on_track_alone() -> None:
@@ -422,13 +466,24 @@ def test_maintenance_break_after_a_long_deep_deficit() -> None:
     assert got.options[0].values["weeks"] == 2.0  # MATADOR's two-week breaks
     assert _opts("on-track", days_in_deficit=83, deficit_depth_pct=30.0).options == ()
     assert _opts("on-track", days_in_deficit=120, deficit_depth_pct=19.9).options == ()
-    assert _opts("too-early", days_in_deficit=120, deficit_depth_pct=30.0).options == ()
+    # one rule (science.diet_break), whatever the status: a new deficit phase inside a
+    # long run of them is still a long deficit
+    assert [
+        o.code for o in _opts("too-early", days_in_deficit=120, deficit_depth_pct=30.0).options
+    ] == ["maintenance-break"]
+    # unknown depth: the length alone decides, as in the narrative
+    unknown = _opts("on-track", days_in_deficit=90, deficit_depth_pct=None)
+    assert [o.code for o in unknown.options] == ["maintenance-break"]
+    assert "depth_pct" not in unknown.options[0].values
+    assert _opts("not-in-deficit", days_in_deficit=120, deficit_depth_pct=30.0).options == ()
 
 
 def test_likely_water_means_recheck() -> None:
-    got = _opts("likely-water", days_in_deficit=120, deficit_depth_pct=30.0)
+    got = _opts("likely-water", days_in_deficit=60, deficit_depth_pct=30.0)
     assert [o.code for o in got.options] == ["recheck"]
     assert got.options[0].values == {"days_min": 7, "days_max": 14}
+    long = _opts("likely-water", days_in_deficit=120, deficit_depth_pct=30.0)
+    assert [o.code for o in long.options] == ["recheck", "maintenance-break"]
 
 
 # ---------------------------------------------------------------- recent rate

@@ -109,3 +109,37 @@ def test_short_phase_is_too_early() -> None:
     assert got.status.status == "too-early"
     assert got.causes is None
     assert got.causes_reason == "phase-too-short"
+
+
+def _noisy(stall_after_days: int | None, seed: int) -> PlateauInputs:
+    """A 126-day deficit on noisy weigh-ins (SD 1.2 kg) against a small plan."""
+    n = MAINT_DAYS + 126
+    rng = np.random.default_rng(seed)
+    t = np.arange(n, dtype=float)
+    losing = 126 if stall_after_days is None else stall_after_days
+    tissue = 90.0 - 0.09 * np.clip(t - MAINT_DAYS, 0, losing)
+    return dataclasses.replace(
+        _inputs(stall=True),
+        weight_kg=np.round(tissue + rng.normal(0, 1.2, n), 1),
+        intake_kcal=np.where(t < MAINT_DAYS, 2500.0, 1900.0) + rng.normal(0, 150, n),
+        steps=9000.0 + rng.normal(0, 1500, n),
+        hunger=np.full(n, np.nan),
+        current_weight_kg=float(tissue[-1]),
+        target_kcal=2150.0,
+    )
+
+
+def test_a_long_stall_is_decided_over_its_longer_span() -> None:
+    # flat for the last 84 days: four noisy weeks often cannot tell, six or eight can
+    got = [assess_plateau(_noisy(42, seed)).status for seed in range(12)]
+    assert all(s.status in ("stalled", "too-few-data") for s in got)
+    assert sum(s.status == "stalled" for s in got) >= 9
+    longer = [s for s in got if s.window_days is not None and s.window_days > 28]
+    assert len(longer) >= 3
+    assert all(s.status == "stalled" and s.window_days in (42, 56) for s in longer)
+
+
+def test_the_longer_span_does_not_invent_a_stall() -> None:
+    # a steady 0.09 kg/day loss (about 0.7 %/week) on the same noise is never "stalled"
+    got = [assess_plateau(_noisy(None, seed)).status for seed in range(12)]
+    assert not any(s.status == "stalled" for s in got)

@@ -9,7 +9,8 @@ from reportgen.results import MethodUsed
 METHODS: dict[str, MethodUsed] = {
     "local-linear-trend": MethodUsed(
         code="local-linear-trend",
-        name="Local linear trend model, Kalman filter and RTS smoother, robust to spikes",
+        name="Local linear trend model with AR(1) water swings, Kalman filter and RTS smoother, "
+        "robust to spikes",
         reference="Durbin J, Koopman SJ. Time Series Analysis by State Space Methods, 2nd ed. "
         "Oxford University Press; 2012.",
         see=None,

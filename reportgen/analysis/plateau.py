@@ -87,7 +87,8 @@ def plateau_stage(
     got = assess_plateau(inputs)
     st = got.status
     c = got.causes
-    recent_days = got.recent.days if got.recent is not None else 0
+    # the span of the rate the status used (four weeks, or longer by the sequential rule)
+    recent_days = st.window_days or (got.recent.days if got.recent is not None else 0)
     missing = Estimate.missing(got.causes_reason or "not-estimable")
     return PlateauResult(
         phase_name=win.phase.name,
@@ -115,6 +116,19 @@ def plateau_stage(
         gap_kcal=got.gap_kcal,
         options=got.options.options,
         cautions=got.options.cautions,
+        recent_rate_kg_per_week=_kg_per_week(st.rate_pct_per_week, trend.current_weight_kg),
+    )
+
+
+def _kg_per_week(pct: Estimate, weight_kg: float) -> Estimate:
+    """A rate in % of body weight per week as kg/week at the weight it was scaled by."""
+    if pct.value is None:
+        return pct
+    k = weight_kg / 100.0
+    return Estimate(
+        pct.value * k,
+        None if pct.low is None else pct.low * k,
+        None if pct.high is None else pct.high * k,
     )
 
 

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -17,9 +16,8 @@ from reportgen.analysis.context import (
 )
 from reportgen.analysis.methods import METHODS
 from reportgen.results import Estimate, MethodUsed, TrendSeries
-from reportgen.science.noise_band import widen_level_variance
-from reportgen.science.rates import NoiseModel, fit_noise_model, segment_rate
-from reportgen.science.trend import TrendFit, local_linear_trend
+from reportgen.science.rates import SHIFT_TAU_DAYS, NoiseModel, fit_noise_model, segment_rate
+from reportgen.science.trend import TrendFit, local_linear_trend, trend_with_water
 
 RECENT_DAYS = 28  # window of the current weekly rate and current intake (judgment)
 
@@ -68,19 +66,17 @@ def trend_stage(ctx: ClientContext) -> TrendStage:
         for w in ctx.windows
         if w.end_index - w.start_index + 1 >= MIN_ANALYSIS_DAYS
     ]
-    noise = fit_noise_model(weights_kg, spans or [(0, ctx.log.n_days - 1)], fit.weights)
-    if noise is not None:
-        # the smoother assumes independent noise; widen its level band for the AR(1)
-        # water swings the noise model found (variance of the mean of AR(1) points)
-        fit = dataclasses.replace(
-            fit,
-            level_var_kg2=widen_level_variance(
-                fit.level_var_kg2,
-                fit.noise_sd_kg**2,
-                noise.ar_var_kg2,
-                noise.phi,
-                noise.white_var_kg2,
-            ),
+    noise = fit_noise_model(
+        weights_kg,
+        spans or [(0, ctx.log.n_days - 1)],
+        fit.weights,
+        shift_tau_days=SHIFT_TAU_DAYS if spans else None,
+    )
+    if noise is not None and noise.ar_var_kg2 > 1e-3 * noise.white_var_kg2 and noise.phi > 0:
+        # the water swings the noise model found persist for days: refit the trend
+        # with them as a state of their own, so that the level's band allows for them
+        fit = trend_with_water(
+            weights_kg, noise.phi, noise.ar_var_kg2, noise.white_var_kg2, fit.weights
         )
     last = ctx.last_index
     current_kg = float(fit.level_kg[last])

@@ -145,7 +145,10 @@ def _figure_items(vm: ClientView, words: Wording) -> list[tuple[str, str, bool, 
             value = esc(words.labels["not_estimated"])  # by design, not for lack of data
         else:
             value = esc(words.labels["not_enough"])
-        items.append((labels[key], value, f.known, words.text("figure_note", f, vm).strip()))
+        title = labels[key]
+        if key == "rate" and vm.story["rate_span_weeks"]:  # the span the page-1 rate covers
+            title = labels["rate_recent"].replace("{weeks}", vm.story["rate_span_weeks"])
+        items.append((title, value, f.known, words.text("figure_note", f, vm).strip()))
     return items
 
 
@@ -171,9 +174,9 @@ def render_client_report(
     vm.extra["plateau_causes"] = causes
     vm.extra["plateau_hunger"] = causes and pv is not None and bool(pv.hunger_words)
     vm.extra["plateau_energy"] = causes and pv is not None and bool(pv.energy_words)
-    vm.extra["plateau_break"] = pv is not None and any(
-        o["code"] == "maintenance-break" for o in pv.options
-    )
+    # when the progress section is shown it decides about a break (as an option or not,
+    # by science.diet_break on the recent depth); the narrative's line stays out of it
+    vm.extra["plateau_break"] = pv is not None
 
     t0 = time.perf_counter()
     charts: ChartPages | None = None
@@ -302,17 +305,17 @@ def _arrange(
     cautions; "how we estimate this" joins the last page when page 1 is full.  Measured
     here, before layout, so the report keeps to four pages without a second build."""
     room = pagesize[1] - 2 * MARGIN - 2 * mm  # a little slack for rounding
-    h_first = _stack_height(first, width, room)
-    h_plateau = _stack_height(plateau, width, room)
-    h_methods = _stack_height(methods, width, room)
-    h_last = _stack_height(last + cautions, width, room)
+    # measured as one stack each, so the spaces where the parts meet count too
+    h_first_plateau = _stack_height(first + plateau, width, room)
+    h_page1 = _stack_height(first + plateau + methods, width, room)
+    h_last_methods = _stack_height(last + cautions + methods, width, room)
 
     on_first = methods if methods else []
     methods_last: list[Flowable] = []
     plateau_first = plateau
     plateau_second: list[Flowable] = []
-    if plateau and h_first + h_plateau + h_methods > room:
-        if h_first + h_plateau <= room and h_last + h_methods <= room:
+    if plateau and h_page1 > room:
+        if h_first_plateau <= room and h_last_methods <= room:
             on_first, methods_last = [], methods
         else:  # page 1 has no room for it: it opens page 2, before the charts
             plateau_first, plateau_second = [], [*plateau[1:], Spacer(1, 4 * mm)]
@@ -344,7 +347,7 @@ def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> 
     header = [esc(c) + (f"<br/>{esc(u)}" if u else "") for c, u in zip(cols, units, strict=True)]
     rows = [
         [
-            f"<b>{esc(p['name'])}</b><br/>{esc(p['kind'])}",
+            f"<b>{esc(p['name'])}</b><br/>{words.text('phase_kind', p['kind'])}",
             esc(p["dates"]),
             p["days"],
             esc(p["intake"]),

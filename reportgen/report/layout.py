@@ -279,8 +279,8 @@ def data_table(
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("LEFTPADDING", (0, 0), (-1, -1), 2.0),
         ("RIGHTPADDING", (0, 0), (-1, -1), 2.0),
-        ("TOPPADDING", (0, 0), (-1, -1), 1.0 if dense else 2.2),
-        ("BOTTOMPADDING", (0, 0), (-1, -1), 1.5 if dense else 2.6),
+        ("TOPPADDING", (0, 0), (-1, -1), 0.6 if dense else 2.2),
+        ("BOTTOMPADDING", (0, 0), (-1, -1), 1.0 if dense else 2.6),
         ("LINEBELOW", (0, 0), (-1, 0), 0.8, theme.accent),
         ("VALIGN", (0, 0), (-1, 0), "BOTTOM"),
     ]

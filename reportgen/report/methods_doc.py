@@ -118,6 +118,12 @@ def render_methods(
         adapt_min=u.pct(ADAPT_MIN_PCT, dp=0),
         projection_weeks=str(config.report.projection_weeks),
         recent_weeks=str(RECENT_DAYS // 7),
+        adult_age=str(F.ADULT_AGE_YEARS),
+        bmi_low=u.number(F.BMI_UNDERWEIGHT, 1),
+        floor_women=u.e(F.INTAKE_FLOOR_WOMEN_KCAL),
+        floor_men=u.e(F.INTAKE_FLOOR_MEN_KCAL),
+        vlcd=u.e(F.INTAKE_VLCD_KCAL),
+        rapid=u.pct(F.RAPID_LOSS_PCT_PER_WEEK, dp=0),
         methods=[
             SimpleNamespace(name=m.name, see=m.see or "", reference=m.reference, clients=str(n))
             for m, n in used
@@ -150,6 +156,7 @@ def render_methods(
     for m in vm.methods:
         story.append(Paragraph(words.text("method_line", m), theme["bullet"], bulletText="\u2022"))
     story.append(Spacer(1, 3 * mm))
+    story += blocks(words.text("cautions", vm), theme, heading_hook=hook)
     story.append(Paragraph(words.text("footnote", vm), theme["small"]))
     doc = Document(
         title=f"{L['document']}: {vm.month}",

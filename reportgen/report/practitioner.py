@@ -3,18 +3,22 @@
 from __future__ import annotations
 
 import datetime as dt
+import html
 import time
 from dataclasses import dataclass
 from typing import Any
 
 from reportlab.lib import colors
+from reportlab.lib.styles import ParagraphStyle
 from reportlab.lib.units import mm
+from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.platypus import Flowable, KeepInFrame, Spacer, Table, TableStyle
 
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate
 
 from . import theme as T
+from .citation import short_citation
 from .client import Timing
 from .layout import data_table
 from .outlook import outlook
@@ -39,18 +43,19 @@ class SummaryView:
         return getattr(self.base, name)  # the ClientView's fields, as they are typed there
 
 
-def _est(u: Units, e: Estimate, kind: str) -> tuple[str, str]:
-    if not e.known:
-        return DASH, f"({e.reason})" if e.reason else ""
-    return u.fmt(e.value, kind), u.interval(e, kind)
-
-
 def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryView:
     u = Units.from_config(config)
+
+    def _est(u: Units, e: Estimate, kind: str) -> tuple[str, str]:
+        if not e.known:  # the reason in words (the table cells are escaped on layout)
+            return DASH, f"({_plain(words.text('reason', e.reason))})" if e.reason else ""
+        return u.fmt(e.value, kind), u.interval(e, kind)
+
     vm = client_view(a, config)
     M = words.labels["methods"]
     c = a.client
     ph = a.current_phase
+    kind_text = _plain(words.text("phase_kind", ph.kind)) if ph is not None else ""
     ident = [
         ("client", c.name),
         ("id", c.client_id),
@@ -65,9 +70,9 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
         ("month", vm.month),
         (
             "phase",
-            f"{ph.name} ({ph.kind}), week {a.week_of_phase}, from {u.d(ph.start)}"
+            f"{ph.name} ({kind_text}), week {a.week_of_phase}, from {u.d(ph.start)}"
             if ph is not None and a.week_of_phase
-            else (f"{ph.name} ({ph.kind})" if ph is not None else DASH),
+            else (f"{ph.name} ({kind_text})" if ph is not None else DASH),
         ),
     ]
     trend_method = DASH
@@ -108,7 +113,7 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
             )
         v, i = _est(u, ph.adaptation_kcal, "e_change")
         pct = u.pct(ph.adaptation_pct.value, signed=True) if ph.adaptation_pct.known else ""
-        basis = "of expected"
+        basis = "of expected" if ph.adaptation_kcal.known else ""
         if ph.adaptation_data_kcal.known:
             k = ph.adaptation_kcal
             zero_inside = k.low is not None and k.high is not None and k.low <= 0.0 <= k.high
@@ -131,7 +136,10 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
                     )
                 )
         rows.append(("depth", u.pct(ph.deficit_depth_pct), "", "realised deficit ÷ maintenance"))
-        rows.append(("days_deficit", u.number(ph.days_in_deficit), "", "up to month end"))
+        if ph.kind == "month":  # no phases recorded: nothing says when a deficit began
+            rows.append(("days_deficit", DASH, "", _plain(words.text("phase_kind", ph.kind))))
+        else:
+            rows.append(("days_deficit", u.number(ph.days_in_deficit), "", "up to month end"))
     if a.resting_kcal:
         values = sorted(a.resting_kcal.items(), key=lambda kv: kv[1])
         lo, hi = values[0][1], values[-1][1]
@@ -146,7 +154,8 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
             (
                 "bodyfat",
                 u.pct(last.bodyfat_pct),
-                f"± {u.number(last.bodyfat_se_pct, 1)} points (equation standard error)",
+                f"± {u.number(last.bodyfat_se_pct, 1)} points",
+                "± is the equation's standard error; "
                 f"{_method_name(a, last.equation)}, "
                 f"{u.d(last.date)}" + (f", Σ {u.number(last.sum_mm, 1)} mm" if last.sum_mm else ""),
             )
@@ -175,7 +184,7 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
                 "bodyfat",
                 u.pct(fb.bodyfat_pct),
                 f"± {u.number(fb.bodyfat_se_pct, 1)} points",
-                f"{_method_name(a, fb.equation)} (rough, no skinfolds)",
+                f"{_method_name(a, fb.equation)}; no skinfold sessions",
             )
         )
     pr = a.projection
@@ -207,6 +216,11 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
                     f"for {u.pct(-rate, dp=2)} body weight/week",
                 )
             )
+    # An estimate that could not be made says why in the method column, where there is room.
+    for n, (key, value, interval, method) in enumerate(rows):
+        if value == DASH and interval.startswith("(") and interval.endswith(")"):
+            why = interval[1:-1]
+            rows[n] = (key, value, "", why if method in ("", DASH) else f"{why}; {method}")
     return SummaryView(base=vm, rows=rows, ident=ident)
 
 
@@ -214,6 +228,11 @@ def _first_day(a: ClientAnalysis) -> dt.date | None:
     if not a.log.n_days:
         return None
     return dt.date.fromisoformat(str(a.log.dates[0].astype("datetime64[D]")))
+
+
+def _plain(text: str) -> str:
+    """Template output (escaped markup) back to plain text, for cells escaped on layout."""
+    return html.unescape(text)
 
 
 def _short_name(name: str) -> str:
@@ -228,6 +247,51 @@ def _method_name(a: ClientAnalysis, code: str) -> str:
     return code
 
 
+def _short_method(m: dict[str, str]) -> dict[str, str]:
+    """A method for the summary's reference list: its name up to a colon (the name's
+    headline; the rest restates what the table says) and the citation without titles.
+    ``methods.pdf`` carries both in full."""
+    return {**m, "name": m["name"].split(":")[0], "reference": short_citation(m["reference"])}
+
+
+def _title(text: str, theme: Theme, width: float, outline: str) -> list[Flowable]:
+    """The title in the compact heading size with the subtitle (client, month, practice) on
+    the same line when both fit: the page is dense by design, and the identification table
+    below repeats the client and the month."""
+    head = blocks(text, theme)
+    if not head or not isinstance(head[0], Paragraph):
+        return head
+    lines = [ln.strip() for ln in text.splitlines() if ln.strip()]
+    title = next((ln[2:] for ln in lines if ln.startswith("= ")), "")
+    sub = next((ln[2:] for ln in lines if ln.startswith("+ ")), "")
+    h1 = theme["h1"]
+    w_title = stringWidth(_plain(title), h1.fontName, h1.fontSize)
+    w_sub = stringWidth("\u2003" + _plain(sub), T.FONT, T.SIZE_LEAD)
+    if sub and len(head) == 2 and w_title + w_sub <= width:
+        font = f'<font name="{T.FONT}" size="{T.SIZE_LEAD}" color="{T.MUTED}">'
+        para = Paragraph(f"{title}{font}\u2003{sub}</font>", h1)
+        mark_heading(para, 0, outline)
+        return [para]
+    first = Paragraph(title, h1)  # a long name or practice: two lines
+    mark_heading(first, 0, outline)
+    return [first, *head[1:]]
+
+
+def _column_widths(
+    rows: list[list[str]], header: list[str], width: float, label_fraction: float
+) -> list[float]:
+    """Value and interval columns as wide as their longest text (capped), the quantity
+    column as given (a long label may wrap), the method column takes the rest: fewer
+    wrapped lines than fixed fractions for all four."""
+    pad = 4.5  # the table's left + right cell padding, and a little air
+    out = [label_fraction * width]
+    for n in (1, 2):
+        texts = [header[n], *(r[n] for r in rows)]
+        longest = max(stringWidth(t, T.FONT, T.SIZE_SMALL) for t in texts)
+        out.append(min(0.2 * width, longest + pad))
+    return [*out, width - sum(out)]
+
+
 def _ident_table(sv: SummaryView, words: Wording, theme: Theme, width: float) -> Table:
     """Identification in three label/value column pairs."""
     L = words.labels["ident"]
@@ -240,10 +304,11 @@ def _ident_table(sv: SummaryView, words: Wording, theme: Theme, width: float) ->
     for col in cols:
         col += [["", ""]] * (per_col - len(col))
     data = [[cell for col in cols for cell in col[r]] for r in range(per_col)]
-    w = width / 3
+    # label/value pairs sized to what they hold: the period and phase are the longest
+    fractions = (0.1, 0.2, 0.07, 0.12, 0.11, 0.40)
     return Table(
         data,
-        colWidths=[0.3 * w, 0.7 * w] * 3,
+        colWidths=[f * width for f in fractions],
         hAlign="LEFT",
         style=TableStyle(
             [
@@ -266,7 +331,7 @@ def _signature(words: Wording, theme: Theme, width: float) -> Table:
     rows: list[list[object]] = [[Paragraph(esc(L["note"]), theme["cell_head"]), ""]]
     for label in sign:
         rows.append(["", Paragraph(esc(label), theme["cell_head"])])
-    heights = [5 * mm] + [6.5 * mm] * len(sign)
+    heights = [5 * mm] + [6 * mm] * len(sign)
     style: list[tuple[Any, ...]] = [
         ("FONTNAME", (0, 0), (-1, -1), T.FONT),
         ("SPAN", (0, 0), (0, -1)),
@@ -301,12 +366,9 @@ def render_practitioner_summary(
     margin = 14 * mm
     width = pagesize[0] - 2 * margin
     L = words.labels
+    frame_h = pagesize[1] - 2 * margin
     body: list[Flowable] = []
-    head = blocks(words.text("header", sv), theme)
-    if head and isinstance(head[0], Paragraph):
-        head[0].style = theme["h1"]  # a compact title: this page is dense by design
-        mark_heading(head[0], 0, L["document"])
-    body += head
+    body += _title(words.text("header", sv), theme, width, L["document"])
     body.append(Spacer(1, 2 * mm))
     body.append(_ident_table(sv, words, theme, width))
     special = words.text("special_line", sv).strip()
@@ -316,24 +378,29 @@ def render_practitioner_summary(
     body.append(Spacer(1, 2 * mm))
     rl = L["rows"]
     rows = [[esc(rl[k]), esc(v), esc(i), esc(m)] for k, v, i, m in sv.rows]
-    body.append(
-        data_table(
+    plain = [[rl[k], v, i] for k, v, i, _ in sv.rows]
+
+    def quantities(label_fraction: float) -> Table:
+        return data_table(
             [esc(c) for c in L["cols"]],
             rows,
-            [0.23 * width, 0.18 * width, 0.17 * width, 0.42 * width],
+            _column_widths(plain, L["cols"][:3], width, label_fraction),
             theme,
             right_from=1,
             right_to=3,
             dense=True,
         )
-    )
+
+    # the quantity column's width that wraps fewest lines (label against method text)
+    tables = [quantities(f / 100) for f in range(18, 27)]
+    body.append(min(tables, key=lambda t: t.wrap(width, frame_h)[1]))
     body.append(Spacer(1, 2 * mm))
     if sv.phases:
         pcols = L["phase_cols"]
         prow = [
             [
                 esc(p["name"]),
-                esc(p["kind"]),
+                words.text("phase_kind", p["kind"]),
                 esc(p["dates"]),
                 p["days"],
                 esc(p["intake"]),
@@ -381,13 +448,15 @@ def render_practitioner_summary(
     body.append(Spacer(1, 1 * mm))
     if sv.methods:
         refs = " ".join(
-            f"[{n}] " + words.text("reference_line", m) for n, m in enumerate(sv.methods, 1)
+            f"[{n}] " + words.text("reference_line", _short_method(m))
+            for n, m in enumerate(sv.methods, 1)
         )
-        body.append(Paragraph(f"<b>{esc(L['references'])}.</b> {refs}", theme["fine"]))
-    body.append(Paragraph(words.text("footnote", sv), theme["fine"]))
+        # the cells' size: the references are read, not decoration
+        refs_style = ParagraphStyle("refs", parent=theme["small"], leading=T.SIZE_SMALL * 1.2)
+        body.append(Paragraph(f"<b>{esc(L['references'])}.</b> {refs}", refs_style))
+    body.append(Paragraph(words.text("footnote", sv), theme["small"]))
     body.append(Spacer(1, 1 * mm))
     sig = _signature(words, theme, width)
-    frame_h = pagesize[1] - 2 * margin
     story: list[Flowable] = [
         # Shrinks only as a last resort (very many phases or methods); anchored top left.
         KeepInFrame(

@@ -17,6 +17,7 @@ import numpy as np
 from reportgen.analysis.quality import FLAG_INTAKE_DAYS
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate, PhaseResult
+from reportgen.science.diet_break import diet_break_due
 
 from .outlook import outlook
 from .theme import missing_glyphs
@@ -36,7 +37,6 @@ SIGNAL_NOTABLE = ("moderate", "large")
 # times the 2-4 % of TDEE Hall et al. 2011's model expects for a moderate cut, and as large as
 # Rosenbaum & Leibel's 10-15 % at a maintained reduced weight (judgment).
 ADAPT_LARGE_PCT = 15.0
-LONG_DEFICIT_DAYS = 84  # 12 weeks of continuous deficit: suggest a break (common practice)
 
 
 @dataclass
@@ -94,13 +94,21 @@ def _estimate(u: Units, est: Estimate, kind: str, key: str) -> Figure:
     return Figure(key, value=u.fmt(est.value, kind), interval=u.interval(est, kind))
 
 
-def _rate_band(pct: float | None, rapid: bool) -> str:
+def _rate_band(pct: float | None, rapid: bool, progress: str | None = None) -> str:
     """How the narrative words the current rate; "fast" exactly when the rapid-loss rule
-    (``science.flags.rapid_loss``, the rule of the rapid-loss flag) holds."""
+    (``science.flags.rapid_loss``, the rule of the rapid-loss flag) holds.
+
+    ``progress`` is the progress section's status when the rate is the one it judged:
+    then the words follow its reading, so that page 1 never calls "rising" what the
+    section calls a stall or cannot tell yet, nor "slow loss" what it calls stalled."""
     if rapid:
         return "fast"
     if pct is None:
         return "unknown"
+    if progress == "gaining":
+        return "gain"
+    if progress == "stalled" or (progress is not None and pct > 0):
+        return "flat"
     loss = -pct
     if abs(pct) < RATE_FLAT_PCT:
         return "flat"
@@ -297,10 +305,25 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     figs["weight"] = f
     f = _estimate(u, a.month_change_kg, "w_change", "change")
     figs["change"] = f
-    f = _estimate(u, a.weekly_rate_kg, "w_rate", "rate")
+    # the words say "fast" exactly when the rapid-loss flag (science.flags.rapid_loss) is up
+    rapid = any(fl.code == "rapid-loss" for fl in a.flags)
+    # One weekly rate on page 1: while a deficit phase runs, the rate of its last weeks that
+    # the progress section judges (named with its span), not the smoothed trend's slope,
+    # which lags a fresh stall; otherwise, and when the rapid-loss flag (which is about the
+    # smoothed slope) is up, the smoothed slope at the month's end, named as such.
+    rate_kg, pct, span_weeks = a.weekly_rate_kg, a.weekly_rate_pct, 0
+    if (
+        not rapid
+        and a.plateau is not None
+        and a.plateau.recent_rate_kg_per_week.known
+        and a.plateau.recent_rate_pct_per_week.known
+    ):
+        rate_kg = a.plateau.recent_rate_kg_per_week
+        pct = a.plateau.recent_rate_pct_per_week
+        span_weeks = a.plateau.recent_days // 7
+    f = _estimate(u, rate_kg, "w_rate", "rate")
     if f.known:
         f.value = f"{f.value}/week"
-        pct = a.weekly_rate_pct
         if pct.known:
             f.detail = f"{u.pct(pct.value, dp=2, signed=True)}"
             if pct.low is not None and pct.high is not None:
@@ -331,22 +354,22 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     figs["bodyfat"] = _bodyfat_figure(a, u)
 
     implausible = any(fl.code == "implausible-adaptation" for fl in a.flags)
-    # the words say "fast" exactly when the rapid-loss flag (science.flags.rapid_loss) is up
-    rapid = any(fl.code == "rapid-loss" for fl in a.flags)
     look = None if no_month_data else outlook(a, config.report.projection_weeks, _display(u))
     last_weigh_in = _last_weigh_in(a)
     story: dict[str, Any] = {
         "change_dir": _direction(a.month_change_kg),
         "change_abs": "" if a.month_change_kg.value is None else u.w(abs(a.month_change_kg.value)),
-        "rate_band": "unknown" if no_month_data else _rate_band(a.weekly_rate_pct.value, rapid),
+        "rate_band": "unknown"
+        if no_month_data
+        else _rate_band(pct.value, rapid, a.plateau.status if span_weeks and a.plateau else None),
+        # weeks the page-1 rate spans (0: the smoothed trend's slope at the month's end)
+        "rate_span_weeks": str(span_weeks) if span_weeks else "",
+        # the progress section's status when it judged that rate ("" otherwise)
+        "progress": a.plateau.status if span_weeks and a.plateau else "",
         "no_month_data": no_month_data,
         "last_weigh_in": u.d(last_weigh_in) if last_weigh_in else "",
-        "rate_pct_abs": ""
-        if a.weekly_rate_pct.value is None
-        else u.pct(abs(a.weekly_rate_pct.value), dp=2),
-        "rate_pct": u.pct(a.weekly_rate_pct.value, dp=2, signed=True)
-        if a.weekly_rate_pct.known
-        else "",
+        "rate_pct_abs": "" if pct.value is None else u.pct(abs(pct.value), dp=2),
+        "rate_pct": u.pct(pct.value, dp=2, signed=True) if pct.known else "",
         "bf_first": u.pct(a.bodycomp[0].bodyfat_pct) if a.bodycomp else "",
         "bf_last": u.pct(a.bodycomp[-1].bodyfat_pct) if a.bodycomp else "",
         "bf_first_date": u.d(a.bodycomp[0].date) if a.bodycomp else "",
@@ -362,9 +385,8 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "adapt_large": False,
         "signals": [_signal_view(u, s) for s in a.signals],
         "notable_signals": [_signal_view(u, s) for s in a.signals if s.size in SIGNAL_NOTABLE],
-        "long_deficit": bool(
-            ph is not None and ph.days_in_deficit and ph.days_in_deficit >= LONG_DEFICIT_DAYS
-        ),
+        # a break at maintenance is worth discussing: the one rule (science.diet_break)
+        "long_deficit": ph is not None and diet_break_due(ph.days_in_deficit, ph.deficit_depth_pct),
         "weeks_in_deficit": str((ph.days_in_deficit or 0) // 7) if ph else "",
         "sessions": str(len(a.bodycomp)),
         "scale_bodyfat": bool(np.isfinite(a.log.body_fat_pct).any()),

@@ -66,9 +66,10 @@ BETWEEN_PERSON_CV = 0.4
 # 2011 model's betaAT 0.14 (from memory) predicts about 160 kcal/day after 3 weeks at -50 %
 # intake; Müller et al. 2015 measured 72-108 kcal/day of *resting* adaptation there
 # (published, abstract), and Leibel et al. 1995 found non-resting expenditure falling about as
-# much as resting, so the TEE figure lies near the model's.  A relative SD of 0.4 keeps a
-# factor of two from the model inside the prior's 90 % range (judgment).
-COEFFICIENT_CV = 0.4
+# much as resting, so the TEE figure may lie near the model's or at half of it.  A factor of
+# two either way as the 80 % range is ln 2 / 1.28 = 0.54 on the log scale; as a relative SD
+# we take 0.5 (judgment).
+COEFFICIENT_CV = 0.5
 # Absolute spread added to the proportional one: expenditure departs from the model's body-size
 # terms by a few tens of kcal/day even without a cut (individual tissue costs and the
 # activity coefficient differ from the model's averages; judgment: about 1 % of TDEE).
@@ -151,14 +152,14 @@ def literature_adaptation_kcal(
     Notes
     -----
     Hall et al. 2011's AT term after a step dEI: AT(t) = betaAT dEI (1 - exp(-t/tauAT)).
-    The spread is sd = hypot(0.57 |mean|, 30): the true between-person spread
+    The spread is sd = hypot(0.64 |mean|, 30): the true between-person spread
     (SD/mean 0.4: Leibel et al. 1995's 0.50-0.63 with the measurement error of
     their two TEE measurements taken out, judgment), the uncertainty of betaAT
-    itself (relative SD 0.4: Müller et al. 2015's resting figure and Leibel et
+    itself (relative SD 0.5: Müller et al. 2015's resting figure and Leibel et
     al.'s non-resting share bracket the model within a factor of two, judgment)
     and 30 kcal/day of departure from the model's body-size terms (judgment).
     Check (computed here): a 600 kcal/day cut over weeks 8-12 gives a mean of
-    about -83 and an SD of about 56.  Valid for intake changes of up to about 50 %
+    about -83 and an SD of about 61.  Valid for intake changes of up to about 50 %
     of maintenance over weeks to months; it says nothing about the years-long
     adaptation after extreme losses (Fothergill et al. 2016 report -499 +/- 207
     kcal/day of residual *resting* expenditure six years on).

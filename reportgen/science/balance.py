@@ -34,7 +34,11 @@ from reportgen.science.composition import (
     energy_density_kcal_per_kg,
     partition_weight_change_hall,
 )
-from reportgen.science.energy_density import LEAN_SHARE_LOG_SD, energy_density_with_spread
+from reportgen.science.energy_density import (
+    GLYCOGEN_WATER_KCAL_PER_KG,
+    LEAN_SHARE_LOG_SD,
+    energy_density_with_spread,
+)
 from reportgen.science.kalman import InitialState, TwoStateModel, kalman_smoother
 from reportgen.science.rates import (
     SHIFT_PRIOR_SD_KG,
@@ -44,15 +48,11 @@ from reportgen.science.rates import (
     window_rate,
 )
 from reportgen.science.trend import Z80
-from reportgen.unit_constants import KJ_PER_KCAL
 
 MIN_DAYS = 14  # no expenditure from fewer days (common practice: glycogen and water)
 MIN_WEIGH_INS = 8  # judgment: fewer weigh-ins than this cannot pin a rate
 MIN_INTAKE_DAYS = 7  # judgment: a mean intake from fewer logged days is not used
 KCAL_PER_KG_SPREADSHEET = 7700.0  # the constant a spreadsheet typically uses (common practice)
-# Glycogen 17.6 MJ/kg (Hall 2008, published) held with about 3 g of water per g (from
-# memory, unverified): 1052 kcal per kg of glycogen-with-water shift.
-GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / KJ_PER_KCAL / 4
 FALLBACK_RHO_HALF_RANGE = 600.0  # judgment: bracket of 7700 when the fat mass is unknown
 
 
@@ -239,7 +239,8 @@ def window_balance(
     rate = tissue slope (AR(1)-aware SE); dW = rate x days;
     rho = (rhoF dF + rhoL dL)/dW from the Hall/Forbes partition at F (Hall 2008);
     deficit = -(rho rate + rhoG shift/days), where shift is the fitted
-    glycogen-and-water shift inside the window (1052 kcal/kg) when the rate
+    glycogen-and-water shift inside the window (1137 kcal/kg,
+    :data:`reportgen.science.energy_density.GLYCOGEN_WATER_KCAL_PER_KG`) when the rate
     comes from :func:`reportgen.science.rates.segment_rate`; TDEE = mean intake +
     deficit.
     Var(deficit) = rho^2 SE(rate)^2 + rate^2 s_rho^2 with s_rho combining half the

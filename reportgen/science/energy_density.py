@@ -38,6 +38,7 @@ from reportgen.science.composition import (
     RHO_LEAN_KCAL_PER_KG,
     partition_weight_change_hall,
 )
+from reportgen.unit_constants import KJ_PER_KCAL
 
 # log-SD of the lean share around Forbes' curve: a factor of 2 at the 5th/95th percentile
 # (judgment, see the module docstring).
@@ -50,8 +51,10 @@ GLYCOGEN_STEP_KG_PER_KCAL = 0.0014
 GLYCOGEN_STEP_SD_KG_PER_KCAL = 0.0005
 GLYCOGEN_TAU_RANGE_DAYS = (3.0, 10.0)  # uniform (judgment, from the issue's brief range)
 # Energy of a kg of glycogen-with-water: 17.6 MJ/kg glycogen (Hall 2008, published) with
-# 2.7 g water per g (Hall's model; from memory): 4206 / 3.7 = 1137 kcal/kg.
-GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / 4.184 / 3.7
+# 2.7 g water per g (Hall's model, weight change 3.7 x glycogen; from memory; the
+# literature range is 3-4 g/g): 4206 / 3.7 = 1137 kcal/kg.  The one value used by the
+# energy balance, the plateau parts and the simulator.
+GLYCOGEN_WATER_KCAL_PER_KG = 17.6e3 / KJ_PER_KCAL / 3.7
 
 
 def _req(name: str, v: object) -> float:

@@ -14,8 +14,10 @@ trend slope, or daily expenditure)::
 
 :func:`kalman_smoother` is the one implementation of the filter and smoother
 algebra for both (Durbin & Koopman 2012, §4.3 filter, §4.4 state smoothing; the
-RTS form of the smoother).  Scalar arithmetic on Python floats: for 2x2 matrices it
-is faster than numpy.
+RTS form of the smoother); :func:`trend_water_smoother` is the same algebra for
+the local linear trend with a third, AR(1) state for water swings
+(:class:`TrendWaterModel`).  Scalar arithmetic on Python floats: for 2x2 and 3x3
+matrices it is faster than numpy.
 
 References
 ----------
@@ -212,3 +214,226 @@ def _rts_smoother(filtered: _Filtered, model: TwoStateModel) -> SmoothedStates:
         sp11 = c11 + t10 * j10 + t11 * j11
         s0[t], s1[t], v00[t], v11[t] = sa0, sa1, sp00, sp11
     return SmoothedStates(s0, v00, s1, v11)
+
+
+@dataclass(frozen=True)
+class TrendWaterModel:
+    """Local linear trend plus an AR(1) water state, observed with white noise.
+
+    ::
+
+        y_t      = mu_t + w_t + e_t           Var e_t = obs_var[t]
+        mu_{t+1} = mu_t + beta_t + eta_t      Var eta = level_var
+        beta_{t+1} = beta_t + zeta_t          Var zeta = slope_var
+        w_{t+1}  = phi w_t + xi_t             Var xi = water_var
+
+    The level and slope start diffuse (variances ``diffuse_level`` and
+    ``diffuse_slope``); the water starts in its stationary distribution,
+    variance water_var / (1 - phi^2).  This is the structural model of
+    Harvey (1989, ch. 2) with an autoregressive component, as in statsmodels'
+    ``UnobservedComponents(level="local linear trend", autoregressive=1)``.
+    """
+
+    level_var: float
+    slope_var: float
+    phi: float
+    water_var: float
+    diffuse_level: float = 1e6
+    diffuse_slope: float = 1e4
+
+
+@dataclass(frozen=True)
+class TrendWaterStates:
+    """Smoothed level, slope and water with their variances on every day."""
+
+    level: list[float]
+    level_var: list[float]
+    slope: list[float]
+    slope_var: list[float]
+    water: list[float]
+    water_var: list[float]
+
+
+@dataclass(frozen=True)
+class TrendWaterOutput:
+    """Likelihood terms (as :class:`FilterOutput`) and, when asked for, the smoothed states."""
+
+    sum_sq: float
+    sum_log_f: float
+    terms: int
+    smoothed: TrendWaterStates | None
+
+
+def trend_water_smoother(
+    y: Sequence[float],
+    obs_var: Sequence[float],
+    model: TrendWaterModel,
+    *,
+    smooth: bool = True,
+    diffuse_observations: int = 2,
+) -> TrendWaterOutput:
+    """Kalman filter, and RTS smoother when ``smooth``, of :class:`TrendWaterModel`.
+
+    Parameters
+    ----------
+    y : sequence of float
+        Weigh-in of each day; NaN on days without one. [kg]
+    obs_var : sequence of float
+        Variance of the white part of each day's weigh-in. [kg^2]
+    model : TrendWaterModel
+        Disturbance variances and the water's autocorrelation.
+    smooth : bool, default True
+        Also run the smoother backwards (otherwise only the likelihood terms).
+    diffuse_observations : int, default 2
+        First observations that only initialise the diffuse level and slope and
+        are left out of the likelihood terms.
+
+    Returns
+    -------
+    TrendWaterOutput
+
+    Notes
+    -----
+    Same algebra as :func:`kalman_smoother` (Durbin & Koopman 2012, §4.3 and §4.4)
+    with three states, Z = [1, 0, 1] and T = [[1, 1, 0], [0, 1, 0], [0, 0, phi]];
+    unrolled on Python floats (the 3 x 3 covariance as its six distinct entries).
+    """
+    n = len(y)
+    phi = model.phi
+    ql, qs, qw = model.level_var, model.slope_var, model.water_var
+    a0 = a1 = a2 = 0.0
+    p00, p01, p02 = model.diffuse_level, 0.0, 0.0
+    p11, p12 = model.diffuse_slope, 0.0
+    p22 = qw / (1.0 - phi * phi)
+    sum_sq = 0.0
+    sum_log_f = 0.0
+    terms = 0
+    seen = 0
+    keep = smooth
+    fa: list[tuple[float, float, float]] = []
+    fp: list[tuple[float, float, float, float, float, float]] = []
+    for t in range(n):
+        yt = y[t]
+        if yt == yt:
+            m0 = p00 + p02
+            m1 = p01 + p12
+            m2 = p02 + p22
+            f = m0 + m2 + obs_var[t]
+            v = yt - a0 - a2
+            g = v / f
+            a0 += m0 * g
+            a1 += m1 * g
+            a2 += m2 * g
+            i_f = 1.0 / f
+            p00 -= m0 * m0 * i_f
+            p01 -= m0 * m1 * i_f
+            p02 -= m0 * m2 * i_f
+            p11 -= m1 * m1 * i_f
+            p12 -= m1 * m2 * i_f
+            p22 -= m2 * m2 * i_f
+            seen += 1
+            if seen > diffuse_observations:
+                sum_sq += v * g
+                sum_log_f += math.log(f)
+                terms += 1
+        if keep:
+            fa.append((a0, a1, a2))
+            fp.append((p00, p01, p02, p11, p12, p22))
+        a0 += a1
+        a2 *= phi
+        p00, p01, p02, p11, p12, p22 = (
+            p00 + 2.0 * p01 + p11 + ql,
+            p01 + p11,
+            phi * (p02 + p12),
+            p11 + qs,
+            phi * p12,
+            phi * phi * p22 + qw,
+        )
+    if not keep:
+        return TrendWaterOutput(sum_sq, sum_log_f, terms, None)
+    return TrendWaterOutput(sum_sq, sum_log_f, terms, _rts3(fa, fp, model))
+
+
+def _rts3(
+    fa: list[tuple[float, float, float]],
+    fp: list[tuple[float, float, float, float, float, float]],
+    model: TrendWaterModel,
+) -> TrendWaterStates:
+    """Rauch-Tung-Striebel smoother of :func:`trend_water_smoother`, backwards."""
+    n = len(fa)
+    phi = model.phi
+    ql, qs, qw = model.level_var, model.slope_var, model.water_var
+    lv = [0.0] * n
+    lvv = [0.0] * n
+    sv = [0.0] * n
+    svv = [0.0] * n
+    wv = [0.0] * n
+    wvv = [0.0] * n
+    s0, s1, s2 = fa[n - 1]
+    c = fp[n - 1]
+    q00, q01, q02, q11, q12, q22 = c
+    lv[n - 1], sv[n - 1], wv[n - 1] = s0, s1, s2
+    lvv[n - 1], svv[n - 1], wvv[n - 1] = q00, q11, q22
+    for t in range(n - 2, -1, -1):
+        c00, c01, c02, c11, c12, c22 = fp[t]
+        f0, f1, f2 = fa[t]
+        # predicted covariance of t+1 given t: T C T' + Q
+        n00 = c00 + 2.0 * c01 + c11 + ql
+        n01 = c01 + c11
+        n02 = phi * (c02 + c12)
+        n11 = c11 + qs
+        n12 = phi * c12
+        n22 = phi * phi * c22 + qw
+        # its inverse by cofactors
+        k00 = n11 * n22 - n12 * n12
+        k01 = n02 * n12 - n01 * n22
+        k02 = n01 * n12 - n02 * n11
+        det = n00 * k00 + n01 * k01 + n02 * k02
+        k11 = (n00 * n22 - n02 * n02) / det
+        k12 = (n01 * n02 - n00 * n12) / det
+        k22 = (n00 * n11 - n01 * n01) / det
+        k00 /= det
+        k01 /= det
+        k02 /= det
+        # M = C T'
+        m00, m01, m02 = c00 + c01, c01, phi * c02
+        m10, m11, m12 = c01 + c11, c11, phi * c12
+        m20, m21, m22 = c02 + c12, c12, phi * c22
+        # J = M N^-1
+        j00 = m00 * k00 + m01 * k01 + m02 * k02
+        j01 = m00 * k01 + m01 * k11 + m02 * k12
+        j02 = m00 * k02 + m01 * k12 + m02 * k22
+        j10 = m10 * k00 + m11 * k01 + m12 * k02
+        j11 = m10 * k01 + m11 * k11 + m12 * k12
+        j12 = m10 * k02 + m11 * k12 + m12 * k22
+        j20 = m20 * k00 + m21 * k01 + m22 * k02
+        j21 = m20 * k01 + m21 * k11 + m22 * k12
+        j22 = m20 * k02 + m21 * k12 + m22 * k22
+        d0 = s0 - (f0 + f1)
+        d1 = s1 - f1
+        d2 = s2 - phi * f2
+        s0 = f0 + j00 * d0 + j01 * d1 + j02 * d2
+        s1 = f1 + j10 * d0 + j11 * d1 + j12 * d2
+        s2 = f2 + j20 * d0 + j21 * d1 + j22 * d2
+        # P_s = C + J (P_s' - N) J'
+        e00, e01, e02 = q00 - n00, q01 - n01, q02 - n02
+        e11, e12, e22 = q11 - n11, q12 - n12, q22 - n22
+        # rows of J E
+        u00 = j00 * e00 + j01 * e01 + j02 * e02
+        u01 = j00 * e01 + j01 * e11 + j02 * e12
+        u02 = j00 * e02 + j01 * e12 + j02 * e22
+        u10 = j10 * e00 + j11 * e01 + j12 * e02
+        u11 = j10 * e01 + j11 * e11 + j12 * e12
+        u12 = j10 * e02 + j11 * e12 + j12 * e22
+        u20 = j20 * e00 + j21 * e01 + j22 * e02
+        u21 = j20 * e01 + j21 * e11 + j22 * e12
+        u22 = j20 * e02 + j21 * e12 + j22 * e22
+        q00 = c00 + u00 * j00 + u01 * j01 + u02 * j02
+        q01 = c01 + u00 * j10 + u01 * j11 + u02 * j12
+        q02 = c02 + u00 * j20 + u01 * j21 + u02 * j22
+        q11 = c11 + u10 * j10 + u11 * j11 + u12 * j12
+        q12 = c12 + u10 * j20 + u11 * j21 + u12 * j22
+        q22 = c22 + u20 * j20 + u21 * j21 + u22 * j22
+        lv[t], sv[t], wv[t] = s0, s1, s2
+        lvv[t], svv[t], wvv[t] = q00, q11, q22
+    return TrendWaterStates(lv, lvv, sv, svv, wv, wvv)

@@ -57,6 +57,7 @@ import numpy as np
 
 from reportgen.io.model import FloatArray
 from reportgen.results import Estimate, PlateauOption
+from reportgen.science.diet_break import BREAK_WEEKS, diet_break_due
 from reportgen.science.flags import (
     BMI_UNDERWEIGHT,
     INTAKE_FLOOR_MEN_KCAL,
@@ -75,6 +76,7 @@ PROGRESS_STATUSES: tuple[str, ...] = (
     "too-few-data",  # see ProgressStatus.reason
     "not-in-deficit",  # the phase is not a deficit: no planned loss to compare with
 )
+SHORTFALL: tuple[str, ...] = ("stalled", "slower", "gaining")
 STATUS_REASONS: tuple[str, ...] = (
     "phase-under-3-weeks",
     "recent-window-under-3-weeks",
@@ -92,6 +94,11 @@ WATER_REASONS: tuple[str, ...] = (
 # The recent window: the last four weeks, at least three (the issue's "last 3-4 weeks").
 RECENT_WINDOW_DAYS = 28
 MIN_RECENT_DAYS = 21
+# Sequential rule: when the last four weeks hold both no change and the plan, the rate
+# over the last six, then eight weeks decides, if those weeks lie after the deficit's
+# glycogen weeks and the longer rate agrees with the four-week one (judgment: a stall that
+# has lasted longer is measured over its whole span; more weigh-ins, narrower interval).
+LONGER_WINDOWS_DAYS = (42, 56)
 MIN_RECENT_WEIGH_INS = 10  # judgment: fewer cannot pin a three-week rate
 # The first two weeks after an intake change are dominated by glycogen and water (common
 # practice, no single source): the comparison window starts after them, and a phase
@@ -106,6 +113,11 @@ ON_TRACK_SHARE = 0.75
 # 80 % (judgment: an 80 % interval would leave one truly flat client in five outside
 # "stalled" by chance alone): whether the rate is distinguishable from zero is judged on
 # its 95 % interval, whether it reaches the plan on its 90 % interval.
+# "Gaining" means a gain that matters: the 95 % interval lies above +0.1 % of body weight a
+# week (about 0.4 kg a month at 90 kg, inside the glycogen-and-water swing of a change in
+# intake).  A smaller rise is reported as no change (judgment, no single source: a flat
+# scale drifting up by a few hundred grams as glycogen refills is a stall, not a gain).
+GAIN_MARGIN_PCT_PER_WEEK = 0.1
 ZERO_Z = 1.959963984540054  # scipy.stats.norm.ppf(0.975)
 STATUS_Z = 1.6448536269514722  # scipy.stats.norm.ppf(0.95)
 
@@ -119,14 +131,8 @@ BREAK_WATER_DAYS = GLYCOGEN_WEEKS_DAYS  # glycogen refilled in a break leaves wi
 INTAKE_RISE_KCAL = 300.0  # a step up in mean intake inside the window (second vs first half)
 MIN_HALF_LOGGED_DAYS = 5
 
-# Options.
-# A break at maintenance is suggested after this long a deficit at this depth (judgment,
-# informed by MATADOR, Byrne et al. 2018 [4]_: 16 weeks of restriction to 67 % of energy
-# requirements; two-week breaks at maintenance between two-week blocks gave more fat loss
-# and a smaller fall in resting expenditure than continuous restriction).
-BREAK_MIN_DAYS_IN_DEFICIT = 84
-BREAK_MIN_DEPTH_PCT = 20.0
-BREAK_WEEKS = 2  # MATADOR's break length
+# Options.  When a break at maintenance is offered: science.diet_break, the one rule the
+# report's narrative uses too (evidence from Byrne et al. 2018 [4]_, judgment marked there).
 STEPS_ROUND = 100
 STEPS_LARGE = 5000  # more extra steps than this a day: say so (judgment)
 RECHECK_DAYS = (7, 14)
@@ -142,6 +148,7 @@ class ProgressStatus:
     planned_pct_per_week: float | None = None
     underlying: str | None = None  # the status before the water explanation
     water_reasons: tuple[str, ...] = ()
+    window_days: int | None = None  # calendar days the rate spans (None: no rate)
 
 
 RECENT_MARGIN_DAYS = 28  # weeks before the recent window that pin its starting level
@@ -348,12 +355,59 @@ def water_explanation(
     return tuple(out)
 
 
+def reference_rate(
+    planned_pct_per_week: float | None,
+    planned_se_pct_per_week: float,
+    early_rate: tuple[float, float] | None,
+) -> tuple[float | None, float, bool]:
+    """The rate a stall is judged against: the plan, sharpened by the phase's early rate.
+
+    Parameters
+    ----------
+    planned_pct_per_week, planned_se_pct_per_week : float or None, float
+        The planned rate (negative = loss) and its standard error (from the
+        baseline's). [% of body weight/week]
+    early_rate : (float, float) or None
+        Rate and SE of the phase's first weeks after its glycogen weeks. [% of body
+        weight/week]
+
+    Returns
+    -------
+    (float or None, float, bool)
+        Reference rate, its SE, and whether the early rate was pooled in: the
+        inverse-variance weighted mean of the two when they agree (their
+        difference within ``ZERO_Z`` of its SE, a homogeneity test at the 5 %
+        level), else the plan unchanged.
+
+    Notes
+    -----
+    Both estimate the rate this phase runs at when its plan is kept: the plan from
+    the target and the expected expenditure, the early rate from the scale in
+    weeks 3-6.  When they agree, pooling them is the standard fixed-effect
+    combination (precision-weighted mean, SE 1/sqrt(sum of precisions)); when
+    they do not, the client never ran at the plan and the plan stays the
+    reference.  Check value (hand-calculated): plan -0.50 +/- 0.20 and early
+    -0.40 +/- 0.10 give -0.42 +/- 0.089.
+    """
+    plan = (planned_pct_per_week, planned_se_pct_per_week, False)
+    if planned_pct_per_week is None or early_rate is None or planned_se_pct_per_week <= 0:
+        return plan
+    e, e_se = early_rate
+    if not (math.isfinite(e) and math.isfinite(e_se) and e_se > 0):
+        return plan
+    if abs(planned_pct_per_week - e) > ZERO_Z * math.hypot(planned_se_pct_per_week, e_se):
+        return plan
+    wp = 1.0 / planned_se_pct_per_week**2
+    we = 1.0 / e_se**2
+    return (wp * planned_pct_per_week + we * e) / (wp + we), 1.0 / math.sqrt(wp + we), True
+
+
 def _rate_status(
     rate: float, se: float, planned: float, planned_se: float = 0.0
 ) -> tuple[str, str | None]:
     lo = rate - ZERO_Z * se
     hi = rate + ZERO_Z * se
-    if lo > 0:
+    if lo > GAIN_MARGIN_PCT_PER_WEEK:
         return "gaining", None
     if hi >= 0:  # the interval includes zero
         if rate - planned > STATUS_Z * math.hypot(se, planned_se):
@@ -377,6 +431,7 @@ def progress_status(
     water_reasons: tuple[str, ...] = (),
     rate_before_water: tuple[float, float] | None = None,
     planned_se_pct_per_week: float = 0.0,
+    before_water_days: int | None = None,
 ) -> ProgressStatus:
     """Progress status of a deficit phase over its recent window.
 
@@ -404,6 +459,8 @@ def progress_status(
     planned_se_pct_per_week : float, default 0
         Standard error of the planned rate (from the expected expenditure's, which
         a short baseline dominates). [% of body weight/week]
+    before_water_days : int or None
+        Days spanned by ``rate_before_water``. [day]
 
     Returns
     -------
@@ -416,7 +473,7 @@ def progress_status(
     rate p and its SE s_p, and the bar b = 0.75 p (``ON_TRACK_SHARE``, common
     practice, no single source):
 
-    * ``gaining``: lo > 0;
+    * ``gaining``: lo > 0.1 (``GAIN_MARGIN_PCT_PER_WEEK``, judgment);
     * ``stalled``: lo <= 0 <= hi and r - p > z sqrt(s^2 + s_p^2) (the interval
       includes zero and excludes the planned rate, allowing for the plan's own
       uncertainty);
@@ -426,10 +483,11 @@ def progress_status(
       quarters of the plan cannot be excluded);
     * ``slower``: hi < 0 and the bar is excluded.
 
-    A ``stalled``, ``slower`` or ``gaining`` reading with a water reason becomes
-    ``likely-water`` ("recheck in 1-2 weeks"), unless the rate measured before
-    the high-intake days already reads stalled, slower or gaining (then the
-    shortfall was there before the water).
+    A ``stalled``, ``slower`` or ``gaining`` reading, or an ``interval-too-wide``
+    one, with a water reason becomes ``likely-water`` ("recheck in 1-2 weeks"),
+    unless the rate measured before the high-intake days reads stalled, slower or
+    gaining: then the shortfall was there before the water, and that reading is
+    the status.
     """
     if phase_kind != "deficit":
         return ProgressStatus("not-in-deficit")
@@ -449,22 +507,34 @@ def progress_status(
     half = Z80 * rate_se_pct_per_week
     rate = Estimate(rate_pct_per_week, rate_pct_per_week - half, rate_pct_per_week + half)
     if planned_pct_per_week is None or not planned_pct_per_week < 0:
-        return ProgressStatus("too-few-data", "no-planned-rate", rate)
+        return ProgressStatus("too-few-data", "no-planned-rate", rate, window_days=recent_days)
     status, reason = _rate_status(
         rate_pct_per_week, rate_se_pct_per_week, planned_pct_per_week, planned_se_pct_per_week
     )
-    if status in ("stalled", "slower", "gaining") and water_reasons:
-        before_ok = True
+    if water_reasons and (status in SHORTFALL or reason == "interval-too-wide"):
         if rate_before_water is not None and "high-intake-days" in water_reasons:
             before, _ = _rate_status(
                 *rate_before_water, planned_pct_per_week, planned_se_pct_per_week
             )
-            before_ok = before not in ("stalled", "slower", "gaining")
-        if before_ok:
-            return ProgressStatus(
-                "likely-water", None, rate, planned_pct_per_week, status, water_reasons
-            )
-    return ProgressStatus(status, reason, rate, planned_pct_per_week, None, water_reasons)
+            if before in SHORTFALL:
+                # the shortfall was there before the high days: not water; report that rate
+                b, b_se = rate_before_water
+                b_rate = Estimate(b, b - Z80 * b_se, b + Z80 * b_se)
+                return ProgressStatus(
+                    before,
+                    None,
+                    b_rate,
+                    planned_pct_per_week,
+                    None,
+                    water_reasons,
+                    before_water_days,
+                )
+        return ProgressStatus(
+            "likely-water", None, rate, planned_pct_per_week, status, water_reasons, recent_days
+        )
+    return ProgressStatus(
+        status, reason, rate, planned_pct_per_week, None, water_reasons, recent_days
+    )
 
 
 @dataclass(frozen=True)
@@ -551,11 +621,11 @@ def discussion_options(
       below the intake floor (1200 kcal/day women, 1500 men; common practice,
       flags.py): then the caution "below-intake-floor" instead.
     * ``extra-steps``: the gap over the cost per step (:func:`steps_to_close_gap`).
-    * ``maintenance-break``: after at least 12 weeks in deficit at a depth of at
-      least 20 % of maintenance (judgment, informed by Byrne et al. 2018 [4]_,
-      whose two-week breaks at maintenance gave more fat loss than continuous
-      restriction to 67 % of requirements), whatever the status.
-    * ``likely-water``: "recheck" in 7-14 days, nothing else.
+    * ``likely-water``: "recheck" in 7-14 days, and no option that changes intake.
+    * ``maintenance-break``: whenever ``diet_break.diet_break_due`` says so (at
+      least 12 weeks in deficit at a depth of at least 20 % of maintenance, or of
+      unknown depth; evidence and judgment in ``reportgen.science.diet_break``),
+      whatever the status, so that the report's narrative and this section agree.
     """
     cautions: list[str] = []
     if minor:
@@ -568,9 +638,8 @@ def discussion_options(
         return PlateauOptions((), ("refer-practitioner", *cautions))
     opts: list[PlateauOption] = []
     if status == "likely-water":
-        return PlateauOptions(
-            (PlateauOption("recheck", {"days_min": RECHECK_DAYS[0], "days_max": RECHECK_DAYS[1]}),),
-            (),
+        opts.append(
+            PlateauOption("recheck", {"days_min": RECHECK_DAYS[0], "days_max": RECHECK_DAYS[1]})
         )
     if status in ("stalled", "slower"):
         ifr = intake_for_planned_rate
@@ -591,21 +660,10 @@ def discussion_options(
             if steps > STEPS_LARGE:
                 vals["large"] = 1.0
             opts.append(PlateauOption("extra-steps", vals))
-    if (
-        status not in ("too-early", "not-in-deficit")
-        and days_in_deficit is not None
-        and deficit_depth_pct is not None
-        and days_in_deficit >= BREAK_MIN_DAYS_IN_DEFICIT
-        and deficit_depth_pct >= BREAK_MIN_DEPTH_PCT
-    ):
-        opts.append(
-            PlateauOption(
-                "maintenance-break",
-                {
-                    "weeks": float(BREAK_WEEKS),
-                    "days_in_deficit": float(days_in_deficit),
-                    "depth_pct": deficit_depth_pct,
-                },
-            )
-        )
+    if status != "not-in-deficit" and diet_break_due(days_in_deficit, deficit_depth_pct):
+        assert days_in_deficit is not None
+        vals = {"weeks": float(BREAK_WEEKS), "days_in_deficit": float(days_in_deficit)}
+        if deficit_depth_pct is not None:
+            vals["depth_pct"] = deficit_depth_pct
+        opts.append(PlateauOption("maintenance-break", vals))
     return PlateauOptions(tuple(opts), tuple(cautions))

@@ -74,7 +74,7 @@ class PlateauInputs:
 @dataclass(frozen=True)
 class PlateauAssessment:
     status: pl.ProgressStatus
-    planned_source: str | None  # "target" or "early-rate"
+    planned_source: str | None  # "target", "early-rate" or "target-and-early-rate"
     early: pc.WindowSummary | None
     recent: pc.WindowSummary | None
     causes: pc.DeficitChangeCauses | None
@@ -151,7 +151,15 @@ def assess_plateau(inp: PlateauInputs) -> PlateauAssessment:
     * Planned rate: from ``target_kcal`` with the client's baseline scaled to
       today's body (``expected.expected_tdee_from_baseline``) when both are
       known, its SE from the baseline's; else the rate of the phase's first
-      weeks (deficit days 15-42), the "phase's own earlier rate".
+      weeks (deficit days 15-42), the "phase's own earlier rate".  With both, the
+      status compares against their precision-weighted mean when they agree
+      (``plateau.reference_rate``).
+    * Sequential rule: when the four-week rate holds both no change and the
+      reference, the rate over six, then eight weeks decides, if those weeks lie
+      after the deficit's glycogen weeks, no water reason applies and the longer
+      rate agrees with the four-week one (a Hausman-type test: their difference
+      within ``plateau.STATUS_Z`` of sqrt(s4^2 - sL^2), the SE of the difference
+      of nested efficient estimates); the status's ``window_days`` says which.
     * Causes: first weeks against the recent window
       (``plateau_causes.deficit_change_causes``); the early window must end
       before the recent one starts.
@@ -215,33 +223,73 @@ def assess_plateau(inp: PlateauInputs) -> PlateauAssessment:
             planned = pl.planned_rate_pct_per_week(expected_now.value, inp.target_kcal, rho, cur_w)
             planned_se = (expected_now.high - expected_now.value) / Z80 * to_pct / rho
             source = "target"
-    if planned is None and early_ok:
+    early_rate: tuple[float, float] | None = None
+    if early_ok:
         er = window_rate(w[e0 : e1 + 1], None, noise=noise)
         if er is not None:
-            planned, planned_se = er.rate_kg_per_day * to_pct, er.se_kg_per_day * to_pct
-            source = "early-rate"
+            early_rate = (er.rate_kg_per_day * to_pct, er.se_kg_per_day * to_pct)
+    if planned is None and early_rate is not None:
+        planned, planned_se = early_rate
+        source = "early-rate"
+        early_rate = None
+    ref, ref_se, pooled = pl.reference_rate(planned, planned_se or 0.0, early_rate)
+    if pooled:
+        source = "target-and-early-rate"
     # water check and status
     reasons = pl.water_explanation(
         inp.intake_kcal[lo:], days_since_break_end=inp.days_since_break_end
     )
     before = None
+    before_days = None
     j = pl.first_high_day(inp.intake_kcal[lo:])
     if j is not None and j >= bal.MIN_DAYS:
         rw = None if inp.robust_weights is None else inp.robust_weights[: lo + j]
         wb = pl.recent_window_rate(w[: lo + j], lo, lo + j - 1, rw, noise, margin)
         if wb is not None:
             before = (wb.rate_kg_per_day * to_pct, wb.se_kg_per_day * to_pct)
+            before_days = j
     status = pl.progress_status(
         None if rate is None else rate.rate_kg_per_day * to_pct,
         None if rate is None else rate.se_kg_per_day * to_pct,
-        planned,
+        ref,
         phase_days=last - inp.phase_start + 1,
         recent_days=recent_days,
         recent_weigh_ins=int(np.isfinite(w[lo:]).sum()),
         water_reasons=reasons,
         rate_before_water=before,
-        planned_se_pct_per_week=planned_se or 0.0,
+        planned_se_pct_per_week=ref_se,
+        before_water_days=before_days,
     )
+    if status.reason == "interval-too-wide" and not reasons:
+        # sequential rule: the last four weeks hold both no change and the plan; a
+        # longer window that the deficit's settled weeks still cover may decide
+        for days in pl.LONGER_WINDOWS_DAYS:
+            lo_l = n - days
+            if lo_l < max(settled, inp.phase_start, 0):
+                break
+            m_l = int(np.clip(lo_l - settled, 0, pl.RECENT_MARGIN_DAYS))
+            rl = pl.recent_window_rate(w, lo_l, last, inp.robust_weights, noise, m_l)
+            if rl is None:
+                break
+            got_l = pl.progress_status(
+                rl.rate_kg_per_day * to_pct,
+                rl.se_kg_per_day * to_pct,
+                ref,
+                phase_days=last - inp.phase_start + 1,
+                recent_days=days,
+                recent_weigh_ins=int(np.isfinite(w[lo_l:]).sum()),
+                planned_se_pct_per_week=ref_se,
+            )
+            r4 = status.rate_pct_per_week
+            assert r4.value is not None
+            se4 = r4.normal_sd
+            sel = rl.se_kg_per_day * to_pct
+            same = abs(r4.value - rl.rate_kg_per_day * to_pct) <= pl.STATUS_Z * math.sqrt(
+                max(se4 * se4 - sel * sel, 0.0)
+            )
+            if got_l.status != "too-few-data" and same:
+                status = got_l
+                break
     recent: pc.WindowSummary | None = None
     recent_reason: str | None = "too-few-weigh-ins"
     if rate is not None:

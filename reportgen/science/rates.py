@@ -64,9 +64,18 @@ NOISE_PHI_GRID = tuple(float(x) for x in np.linspace(0.0, 0.95, 20))
 NOISE_MAX_LAG = 10
 
 
-def _design(t: FloatArray, wt: FloatArray) -> tuple[FloatArray, FloatArray]:
-    """X = [1, t - mean] and B = W X (X'WX)^-1, so that the WLS hat matrix is X B'."""
-    x = np.column_stack([np.ones_like(t), t - t.mean()])
+def _design(
+    t: FloatArray, wt: FloatArray, shift_tau: float | None = None
+) -> tuple[FloatArray, FloatArray]:
+    """X = [1, t - mean] and B = W X (X'WX)^-1, so that the WLS hat matrix is X B'.
+
+    With ``shift_tau`` X also holds exp(-t / tau) (t from the window's first day):
+    a glycogen-and-water step that started with the window.
+    """
+    cols = [np.ones_like(t), t - t.mean()]
+    if shift_tau is not None:
+        cols.append(np.exp(-t / shift_tau))
+    x = np.column_stack(cols)
     g = np.linalg.inv(x.T @ (x * wt[:, None]))
     return x, (x * wt[:, None]) @ g
 
@@ -76,6 +85,7 @@ def fit_noise_model(
     windows: list[tuple[int, int]],
     weights: FloatArray | None = None,
     max_lag: int = NOISE_MAX_LAG,
+    shift_tau_days: float | None = None,
 ) -> NoiseModel | None:
     """Fit the AR(1)-plus-white noise model to residuals about straight lines.
 
@@ -90,6 +100,11 @@ def fit_noise_model(
         Robust precision weights (spikes down-weighted).
     max_lag : int
         Largest calendar lag whose autocovariance is matched. [day]
+    shift_tau_days : float, optional
+        When the windows are phases that start with a change of intake: the line
+        of each window also gets a glycogen-and-water step exp(-t/tau) from its
+        first day, so that the step's curve is not read as persistent water
+        swings. [day]
 
     Returns
     -------
@@ -128,7 +143,7 @@ def fit_noise_model(
         t = pos.astype(float)
         y = seg[obs]
         wt = np.ones(n) if weights is None else np.asarray(weights[i0 : i1 + 1])[obs]
-        x, b = _design(t, wt)
+        x, b = _design(t, wt, shift_tau_days)
         e = y - x @ (b.T @ y)
         # all pairs (i, j) with t_j - t_i = k, k = 0..max_lag, as flat index arrays
         lookup = np.full(len(seg) + k_n, -1)
@@ -158,9 +173,9 @@ def fit_noise_model(
         white += np.bincount(kk, weights=mdm, minlength=k_n)
         # AR(1) part for every phi: C = R(phi) B by forward and backward recursions on the
         # calendar grid (R_ij = phi^|t_i - t_j|), so no n x n matrix is formed.
-        grid_b = np.zeros((len(seg), 2))
+        grid_b = np.zeros((len(seg), x.shape[1]))
         grid_b[pos] = b
-        c_all = np.empty((phis.size, n, 2))
+        c_all = np.empty((phis.size, n, x.shape[1]))
         for f_i, phi in enumerate(phis):
             fwd = lfilter([1.0], [1.0, -phi], grid_b, axis=0)
             bwd = lfilter([1.0], [1.0, -phi], grid_b[::-1], axis=0)[::-1]

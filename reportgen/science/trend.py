@@ -31,7 +31,14 @@ import numpy as np
 from reportgen.io.model import DateArray, FloatArray
 from reportgen.results import Z80 as Z80
 from reportgen.results import TrendSeries
-from reportgen.science.kalman import InitialState, TwoStateModel, kalman_smoother
+from reportgen.science.kalman import (
+    InitialState,
+    TrendWaterModel,
+    TrendWaterOutput,
+    TwoStateModel,
+    kalman_smoother,
+    trend_water_smoother,
+)
 
 # Grid of signal-to-noise ratios searched by maximum likelihood (variances relative
 # to the observation variance r).  Level ratios span a nearly-flat trend (1/400) to a
@@ -61,6 +68,9 @@ class TrendFit:
     level_ratio: float
     slope_ratio: float
     n_obs: int
+    # the AR(1) water state of :func:`trend_with_water` (zeros and 0 without one)
+    water_kg: FloatArray | None = None
+    water_phi: float = 0.0
 
     def series(self, dates: DateArray) -> TrendSeries:
         """As the shared :class:`~reportgen.results.TrendSeries` with 80 % bands."""
@@ -212,6 +222,125 @@ def local_linear_trend(
         level_ratio=ql,
         slope_ratio=qs,
         n_obs=n_obs,
+    )
+
+
+# Level ratios searched when the water swings have their own state: the level is
+# then tissue (and glycogen) alone and moves less from day to day than the
+# white-noise trend's level, so the grid reaches lower (judgment; the slope ratios
+# are those of the white-noise model).
+WATER_LEVEL_RATIOS: tuple[float, ...] = (1 / 2000, 1 / 400, 1 / 90, 1 / 20)
+
+
+def trend_with_water(
+    weight_kg: FloatArray,
+    phi: float,
+    water_var_kg2: float,
+    white_var_kg2: float,
+    weights: FloatArray | None = None,
+    *,
+    level_ratio: float | None = None,
+    slope_ratio: float | None = None,
+) -> TrendFit:
+    """Trend weight with autocorrelated water swings as a state of their own.
+
+    Parameters
+    ----------
+    weight_kg : numpy.ndarray
+        Daily weights on a complete calendar grid, NaN on missing days. [kg]
+    phi : float
+        Day-to-day autocorrelation of the water swings, 0 <= phi < 1 (e.g. from
+        :func:`reportgen.science.rates.fit_noise_model`). [unitless]
+    water_var_kg2, white_var_kg2 : float
+        Marginal variance of the AR(1) water swings and of the independent part
+        (scale, gut content), in the proportions of that noise model; their sum
+        is re-estimated here by maximum likelihood. [kg^2]
+    weights : numpy.ndarray, optional
+        Robust precision weights of the weigh-ins (e.g. from
+        :func:`local_linear_trend`); divide the white variance of each day.
+    level_ratio, slope_ratio : float, optional
+        Fix the level / slope disturbance variances relative to the total noise
+        variance instead of choosing them by maximum likelihood. [unitless]
+
+    Returns
+    -------
+    TrendFit
+        Smoothed level (body mass without the water swing) and slope with their
+        variances, the smoothed water swing, and the noise SD sqrt(total). [kg]
+
+    Raises
+    ------
+    ValueError
+        With fewer than 2 weigh-ins or a phi outside [0, 1).
+
+    Notes
+    -----
+    Structural model (Harvey 1989, ch. 2; Durbin & Koopman 2012, ch. 3) of a
+    local linear trend plus an AR(1) component plus white noise:
+    y_t = mu_t + w_t + e_t, w_{t+1} = phi w_t + xi_t, Var e_t = s a / u_t,
+    Var xi = s (1 - a)(1 - phi^2), with a the white share of the noise model and
+    u_t the robust weight.  The level and slope variances s q_l, s q_s are chosen
+    from ``WATER_LEVEL_RATIOS`` x ``SLOPE_RATIOS`` by the likelihood with the
+    scale s concentrated out.  Averaging n days of AR(1) water removes less of it
+    than averaging n independent days, so the level's band is wider than the
+    white-noise model's where the water persists; the filter accounts for that
+    exactly rather than by a correction after the fit.  The same model is
+    statsmodels' ``UnobservedComponents(level="local linear trend",
+    autoregressive=1)`` with fixed parameters (the tests compare the two).
+    """
+    w = np.asarray(weight_kg, dtype=np.float64)
+    obs = np.isfinite(w)
+    n_obs = int(obs.sum())
+    if n_obs < 2:
+        raise ValueError(f"need at least 2 weigh-ins for a trend, got {n_obs}")
+    if not (math.isfinite(phi) and 0.0 <= phi < 1.0):
+        raise ValueError(f"phi must be in [0, 1), got {phi!r}")
+    tot = water_var_kg2 + white_var_kg2
+    if not (math.isfinite(tot) and tot > 0 and water_var_kg2 >= 0 and white_var_kg2 > 0):
+        raise ValueError("noise variances must be finite, the white one positive")
+    # a water share below 1e-6 is none, but keeps the state's variance positive
+    white_share = min(white_var_kg2 / tot, 1.0 - 1e-6)
+    water_q = (1.0 - white_share) * (1.0 - phi * phi)
+    u = np.ones(len(w)) if weights is None else np.nan_to_num(weights, nan=1.0)
+    y = [float(v) if math.isfinite(v) else math.nan for v in w]
+    h = [white_share / max(float(x), 1e-9) for x in u]
+
+    def run(ql: float, qs: float, smooth: bool) -> tuple[float, TrendWaterOutput]:
+        """Concentrated scale (mean v^2/F; the noise model's total without terms)."""
+        model = TrendWaterModel(ql, qs, phi, water_q, _DIFFUSE, _DIFFUSE_SLOPE)
+        out = trend_water_smoother(y, h, model, smooth=smooth, diffuse_observations=2)
+        s = max(out.sum_sq / out.terms, 1e-12) if out.terms else tot
+        return s, out
+
+    if level_ratio is not None and slope_ratio is not None:
+        ql, qs = float(level_ratio), float(slope_ratio)
+    elif n_obs <= 2:  # two weigh-ins only set the level and slope: no likelihood to compare
+        ql, qs = LEVEL_RATIOS[1], SLOPE_RATIOS[0]
+    else:
+        best: tuple[float, float, float] | None = None
+        for ql_ in WATER_LEVEL_RATIOS:
+            for qs_ in SLOPE_RATIOS:
+                s, out = run(ql_, qs_, smooth=False)
+                loglik = -0.5 * (out.sum_log_f + out.terms * math.log(s))
+                if best is None or loglik > best[0]:
+                    best = (loglik, ql_, qs_)
+        assert best is not None
+        ql, qs = best[1], best[2]
+    s, out = run(ql, qs, smooth=True)
+    sm = out.smoothed
+    assert sm is not None
+    return TrendFit(
+        level_kg=np.asarray(sm.level),
+        level_var_kg2=np.maximum(np.asarray(sm.level_var), 0.0) * s,
+        slope_kg_per_day=np.asarray(sm.slope),
+        slope_var=np.maximum(np.asarray(sm.slope_var), 0.0) * s,
+        weights=np.where(obs, u, np.nan),
+        noise_sd_kg=math.sqrt(s),
+        level_ratio=ql,
+        slope_ratio=qs,
+        n_obs=n_obs,
+        water_kg=np.asarray(sm.water),
+        water_phi=float(phi),
     )
 
 

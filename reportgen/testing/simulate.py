@@ -40,7 +40,7 @@ from reportgen.io.model import (
     SkinfoldSession,
 )
 from reportgen.month import ReportMonth
-from reportgen.science.balance import GLYCOGEN_WATER_KCAL_PER_KG
+from reportgen.science.energy_density import GLYCOGEN_WATER_KCAL_PER_KG
 from reportgen.science.hall import HALL_2011, HallBaseline, hall_baseline, simulate_hall
 from reportgen.science.skinfolds import JP3_MEN, JPW3_WOMEN
 
