@@ -25,7 +25,12 @@ Targets (issue "Metabolic adaptation a practitioner can defend"): adaptation MAE
 scenario (TDEE on honest logs); median half-width <= 150 kcal/day; deficit
 <= 1.3 x LS bound; trend band 0.75-0.85; recovery >= 0.5.
 
-Run:  python bench/bench_adaptation.py [--clients 40] [--seed 3] [--only NAME]
+``--diag`` also prints, per scenario, the median stated SE of the data (observed minus
+expected), of the baseline and of the phase's observed TDEE, and the literature's SD,
+each beside the RMS of its actual error, with the median data weight and the mean
+logging-drift probability: where the interval's width comes from.
+
+Run:  python bench/bench_adaptation.py [--clients 40] [--seed 3] [--only NAME] [--diag]
 """
 
 from __future__ import annotations
@@ -44,7 +49,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from scenarios import SCENARIOS, Scenario, World, ls_slope_sd_kg_per_day, simulate
 
-from reportgen.analysis import analyse_client
+from reportgen.analysis import run_stages
+from reportgen.analysis.stages import ClientStages
 from reportgen.config import AnalysisSettings
 from reportgen.results import ClientAnalysis, Estimate, PhaseResult
 from reportgen.science.adaptation import literature_adaptation_kcal
@@ -72,6 +78,17 @@ class Tally:
     recover_truth: list[float] = field(default_factory=list)
     act_err: list[float] = field(default_factory=list)
     seconds: float = 0.0
+    # --diag: where the adaptation interval's width comes from
+    dg_data_se: list[float] = field(default_factory=list)
+    dg_data_err: list[float] = field(default_factory=list)
+    dg_base_se: list[float] = field(default_factory=list)
+    dg_base_err: list[float] = field(default_factory=list)
+    dg_cut_se: list[float] = field(default_factory=list)
+    dg_cut_err: list[float] = field(default_factory=list)
+    dg_lit_sd: list[float] = field(default_factory=list)
+    dg_lit_err: list[float] = field(default_factory=list)
+    dg_weight: list[float] = field(default_factory=list)
+    dg_drift: list[float] = field(default_factory=list)
 
 
 def _covers(e: Estimate, truth: float) -> bool:
@@ -146,6 +163,48 @@ def score(world: World, a: ClientAnalysis, t: Tally, min_days: int) -> None:
             t.act_err.append(abs(act.value - tr.activity_kcal))
 
 
+def diagnose(world: World, st: ClientStages, t: Tally, min_days: int) -> None:
+    """Per deficit phase: the data's SE against its actual error, and the literature's."""
+    base = st.baseline
+    base_tr = world.phases[0]
+    if base is None or base_tr.kind != "maintenance":
+        return
+    for pa, ex, tr in zip(st.adaptations, st.expectations, world.phases, strict=True):
+        if pa is None or ex is None or tr.kind != "deficit":
+            continue
+        if tr.end_index - tr.start_index + 1 < min_days:
+            continue
+        ev = pa.evidence
+        assert ev.data.value is not None and ev.literature.value is not None
+        assert ex.observed_tdee.value is not None
+        t.dg_data_se.append(ev.data.normal_sd)
+        t.dg_data_err.append(ev.data.value - tr.adaptation_kcal)
+        t.dg_base_se.append(base.tdee_se_kcal)
+        t.dg_base_err.append(base.tdee_kcal - base_tr.tdee_kcal)
+        t.dg_cut_se.append(ex.observed_tdee.normal_sd)
+        t.dg_cut_err.append(ex.observed_tdee.value - tr.tdee_kcal)
+        t.dg_lit_sd.append(ev.literature.normal_sd)
+        t.dg_lit_err.append(ev.literature.value - tr.adaptation_kcal)
+        t.dg_weight.append(ev.data_weight)
+        t.dg_drift.append(ev.logging_drift_probability)
+
+
+def _med(x: list[float]) -> float:
+    return float(np.median(x)) if x else math.nan
+
+
+def diag_line(name: str, t: Tally) -> str:
+    """Median stated SE against the RMS of the actual error, per piece."""
+    ce = np.corrcoef(t.dg_base_err, t.dg_cut_err)[0, 1] if len(t.dg_base_err) > 2 else math.nan
+    return (
+        f"{name:34s} | data se {_med(t.dg_data_se):4.0f} err {_rms(t.dg_data_err):4.0f} | "
+        f"base se {_med(t.dg_base_se):4.0f} err {_rms(t.dg_base_err):4.0f} | "
+        f"cut se {_med(t.dg_cut_se):4.0f} err {_rms(t.dg_cut_err):4.0f} r {ce:5.2f} | "
+        f"lit sd {_med(t.dg_lit_sd):4.0f} err {_rms(t.dg_lit_err):4.0f} | "
+        f"w {_med(t.dg_weight):4.2f} drift {_m(t.dg_drift):4.2f}"
+    )
+
+
 def _m(x: list[float]) -> float:
     return float(np.mean(x)) if x else math.nan
 
@@ -161,9 +220,11 @@ def run_scenario(sc: Scenario, n: int, seed: int, min_days: int) -> Tally:
     for i in range(n):
         world = simulate(rng, sc, f"x{i:03d}")
         t0 = time.perf_counter()
-        a = analyse_client(world.record, world.month, settings)
+        st = run_stages(world.record, world.month, settings)
+        a = st.analysis()
         t.seconds += time.perf_counter() - t0
         score(world, a, t, min_days)
+        diagnose(world, st, t, min_days)
     return t
 
 
@@ -173,9 +234,15 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--seed", type=int, default=3)
     ap.add_argument("--min-weeks", type=int, default=4)
     ap.add_argument("--only", default="", help="run only scenarios whose name contains this")
+    ap.add_argument(
+        "--diag",
+        action="store_true",
+        help="also print, per scenario, each piece's median stated SE against its RMS error",
+    )
     args = ap.parse_args(argv)
+    diags: list[str] = []
     head = (
-        f"{'scenario':32s} {'n':>3s} | {'adaptation MAE: tool':>20s} {'zero':>5s} {'lit':>5s} "
+        f"{'scenario':34s} {'n':>3s} | {'adaptation MAE: tool':>20s} {'zero':>5s} {'lit':>5s} "
         f"{'sheet':>5s} {'t/0':>5s} | {'cover: ad':>9s} {'def':>5s} {'tdee':>5s} "
         f"{'lit':>5s} | {'half8':>5s} | {'def/LS':>6s} {'sheet':>5s} | {'trend':>5s} | "
         f"{'recov':>5s} {'act':>5s}"
@@ -191,6 +258,7 @@ def main(argv: list[str] | None = None) -> int:
             continue
         t = run_scenario(sc, args.clients, args.seed, 7 * args.min_weeks)
         total += t.seconds
+        diags.append(diag_line(sc.name, t))
         ratio = _m(t.ad_tool) / _m(t.ad_zero) if t.ad_zero else math.nan
         rec = (
             _m(t.recover_tool) / _m(t.recover_truth)
@@ -199,7 +267,7 @@ def main(argv: list[str] | None = None) -> int:
         )
         half8 = float(np.median(t.ad_half8)) if t.ad_half8 else math.nan
         print(
-            f"{sc.name:32s} {len(t.ad_tool):3d} | {_m(t.ad_tool):20.0f} {_m(t.ad_zero):5.0f} "
+            f"{sc.name:34s} {len(t.ad_tool):3d} | {_m(t.ad_tool):20.0f} {_m(t.ad_zero):5.0f} "
             f"{_m(t.ad_lit):5.0f} {_m(t.ad_sheet):5.0f} {ratio:5.2f} | "
             f"{_m(t.ad_cover):9.2f} {_m(t.def_cover):5.2f} {_m(t.tdee_cover):5.2f} "
             f"{_m(t.ad_lit_cover):5.2f} | {half8:5.0f} | "
@@ -211,6 +279,9 @@ def main(argv: list[str] | None = None) -> int:
         "def/LS <= 1.3; trend 0.75-0.85; recov >= 0.5"
     )
     print(f"analyse_client time: {total:.1f} s")
+    if args.diag:
+        print("\ndiagnostics: median stated SE/SD against the RMS of the actual error [kcal/day]")
+        print("\n".join(diags))
     return 0
 
 

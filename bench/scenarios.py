@@ -16,8 +16,8 @@ World (all invented, per client):
   cost per kg times weight plus 0.00042 kcal/kg per logged step; thermic effect
   8 % of intake;
 * metabolic adaptation builds towards k (intake change) with a per-person time
-  constant of 7-28 days, k around 0.11 (log-normal, CV 0.45); the "strong"
-  scenario doubles it;
+  constant of 7-28 days, k around 0.11 (log-normal, log-SD 0.45); the "x2"
+  scenario doubles it, others widen its spread (log-SD 0.8) or lower it to 0.06;
 * some clients walk less in the deficit (steps fall 0-30 %);
 * glycogen-with-water steps by g x (intake change) with g around 1.1 g per
   kcal/day and a 2-5 day time constant (the "glycogen" scenario: twice as
@@ -68,6 +68,8 @@ class Scenario:
     sparse: bool = False
     missing_intake: tuple[float, float] = (0.03, 0.12)
     adaptation_factor: float = 1.0
+    adaptation_typical: float = 0.11  # the world's typical k
+    adaptation_cv: float = 0.45  # between-person spread of k (log-normal)
     baseline_days: tuple[int, int] = (14, 28)
     step_drop: tuple[float, float] = (0.0, 0.0)
     log_steps: bool = True
@@ -88,6 +90,8 @@ SCENARIOS: tuple[Scenario, ...] = (
     Scenario("adaptation x2, 6-week baseline", adaptation_factor=2.0, baseline_days=(42, 42)),
     Scenario("fewer steps in the cut", step_drop=(0.15, 0.35)),
     Scenario("fewer steps, steps not logged", step_drop=(0.15, 0.35), log_steps=False),
+    Scenario("adaptation spread wide (k CV 0.8)", adaptation_cv=0.8),
+    Scenario("small adaptation (k 0.06)", adaptation_typical=0.06),
 )
 
 
@@ -133,8 +137,9 @@ def simulate(rng: np.random.Generator, sc: Scenario, cid: str) -> World:
     lean_share = min(lean_share * sc.partition_factor, 0.9)
     act_per_kg = float(rng.uniform(6.0, 11.0))
     steps0 = float(rng.uniform(5000, 11000))
-    k_typ = 0.11
-    k = k_typ * float(rng.lognormal(-0.5 * 0.45**2, 0.45)) * sc.adaptation_factor
+    k_typ = sc.adaptation_typical
+    cv = sc.adaptation_cv
+    k = k_typ * float(rng.lognormal(-0.5 * cv**2, cv)) * sc.adaptation_factor
     tau_at = float(rng.uniform(7, 28))
     g_per_kcal = 0.0011 * float(rng.lognormal(0, 0.2)) * sc.glycogen_factor
     tau_g = float(rng.uniform(*sc.glycogen_tau))

@@ -29,7 +29,7 @@ from reportgen.summary import DECIMALS, SUMMARY_COLUMNS
 
 __all__ = ["reference_run"]  # the shared session fixture
 
-SAMPLE_IDS = [f"c{n:03d}" for n in range(1, 17)]
+SAMPLE_IDS = [f"c{n:03d}" for n in range(1, 18)]
 GOOD_IDS = [c for c in SAMPLE_IDS if c != FAILING_CLIENT]
 
 

@@ -83,7 +83,7 @@ def test_sample_book_reports_exactly_the_deliberate_problems(sample_book: Path) 
     )
     assert found == expected_sample_problems()
     assert data["month"] == "2026-11"
-    assert data["clients_checked"] == 16
+    assert data["clients_checked"] == 17
     n_err = sum(1 for p in found if p[0] == "error")
     assert code == (1 if n_err else 0)
 
@@ -98,7 +98,7 @@ def test_sample_book_table_output(sample_book: Path) -> None:
     n_warn = sum(1 for p in expected if p[0] == "warning")
     n_note = sum(1 for p in expected if p[0] == "note")
     assert out.rstrip().splitlines()[-1] == (
-        f"16 clients checked for 2026-11: {1 if n_err else 0} with errors, "
+        f"17 clients checked for 2026-11: {1 if n_err else 0} with errors, "
         f"{n_err} error{'s' * (n_err != 1)}, {n_warn} warning{'s' * (n_warn != 1)}, "
         f"{n_note} note{'s' * (n_note != 1)}"
     )

@@ -55,7 +55,7 @@ def test_practitioner_summary_shows_data_typical_and_combined() -> None:
 
 
 def test_zero_inside_the_interval_is_said_in_words() -> None:
-    a = sample_analysis("c001")  # the sample client's combined interval includes zero
+    a = sample_analysis("c004")  # this sample client's combined interval includes zero
     ph = a.current_phase
     assert ph is not None and ph.adaptation_kcal.low is not None
     assert ph.adaptation_kcal.low <= 0 <= ph.adaptation_kcal.high  # type: ignore[operator]
@@ -63,3 +63,32 @@ def test_zero_inside_the_interval_is_said_in_words() -> None:
     assert "not distinguishable from no adaptation" in text
     text = " ".join(pdf_pages_text(render_client_report(a, Config()))).replace("\n", " ")
     assert "not distinguishable from no adaptation" in text
+
+
+def test_figure_leaning_on_the_typical_value_says_so() -> None:
+    a = _below(sample_analysis("c001"))
+    text = " ".join(pdf_pages_text(render_client_report(a, Config()))).replace("\n", " ")
+    assert "data alone cannot yet show it" not in text  # the data alone exclude zero here
+    ph = a.current_phase
+    assert ph is not None
+    weak = dataclasses.replace(ph, adaptation_data_kcal=Estimate(-120.0, -300.0, 60.0))
+    b = dataclasses.replace(
+        a, phases=tuple(weak if p is ph else p for p in a.phases), current_phase=weak
+    )
+    text = " ".join(pdf_pages_text(render_client_report(b, Config()))).replace("\n", " ")
+    assert "Expenditure below expected" in text
+    assert "your own data alone cannot yet show it" in text
+
+
+def test_sample_client_with_expenditure_below_expected() -> None:
+    # c017 (invented): a long cut whose expenditure falls beyond her smaller body; her own
+    # data alone already exclude zero, and the combined interval does too
+    a = sample_analysis("c017")
+    ph = a.current_phase
+    assert ph is not None and ph.adaptation_kcal.high is not None
+    assert ph.adaptation_kcal.high < 0
+    assert ph.adaptation_data_kcal.high is not None and ph.adaptation_data_kcal.high < 0
+    assert ph.activity_change_kcal.known  # steps logged
+    text = " ".join(pdf_pages_text(render_client_report(a, Config()))).replace("\n", " ")
+    assert "Expenditure below expected" in text
+    assert "data alone cannot yet show it" not in text

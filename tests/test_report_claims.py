@@ -37,7 +37,7 @@ from reportgen.science.flags import FlagInputs, rapid_loss, safety_flags
 
 CLIENTS = (
     "c001", "c002", "c003", "c004", "c005", "c006", "c008", "c009", "c010",
-    "c011", "c012", "c013", "c014", "c015", "c016",
+    "c011", "c012", "c013", "c014", "c015", "c016", "c017",
 )  # fmt: skip
 STALL_CLIENTS = ("c013", "c014", "c015", "c016")  # the sample book's stalls, one cause each
 MINUS = "\u2212"

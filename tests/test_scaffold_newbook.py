@@ -236,9 +236,9 @@ def test_add_client_refusals(tmp_path: Path) -> None:
 
 def test_add_client_to_a_csv_roster_book(sample_book: Path) -> None:
     before = tree_hashes(sample_book)
-    path = add_client(sample_book, "c017")
+    path = add_client(sample_book, "c018")
     after = tree_hashes(sample_book)
-    assert set(after) - set(before) == {"logs/c017.xlsx"}
+    assert set(after) - set(before) == {"logs/c018.xlsx"}
     assert all(after[k] == before[k] for k in before)
     assert path.is_file()
 

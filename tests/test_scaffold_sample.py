@@ -68,7 +68,7 @@ def records() -> dict[str, object]:
 def test_sample_roster_covers_the_contract(records: dict[str, object]) -> None:
     roster = records["roster"]
     clients = roster.clients  # type: ignore[attr-defined]
-    assert len(clients) == 16
+    assert len(clients) == 17
     assert {c.sex for c in clients} == {"female", "male"}
     ages = [c.age_years(MONTH_END) for c in clients]
     assert min(ages) == 19 and max(ages) == 64

@@ -12,6 +12,7 @@ import numpy as np
 import pytest
 from hypothesis import given
 from hypothesis import strategies as st
+from scipy import stats
 
 from reportgen.results import Estimate
 from reportgen.science.activity import (
@@ -28,6 +29,7 @@ from reportgen.science.adaptation import (
     decompose_expenditure_change,
     literature_adaptation_kcal,
     logging_drift_sd_kcal,
+    prior_scale_nodes,
 )
 from reportgen.science.energy_density import (
     energy_density_with_spread,
@@ -53,27 +55,68 @@ def test_at_share_matches_closed_form() -> None:
 def test_literature_expectation_for_a_moderate_cut() -> None:
     # science notes §0: Hall's model gives AT ~ betaAT x cut, about 70-100 kcal/day for a
     # 500-700 kcal/day cut once built up (synthesis; betaAT 0.14 from memory).
-    mean, sd = literature_adaptation_kcal(-600.0, 56, 28)
+    mean, _ = literature_adaptation_kcal(-600.0, 56, 28)
     assert -84.0 <= mean <= -70.0
     # a 3-week -50 % cut (~1500 kcal/day): Müller et al. 2015 measured 72-108 kcal/day
     # (published, abstract); the expectation's 80 % range must include that.
     m2, s2 = literature_adaptation_kcal(-1500.0, 0, 21)
     assert m2 - Z80 * s2 < -108 and m2 + Z80 * s2 > -72
-    # spread: hypot(0.6, 0.5) x |mean| (Leibel 1995 CV, Müller 2015) with 90 kcal/day of
-    # absolute spread scaled from Leibel 1995's SDs (judgment)
-    assert sd == pytest.approx(math.hypot(math.hypot(0.6, 0.5) * mean, 90.0), rel=1e-12)
-    assert literature_adaptation_kcal(0.0, 0, 28) == (0.0, 90.0)
+    # spread relative to the mean for a large cut: Leibel et al. 1995 (published, abstract)
+    # give SD/mean 0.50 (never obese) and 0.63 (obese) for the fall in TEE, each a difference
+    # of two TEE measurements.  The true between-person part lies below 0.63 and, with half
+    # the variance taken as measurement error (judgment), near 0.50 / sqrt 2 = 0.35; the prior
+    # adds the coefficient's own uncertainty (a factor of two at most, judgment), so it must
+    # lie between 0.35 and hypot(0.63, 0.5) = 0.80.
+    m3, s3 = literature_adaptation_kcal(-1500.0, 56, 56)
+    assert 0.35 < s3 / abs(m3) < math.hypot(0.63, 0.5)
+    # no cut: no adaptation expected, and a spread of a few tens of kcal/day, about 1 % of
+    # TDEE (judgment), not the 90-110 kcal/day the uncorrected Leibel SDs would give
+    m0, s0 = literature_adaptation_kcal(0.0, 0, 28)
+    assert m0 == 0.0 and 15.0 <= s0 <= 50.0
 
 
 def test_combination_is_the_normal_normal_posterior() -> None:
     # Gelman et al. 2013 §2.5: data -150 (SE 60), prior -70 (SD 80):
     # w = 80²/(80²+60²) = 0.64, mean = 0.64 x -150 + 0.36 x -70 = -121.2, SD = 48.
-    e = combine_adaptation(-150.0, 60.0, -70.0, 80.0)
+    e = combine_adaptation(-150.0, 60.0, -70.0, 80.0, prior_dof=None)
     assert e.data_weight == pytest.approx(0.64, rel=1e-12)
     assert e.combined.value == pytest.approx(-121.2, rel=1e-12)
     assert e.combined.high - e.combined.value == pytest.approx(Z80 * 48.0, rel=1e-12)  # type: ignore[operator]
     assert e.data.value == -150.0 and e.literature.value == -70.0
     assert e.distinguishable_from_zero and not e.implausible
+
+
+def test_t_prior_alone_has_student_t_quantiles() -> None:
+    # Data with no information: the combined 80 % interval is the prior's, m +/- t_0.9(4) s
+    # with t_0.9(4) = 1.5332 (scipy.stats.t, the reference implementation; Student's t
+    # table value 1.533, from memory).
+    e = combine_adaptation(0.0, 1e6, -70.0, 50.0)
+    t90 = float(stats.t.ppf(0.9, 4))
+    assert t90 == pytest.approx(1.533, abs=5e-4)
+    assert e.combined.value == pytest.approx(-70.0, abs=0.01)
+    assert e.combined.high - (-70.0) == pytest.approx(t90 * 50.0, rel=1e-3)  # type: ignore[operator]
+    assert -70.0 - e.combined.low == pytest.approx(t90 * 50.0, rel=1e-3)  # type: ignore[operator]
+    assert e.literature.high == pytest.approx(-70.0 + t90 * 50.0, rel=1e-12)
+    # the scale-mixture nodes integrate the gamma mixing density: weights sum to 1 and the
+    # mean precision multiplier is 1 (Gamma(2, rate 2) has mean 1)
+    lam, w = prior_scale_nodes(4.0)
+    assert sum(w) == pytest.approx(1.0, rel=1e-12)
+    assert sum(a * b for a, b in zip(lam, w, strict=True)) == pytest.approx(1.0, rel=1e-9)
+
+
+def test_heavy_tailed_prior_yields_to_clear_data() -> None:
+    # Precise data far from the literature (6 prior SDs) move a t prior's estimate much
+    # further than a normal prior's (Gelman et al. 2013 §17.2: t priors let outlying
+    # individuals stand out); where data and literature agree the two priors give nearly the
+    # same answer.
+    far_t = combine_adaptation(-380.0, 40.0, -80.0, 50.0)
+    far_n = combine_adaptation(-380.0, 40.0, -80.0, 50.0, prior_dof=None)
+    assert far_t.combined.value < far_n.combined.value - 50.0  # type: ignore[operator]
+    # normal-normal reference: w = 50^2 / (50^2 + 40^2) = 0.61, -80 + 0.61 x -300 = -262.9
+    assert far_n.combined.value == pytest.approx(-80.0 - 300.0 * 2500.0 / 4100.0, rel=1e-12)
+    near_t = combine_adaptation(-100.0, 40.0, -80.0, 50.0)
+    near_n = combine_adaptation(-100.0, 40.0, -80.0, 50.0, prior_dof=None)
+    assert near_t.combined.value == pytest.approx(near_n.combined.value, abs=3.0)
 
 
 def test_interval_including_zero_is_said_in_words() -> None:
@@ -94,7 +137,8 @@ def test_logging_drift_widens_only_on_conflict() -> None:
     # logging_drift_sd_kcal): the data say -520 where the truth is about -70
     conflict = combine_adaptation(-520.0, 60.0, -70.0, 70.0, drift)
     assert conflict.implausible
-    assert conflict.logging_drift_probability > 0.9
+    # (a t prior leaves some room for a truly outlying client, so not certainty)
+    assert conflict.logging_drift_probability > 0.8
     assert conflict.combined.low <= -70.0 <= conflict.combined.high  # type: ignore[operator]
 
 

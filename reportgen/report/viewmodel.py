@@ -136,6 +136,17 @@ def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
     if not p.adaptation_typical_kcal.known or p.adaptation_typical_kcal.value is None:
         return {}
     out = {"adapt_typical": u.e(abs(p.adaptation_typical_kcal.value))}
+    data = p.adaptation_data_kcal
+    # the client's own data alone cannot tell the figure from no change: say that the
+    # combined estimate leans on the typical value
+    out["adapt_data_weak"] = (
+        "yes"
+        if data.known
+        and data.low is not None
+        and data.high is not None
+        and data.low <= 0 <= data.high
+        else ""
+    )
     act = p.activity_change_kcal
     if act.known and act.value is not None:
         out["adapt_activity"] = (
@@ -381,6 +392,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "adapt_typical": "",
         "adapt_activity": "",
         "adapt_logging": "",
+        "adapt_data_weak": "",
         "adapt_large": False,
         "signals": [_signal_view(u, s) for s in a.signals],
         "notable_signals": [_signal_view(u, s) for s in a.signals if s.size in SIGNAL_NOTABLE],

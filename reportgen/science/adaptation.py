@@ -42,27 +42,46 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
+from scipy import special, stats
+
 from reportgen.results import Estimate
 from reportgen.science._checks import finite
 from reportgen.science.hall import HALL_2011, HallParams
 from reportgen.science.implied_intake import implied_intake as _implied
 from reportgen.science.implied_intake import implied_intake_change_kcal
+from reportgen.science.trend import Z80
 
-# Between-person spread of adaptation relative to its mean: Leibel et al. 1995 report the
-# fall in TEE after >= 10 % loss as 6 +/- 3 (never obese) and 8 +/- 5 (obese) kcal/kg FFM/day
-# (published, abstract), i.e. SD/mean 0.50 and 0.63.  We take 0.6.
-BETWEEN_PERSON_CV = 0.6
-# Uncertainty of the mean coefficient itself: Müller et al. 2015 measured 72-108 kcal/day
-# after 3 weeks at -50 % intake (published, abstract), about half of what betaAT 0.14 of the
-# Hall model (from memory) gives for that cut.  A factor of two either way as 80 % range is
-# ln 2 / 1.28 = 0.54 on the log scale; as a relative SD we take 0.5 (judgment).
+# The literature prior for a client's adaptation (see literature_adaptation_kcal):
+#
+# Between-person spread relative to the mean.  Leibel et al. 1995 report the fall in TEE after
+# >= 10 % loss as 6 +/- 3 (never obese) and 8 +/- 5 (obese) kcal/kg FFM/day (published,
+# abstract): SD/mean 0.50 and 0.63.  Each of those SDs is the spread of a *difference of two
+# TEE measurements* per person, so it holds twice the measurement error besides the true
+# between-person spread.  Taking half of the published variance as measurement error
+# (judgment: a TEE measurement in that kind of study repeats within about 5-8 % of TEE, from
+# memory) leaves SD/mean 0.35 and 0.45; we take 0.4.
+BETWEEN_PERSON_CV = 0.4
+# Uncertainty of the mean coefficient itself (the same for every client).  The Hall et al.
+# 2011 model's betaAT 0.14 (from memory) predicts about 160 kcal/day after 3 weeks at -50 %
+# intake; Müller et al. 2015 measured 72-108 kcal/day of *resting* adaptation there
+# (published, abstract), and Leibel et al. 1995 found non-resting expenditure falling about as
+# much as resting, so the TEE figure may lie near the model's or at half of it.  A factor of
+# two either way as the 80 % range is ln 2 / 1.28 = 0.54 on the log scale; as a relative SD
+# we take 0.5 (judgment).
 COEFFICIENT_CV = 0.5
-# Absolute between-person spread: Leibel et al. 1995 give SDs of 3-5 kcal/kg FFM/day for
-# the fall in TEE after >= 10 % loss, i.e. 165-275 kcal/day at 55 kg FFM (published SDs,
-# kcal computed here); an 8-16 week moderate diet loses about a third to half of that
-# weight, so we take 90 kcal/day (judgment: linear scaling with the loss).  Non-resting
-# expenditure fell as much as resting in that study, so this includes activity.
-LITERATURE_SD_FLOOR_KCAL = 90.0
+# Absolute spread added to the proportional one: expenditure departs from the model's body-size
+# terms by a few tens of kcal/day even without a cut (individual tissue costs and the
+# activity coefficient differ from the model's averages; judgment: about 1 % of TDEE).
+LITERATURE_SD_FLOOR_KCAL = 30.0
+# Degrees of freedom of the Student-t prior: a minority of clients adapt far more or less
+# than the typical value (Fothergill et al. 2016 report -499 +/- 207 kcal/day of residual
+# resting expenditure six years after a very large loss), so the prior has heavier tails than
+# a normal; where data and literature clearly disagree the data pull the estimate further
+# than a normal prior of the same scale would let them (judgment; 4 is a common robust choice,
+# Gelman et al. 2013, section 17.2).
+PRIOR_DOF = 4.0
+PRIOR_NODES = 16  # Gauss-Laguerre nodes for the t prior's scale mixture
 # Logging drift: self-reported intake is commonly 20-50 % below measured expenditure and the
 # gap can change during a diet (Lichtman et al. 1992; Schoeller 1995, Metabolism 44 Suppl 2:
 # 18-22).  Prior probability that a client's logging changed when the diet started, and the
@@ -126,19 +145,24 @@ def literature_adaptation_kcal(
     -------
     (mean, sd) : tuple of float
         Expected mean adaptation over the window (same sign as the intake change)
-        and its between-person SD. [kcal/day]
+        and the spread of a client's adaptation about it (the scale of the
+        Student-t prior :func:`combine_adaptation` uses; a normal SD where one is
+        used). [kcal/day]
 
     Notes
     -----
     Hall et al. 2011's AT term after a step dEI: AT(t) = betaAT dEI (1 - exp(-t/tauAT)).
-    The spread combines the between-person SD of Leibel et al. 1995 (SD/mean
-    0.5-0.63) with the uncertainty of betaAT itself (Müller et al. 2015 measured
-    about half of it), combined with an absolute spread of 90 kcal/day scaled
-    from Leibel et al. 1995's SDs (judgment).  Valid for intake changes of up to
-    about 50 % of maintenance
-    over weeks to months; it says nothing about the years-long adaptation after
-    extreme losses (Fothergill et al. 2016 report -499 +/- 207 kcal/day of
-    residual *resting* expenditure six years on).
+    The spread is sd = hypot(0.64 |mean|, 30): the true between-person spread
+    (SD/mean 0.4: Leibel et al. 1995's 0.50-0.63 with the measurement error of
+    their two TEE measurements taken out, judgment), the uncertainty of betaAT
+    itself (relative SD 0.5: Müller et al. 2015's resting figure and Leibel et
+    al.'s non-resting share bracket the model within a factor of two, judgment)
+    and 30 kcal/day of departure from the model's body-size terms (judgment).
+    Check (computed here): a 600 kcal/day cut over weeks 8-12 gives a mean of
+    about -83 and an SD of about 61.  Valid for intake changes of up to about 50 %
+    of maintenance over weeks to months; it says nothing about the years-long
+    adaptation after extreme losses (Fothergill et al. 2016 report -499 +/- 207
+    kcal/day of residual *resting* expenditure six years on).
     """
     d = _require("intake_change_kcal", intake_change_kcal)
     _require("first_day", first_day)
@@ -191,6 +215,29 @@ class AdaptationEvidence:
         return f"about {abs(round(v, -1)):.0f} kcal/day {side} what body size explains"
 
 
+def prior_scale_nodes(dof: float | None, n: int = PRIOR_NODES) -> tuple[list[float], list[float]]:
+    """Precision multipliers and weights that make a normal prior a Student-t one.
+
+    A Student-t prior with ``dof`` degrees of freedom and scale s is a normal
+    N(m, s^2 / lambda) with lambda ~ Gamma(dof/2, rate dof/2) (a scale mixture of
+    normals; Gelman et al. 2013, section 17.2).  The integral over lambda is done
+    by generalised Gauss-Laguerre quadrature with ``n`` nodes.
+
+    Returns
+    -------
+    (multipliers, weights) : lists of float
+        lambda_i and weights summing to 1; ([1.0], [1.0]) for ``dof`` None (normal).
+    """
+    if dof is None:
+        return [1.0], [1.0]
+    if not finite(dof) or dof <= 0:
+        raise ValueError(f"prior_dof must be > 0 or None, got {dof!r}")
+    a = dof / 2.0
+    x, w = special.roots_genlaguerre(n, a - 1.0)
+    total = float(np.sum(w))
+    return [float(v) / a for v in x], [float(v) / total for v in w]
+
+
 def combine_adaptation(
     data_kcal: float,
     data_se_kcal: float,
@@ -198,6 +245,7 @@ def combine_adaptation(
     literature_sd_kcal: float,
     logging_drift_sd_kcal: float = 0.0,
     drift_prior: float = LOGGING_DRIFT_PRIOR,
+    prior_dof: float | None = PRIOR_DOF,
 ) -> AdaptationEvidence:
     """Combine the client's data with the literature expectation.
 
@@ -207,12 +255,14 @@ def combine_adaptation(
         Observed minus expected TDEE and its standard error, which must include
         the noise of the client's own baseline. [kcal/day]
     literature_kcal, literature_sd_kcal : float
-        From :func:`literature_adaptation_kcal`. [kcal/day]
+        From :func:`literature_adaptation_kcal`: the prior's centre and scale. [kcal/day]
     logging_drift_sd_kcal : float, default 0
         SD of a possible change in logging since the baseline
         (see :func:`logging_drift_sd_kcal`); 0 switches the drift component off.
     drift_prior : float, default 0.2
         Prior probability that logging drifted (judgment).
+    prior_dof : float or None, default 4
+        Degrees of freedom of the Student-t prior; None for a normal prior.
 
     Returns
     -------
@@ -220,15 +270,19 @@ def combine_adaptation(
 
     Notes
     -----
-    Honest-log component: the normal-normal posterior (Gelman et al. 2013, §2.5),
-    mean = (d/se^2 + m/sd^2) / (1/se^2 + 1/sd^2).  Drift component: the same with
-    the data's variance raised by the drift variance, because an under-reporting
-    change shifts observed TDEE one for one.  The two are weighed by their
-    marginal likelihoods; the point estimate is the mixture median and the
-    interval its 10th-90th percentiles.  Where data and literature agree the
-    drift component has little weight and the interval is the narrow
-    precision-weighted one; where they conflict strongly the interval widens
-    towards the literature instead of repeating the data's number.
+    The prior is a Student-t around the literature value, written as a scale
+    mixture of normals (:func:`prior_scale_nodes`).  For each of its normal
+    components the posterior is the normal-normal one (Gelman et al. 2013, §2.5),
+    mean = (d/se^2 + m/sd^2) / (1/se^2 + 1/sd^2).  The drift alternative is the
+    same with the data's variance raised by the drift variance, because an
+    under-reporting change shifts observed TDEE one for one.  All components are
+    weighed by their marginal likelihoods of the data, so the probability of
+    drift rises with the gap between data and literature (which is the gap
+    between logged intake and the intake the weights imply); the point estimate
+    is the mixture median and the interval its 10th-90th percentiles.  Where data
+    and literature agree the interval is the narrow precision-weighted one; where
+    they disagree the t prior's tails let the data pull the estimate away from the
+    literature, unless a logging change explains the gap better.
     """
     d = _require("data_kcal", data_kcal)
     se = _require("data_se_kcal", data_se_kcal, positive=True)
@@ -240,27 +294,35 @@ def combine_adaptation(
     if not 0.0 <= drift_prior < 1.0:
         raise ValueError("drift_prior must be in [0, 1)")
 
-    def post(v_data: float) -> tuple[float, float, float, float]:
-        w = sd * sd / (sd * sd + v_data)
-        mean = w * d + (1 - w) * m
-        psd = math.sqrt(1.0 / (1.0 / (sd * sd) + 1.0 / v_data))
-        tot = v_data + sd * sd
-        loglik = -0.5 * math.log(2 * math.pi * tot) - 0.5 * (d - m) ** 2 / tot
-        return mean, psd, w, loglik
-
-    m0, s0, w0, l0 = post(se * se)
-    weights, means, sds = [1.0], [m0], [s0]
-    p_drift = 0.0
+    alternatives = [(se * se, 1.0)]
     if drift > 0 and drift_prior > 0:
-        m1, s1, _, l1 = post(se * se + drift * drift)
-        a0 = math.log(1 - drift_prior) + l0
-        a1 = math.log(drift_prior) + l1
-        top = max(a0, a1)
-        e0, e1 = math.exp(a0 - top), math.exp(a1 - top)
-        p_drift = e1 / (e0 + e1)
-        weights, means, sds = [1 - p_drift, p_drift], [m0, m1], [s0, s1]
-    if p_drift < 1e-9:
-        combined = Estimate.normal(m0, s0)
+        alternatives = [(se * se, 1.0 - drift_prior), (se * se + drift * drift, drift_prior)]
+    log_w: list[float] = []
+    means: list[float] = []
+    sds: list[float] = []
+    data_w: list[float] = []
+    is_drift: list[bool] = []
+    for lam, pi in zip(*prior_scale_nodes(prior_dof), strict=True):
+        v_prior = sd * sd / lam
+        for k, (v_data, p_alt) in enumerate(alternatives):
+            tot = v_data + v_prior
+            w = v_prior / tot
+            log_w.append(
+                math.log(pi * p_alt) - 0.5 * math.log(2 * math.pi * tot) - 0.5 * (d - m) ** 2 / tot
+            )
+            means.append(w * d + (1 - w) * m)
+            sds.append(math.sqrt(v_prior * v_data / tot))
+            data_w.append(w)
+            is_drift.append(k == 1)
+    top = max(log_w)
+    raw = [math.exp(x - top) for x in log_w]
+    norm = sum(raw)
+    weights = [x / norm for x in raw]
+    p_drift = sum(w for w, dr in zip(weights, is_drift, strict=True) if dr)
+    honest = sum(w for w, dr in zip(weights, is_drift, strict=True) if not dr)
+    w0 = sum(w * dw for w, dw, dr in zip(weights, data_w, is_drift, strict=True) if not dr) / honest
+    if len(weights) == 1:
+        combined = Estimate.normal(means[0], sds[0])
     else:
         combined = Estimate(
             _mixture_quantile(weights, means, sds, 0.5),
@@ -269,9 +331,11 @@ def combine_adaptation(
         )
     assert combined.low is not None and combined.high is not None
     implausible = abs(d - m) > IMPLAUSIBLE_Z * math.hypot(sd, se)
+    # the prior's own 80 % range ("typical for a deficit like this")
+    q_lit = float(stats.t.ppf(0.9, prior_dof)) if prior_dof is not None else Z80
     return AdaptationEvidence(
         data=Estimate.normal(d, se),
-        literature=Estimate.normal(m, sd),
+        literature=Estimate(m, m - q_lit * sd, m + q_lit * sd),
         combined=combined,
         data_weight=w0,
         logging_drift_probability=p_drift,
