@@ -562,3 +562,96 @@ def test_one_diet_break_rule_in_narrative_and_progress_section() -> None:
         else:
             due = ph is not None and diet_break_due(ph.days_in_deficit, ph.deficit_depth_pct)
             assert (narrative in text) is due, cid
+
+
+def signed_e(x: float) -> str:
+    """An energy figure as the practitioner table prints it: to 10 kcal, signed, no unit."""
+    v = round(x / 10) * 10
+    if v == 0:
+        return "\u00b10"
+    return (MINUS if v < 0 else "+") + f"{abs(v):,.0f}"
+
+
+CODES = (  # the analysis' status and reason codes: summary.csv keeps them, the PDFs do not
+    "too-few-data", "interval-too-wide", "phase-too-short", "no-intake", "on-track",
+    "likely-water", "too-early", "no-planned-rate", "no-baseline", "no-body-composition",
+    "phase-under-3-weeks", "recent-window-under-3-weeks", "too-few-weigh-ins",
+)  # fmt: skip
+
+
+@pytest.mark.parametrize("client_id", CLIENTS)
+def test_progress_is_told_in_words_not_codes(client_id: str) -> None:
+    """Status and the reasons for a missing estimate are words in the client report, the
+    practitioner summary and the overview (c008 before: "too-few-data
+    (interval-too-wide)", "Causes not split: phase-too-short")."""
+    texts = {
+        "client": " ".join(sample_pages(client_id)),
+        "practitioner": sample_practitioner(client_id),
+    }
+    for where, text in texts.items():
+        for code in CODES:
+            assert code not in text, f"{client_id} {where}: {code}"
+
+
+def test_overview_tells_progress_in_words() -> None:
+    analyses = [sample_analysis(c) for c in CLIENTS]
+    lines = [make_overview_line(a) for a in analyses]
+    text = flat(" ".join(pdf_pages_text(render_overview(lines, [], SAMPLE_MONTH, Config()))))
+    for code in CODES:
+        assert code not in text, code
+
+
+def test_practitioner_says_why_it_cannot_tell_and_why_causes_are_not_split() -> None:
+    """c008: its rate's 95 % interval holds both no change and the plan, and its phase has
+    no weeks 3-6 before the recent weeks: both said in words."""
+    p = sample_analysis("c008").plateau
+    assert p is not None and p.reason == "interval-too-wide"
+    assert p.causes_reason == "phase-too-short"
+    text = sample_practitioner("c008")
+    assert (
+        "Status: cannot tell yet (the rate's 95 % interval holds both no change and the plan)"
+        in text
+    )
+    assert "Causes not split: the phase has no weeks 3–6 before the recent weeks" in text
+
+
+@pytest.mark.parametrize("client_id", STALL_CLIENTS)
+def test_practitioner_progress_table_matches_the_analysis(client_id: str) -> None:
+    """The practitioner block's table: the change of the realised deficit and each part's
+    effect on it with its 80 % range, formatted here from the analysis (to 10 kcal), in
+    the order total, intake, body size, steps, metabolic, logging, left over; and the
+    block (status line to the flags) takes at most 100 pt on paper (it took 163 pt, 194 pt
+    before the page shrank, when it was a bulleted section)."""
+    import io
+
+    import pdfplumber
+
+    a = sample_analysis(client_id)
+    p = a.plateau
+    assert p is not None and p.parts and p.change_kcal.known
+    text = sample_practitioner(client_id)
+    c = p.change_kcal
+    assert c.value is not None and c.low is not None and c.high is not None
+    estimates = [signed_e(c.value)]
+    ranges = [f"{signed_e(c.low)} to {signed_e(c.high)}"]
+    for code in ("intake", "body-size", "activity", "metabolic", "logging"):
+        part = p.part(code)
+        assert part is not None, code
+        k = part.kcal
+        if k.value is None:
+            estimates.append("not measured")
+            ranges.append("\u2013")
+            continue
+        assert k.low is not None and k.high is not None
+        estimates.append(signed_e(k.value))
+        ranges.append(f"{signed_e(k.low)} to {signed_e(k.high)}")
+    assert p.leftover_kcal is not None
+    estimates.append(signed_e(p.leftover_kcal))
+    assert "Recent − weeks 3–6 " + " ".join(estimates) in text, client_id
+    assert "80 % range " + " ".join(ranges) in text, client_id
+    data = render_practitioner_summary(a, Config())
+    with pdfplumber.open(io.BytesIO(data)) as pdf:
+        words = pdf.pages[0].extract_words()
+    top = next(w["top"] for w in words if w["text"] == "Progress")
+    flags = next(w["top"] for w in words if w["text"] == "Flags.")
+    assert flags - top <= 100.0, f"{client_id}: {flags - top:.0f} pt"
