@@ -655,3 +655,66 @@ def test_practitioner_progress_table_matches_the_analysis(client_id: str) -> Non
     top = next(w["top"] for w in words if w["text"] == "Progress")
     flags = next(w["top"] for w in words if w["text"] == "Flags.")
     assert flags - top <= 100.0, f"{client_id}: {flags - top:.0f} pt"
+
+
+def acsm_kcal_per_1000_steps(weight_kg: float, height_cm: float | None, sex: str | None) -> float:
+    """Net cost of 1,000 level-walking steps: the ACSM walking equation's horizontal term
+    (0.1 ml O2 per kg per metre; ACSM's Guidelines, metabolic equations, from memory) at
+    5 kcal per litre of O2 (Weir 1949 rounding), step length 0.413 x height (women) or
+    0.415 x height (men) (common practice for pedometers, from memory)."""
+    factor = {"female": 0.413, "male": 0.415}.get(sex or "", 0.414)
+    step_m = factor * height_cm / 100 if height_cm else 0.7
+    return 0.1 * 5.0 / 1000 * step_m * 1000 * weight_kg
+
+
+STEP_CAP = 3000  # extra steps a day an option asks for at most: about the 2,500 steps/day
+# pedometer users added in trials (Bravata et al. 2007, from memory), rounded up (judgment)
+
+
+@pytest.mark.parametrize("client_id", CLIENTS)
+def test_step_options_use_one_cost_are_capped_and_need_logged_steps(client_id: str) -> None:
+    """Steps on the client report: no step option for a client who logs no steps (c011
+    before: "about 10,900 more steps a day"); one cost per step (the ACSM walking cost at
+    today's trend weight, computed here) behind every step option (c014 before read as
+    14,100 fewer steps = 230 kcal/day beside 9,900 more = 340 kcal/day: the 230 kcal/day
+    is the phase's mean against the baseline, now said so); and never more than 3,000
+    extra steps a day, saying that they close only part of a larger gap (c015, c016
+    before: 15,100 and 16,000 steps)."""
+    a = sample_analysis(client_id)
+    text = " ".join(sample_pages(client_id))
+    from reportgen.io.book import read_client, read_roster
+
+    roster = read_roster(SAMPLE_BOOK)
+    client = next(c for c in roster.clients if c.client_id == client_id)
+    log = read_client(
+        SAMPLE_BOOK, client, roster.phases.get(client_id, ()), dt.date(2026, 11, 30)
+    ).log
+    assert log is not None
+    # steps logged on at least 7 days of the last 4 weeks (the progress section's window)
+    recent = log.dates >= np.datetime64("2026-11-03")
+    logs_steps = int(np.isfinite(log.steps[recent]).sum()) >= 7
+    offered = re.search(r"About ([\d,]+) more steps a day", text)
+    if not logs_steps or a.plateau is None:
+        assert offered is None, client_id
+        return
+    w = a.current_weight_kg.value
+    assert w is not None
+    per_step = acsm_kcal_per_1000_steps(w, a.client.height_cm, a.client.sex) / 1000
+    p = a.plateau
+    if offered is not None:
+        steps = int(offered.group(1).replace(",", ""))
+        assert steps <= STEP_CAP, client_id
+        assert p.gap_kcal is not None
+        needed = int(np.ceil(p.gap_kcal / per_step / 100) * 100)
+        gap = kcal(p.gap_kcal)
+        if needed > STEP_CAP:
+            closes = kcal(STEP_CAP * per_step).removesuffix(" kcal/day")
+            assert steps == STEP_CAP
+            assert f"a realistic rise, would close only about {closes} of the {gap} gap" in text
+        else:
+            per_1000 = f"{round(per_step * 1000):,} kcal per 1,000 steps for you"
+            assert steps == needed
+            assert f"would close the gap of {gap}, at {per_1000}" in text, client_id
+    # the narrative's step figure is the phase's mean against the baseline, said so
+    if "less activity (fewer steps" in text:
+        assert "less activity (fewer steps on average this phase, worth about" in text

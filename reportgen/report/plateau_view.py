@@ -212,10 +212,13 @@ def rating_words(change: float) -> str:
 def _option(code: str, values: dict[str, float], u: Units) -> dict[str, str]:
     out = {"code": code}
     for key, v in values.items():
-        if key.endswith("_kcal"):
+        if key == "kcal_per_1000_steps":  # the one cost per step of the page, in its unit
+            out["per_1000_steps"] = f"{u.number(float(u.energy(v)))} {u.energy_unit}"
+        elif key == "closes_kcal":  # beside the gap, which carries the unit
+            out["closes_e"] = u.e(v, unit=False)
+            out[key] = u.e(v)
+        elif key.endswith("_kcal"):
             out[key] = u.e(v, signed=key == "change_kcal")
-        elif key == "steps":
-            out[key] = u.number(v)
         else:
             out[key] = u.number(v)
     return out

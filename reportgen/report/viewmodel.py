@@ -149,9 +149,10 @@ def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
     )
     act = p.activity_change_kcal
     if act.known and act.value is not None:
+        # the phase's mean steps against the baseline's (not the recent weeks')
         out["adapt_activity"] = (
             "fewer" if act.value < 0 else "more"
-        ) + f" steps, worth about {u.e(abs(act.value))}"
+        ) + f" steps on average this phase, worth about {u.e(abs(act.value))}"
     else:
         out["adapt_activity"] = "not measured (steps not logged)"
     gap = p.logging_gap_kcal
