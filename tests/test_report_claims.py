@@ -718,3 +718,29 @@ def test_step_options_use_one_cost_are_capped_and_need_logged_steps(client_id: s
     # the narrative's step figure is the phase's mean against the baseline, said so
     if "less activity (fewer steps" in text:
         assert "less activity (fewer steps on average this phase, worth about" in text
+
+
+@pytest.mark.parametrize("client_id", CLIENTS)
+def test_month_change_never_reads_against_the_recent_rate(client_id: str) -> None:
+    """Page 1 sets the month's trend change beside the recent weekly rate.  When the two
+    point different ways (c015: the trend "came down by 0.7 kg" in November while the last
+    4 weeks rose by +0.07 kg/week), the month's change must be one that cannot be told from
+    none, and page 1 says so with its 80 % range ("no clear change"); a month change whose
+    range holds zero is always said so."""
+    a = sample_analysis(client_id)
+    p1 = sample_pages(client_id)[0]
+    m = a.month_change_kg
+    if m.value is None or abs(m.value) < 0.1 or m.low is None or m.high is None:
+        return
+    verb = "came down by" if m.value < 0 else "went up by"
+    assert f"Your trend weight {verb} {kg(abs(m.value))} in November 2026" in p1
+    unclear = m.low <= 0 <= m.high
+    assert ("no clear change" in p1) is unclear, client_id
+    lo, hi = kg(m.low, True).removesuffix(" kg"), kg(m.high, True)
+    if unclear and "0.0" not in lo + hi:  # the report writes a zero end as "±0.0"
+        assert f"(range {lo} to {hi}: no clear change)" in p1, client_id
+    p = a.plateau
+    if p is not None and p.recent_rate_kg_per_week.value is not None:
+        recent = p.recent_rate_kg_per_week.value
+        if recent * m.value < 0 and abs(recent) >= 0.005:  # opposite directions
+            assert unclear and "no clear change" in p1, client_id

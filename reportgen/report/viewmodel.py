@@ -368,6 +368,13 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     story: dict[str, Any] = {
         "change_dir": _direction(a.month_change_kg),
         "change_abs": "" if a.month_change_kg.value is None else u.w(abs(a.month_change_kg.value)),
+        # the month's change cannot be told from none: its 80 % range, said beside it, so a
+        # change "down" does not read against a flat or rising recent rate
+        "change_unclear": (
+            u.interval(a.month_change_kg, "w_change")
+            if _holds_zero(a.month_change_kg) and _direction(a.month_change_kg) in ("down", "up")
+            else ""
+        ),
         # the realised deficit in words: "about 50 kcal/day more than", never "−50 ... below"
         "deficit_abs": _deficit_words(u, ph)[0],
         "deficit_side": _deficit_words(u, ph)[1],
@@ -519,6 +526,10 @@ def _last_weigh_in(a: ClientAnalysis) -> dt.date | None:
     if not ok.any():
         return None
     return dt.date.fromisoformat(str(a.log.dates[ok][-1].astype("datetime64[D]")))
+
+
+def _holds_zero(est: Estimate) -> bool:
+    return est.low is not None and est.high is not None and est.low <= 0.0 <= est.high
 
 
 def _direction(est: Estimate) -> str:
