@@ -744,3 +744,22 @@ def test_month_change_never_reads_against_the_recent_rate(client_id: str) -> Non
         recent = p.recent_rate_kg_per_week.value
         if recent * m.value < 0 and abs(recent) >= 0.005:  # opposite directions
             assert unclear and "no clear change" in p1, client_id
+
+
+def test_overview_rate_is_the_rate_of_page_one() -> None:
+    """The overview's Rate column shows the weekly rate of each client's page 1 (c011
+    before: −0.24 %/wk, the smoothed slope, beside "stalled" at +0.07 %/wk over 4 weeks)."""
+    analyses = [sample_analysis(c) for c in CLIENTS]
+    lines = [make_overview_line(a) for a in analyses]
+    text = flat(" ".join(pdf_pages_text(render_overview(lines, [], SAMPLE_MONTH, Config()))))
+    for a in analyses:
+        p = a.plateau
+        rapid = any(f.code == "rapid-loss" for f in a.flags)
+        if p is None or rapid or not p.recent_rate_pct_per_week.known:
+            continue
+        pct = p.recent_rate_pct_per_week.value
+        assert pct is not None
+        shown = pct2(pct).removesuffix(" %")
+        assert shown in " ".join(sample_pages(a.client.client_id)[:1]), a.client.client_id
+        row = text[text.index(a.client.name) :][:200]
+        assert f" {shown} " in row, (a.client.client_id, row)
