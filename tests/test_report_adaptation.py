@@ -36,7 +36,7 @@ def test_client_report_names_the_three_causes() -> None:
     assert "Expenditure below expected" in text
     assert "180 kcal" in text  # the combined figure
     assert "slower metabolism" in text and "90 kcal" in text  # typical for the deficit
-    assert "fewer steps, worth about 60 kcal" in text
+    assert "fewer steps on average this phase, worth about 60 kcal" in text
     assert "about 210 kcal" in text and "more eaten than logged" in text
 
 

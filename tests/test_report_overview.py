@@ -39,7 +39,9 @@ def test_line_takes_its_values_from_the_analysis() -> None:
         a.week_of_phase,
     )
     assert line.month_change_kg == a.month_change_kg.value
-    assert line.weekly_rate_pct == a.weekly_rate_pct.value
+    # the rate of page 1: the progress section's recent rate while a deficit phase runs
+    assert a.plateau is not None and a.plateau.recent_rate_pct_per_week.known
+    assert line.weekly_rate_pct == a.plateau.recent_rate_pct_per_week.value
     assert line.realised_deficit_kcal == ph.realised_deficit_kcal.value
     assert line.observed_tdee_kcal == ph.observed_tdee_kcal.value
     assert line.adaptation_kcal == ph.adaptation_kcal.value

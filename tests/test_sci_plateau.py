@@ -432,8 +432,29 @@ def test_options_for_a_stall() -> None:
     assert intake["intake_kcal"] == 1650.0
     assert intake["change_kcal"] == pytest.approx(-250.0, abs=1e-9)
     assert intake["floor_kcal"] == 1200.0  # women's floor (flags.py, common practice)
-    assert got.options[1].values["steps"] == 7200.0
+    # 200 kcal/day at 0.028 kcal/step needs 7,200 steps (hand-calculated, see
+    # steps_to_close_gap); the option asks for at most 3,000 (about the 2,500 steps/day
+    # pedometer users added in trials, Bravata et al. 2007, from memory; rounded up:
+    # judgment) and says what they close: 3,000 x 0.028 = 84 kcal/day
+    steps = got.options[1].values
+    assert steps["steps"] == 3000.0
+    assert steps["needed_steps"] == 7200.0 and steps["capped"] == 1.0
+    assert steps["closes_kcal"] == pytest.approx(84.0, abs=1e-9)
+    assert steps["kcal_per_1000_steps"] == pytest.approx(28.0, abs=1e-9)
     assert got.cautions == ()
+
+
+def test_a_small_gap_gets_the_steps_that_close_it() -> None:
+    """60 kcal/day at 0.028 kcal/step: 2,142.9 steps, shown as 2,200 (hand-calculated)."""
+    steps = _opts("stalled", gap_kcal=60.0).options[1].values
+    assert steps["steps"] == 2200.0 and "capped" not in steps
+    assert steps["closes_kcal"] == pytest.approx(60.0, abs=1e-9)  # the whole gap
+
+
+def test_no_step_option_without_a_cost_per_step() -> None:
+    """A client who logs no steps gets no step option (the assessment passes no cost)."""
+    got = _opts("stalled", kcal_per_step=None)
+    assert [o.code for o in got.options] == ["intake-for-planned-rate"]
 
 
 @pytest.mark.parametrize(

@@ -143,3 +143,14 @@ def test_the_longer_span_does_not_invent_a_stall() -> None:
     # a steady 0.09 kg/day loss (about 0.7 %/week) on the same noise is never "stalled"
     got = [assess_plateau(_noisy(None, seed)).status for seed in range(12)]
     assert not any(s.status == "stalled" for s in got)
+
+
+def test_no_step_option_for_a_client_who_logs_no_steps() -> None:
+    """The same stall without logged steps: the activity part is not measured and no
+    option asks for more steps (the cost per step needs a step count to add to)."""
+    import dataclasses
+
+    got = assess_plateau(dataclasses.replace(_inputs(stall=True), steps=np.full(N, np.nan)))
+    assert got.status.status == "stalled"
+    codes = [o.code for o in got.options.options]
+    assert "extra-steps" not in codes and "intake-for-planned-rate" in codes

@@ -139,13 +139,22 @@ def _img(svg: bytes | None) -> str | None:
 
 
 def _client_context(analysis: ClientAnalysis, config: Config) -> dict[str, Any]:
-    from reportgen.report.client import draw_charts
+    from reportgen.report.client import client_page_view, draw_charts
+    from reportgen.report.plateau_view import showing_causes
     from reportgen.report.theme import page_size
-    from reportgen.report.viewmodel import client_view
     from reportgen.report.wording import Wording
 
     words = Wording(config, "report/client.j2")
-    vm = client_view(analysis, config)
+    # the same view and page-level facts (vm.extra) as the product's route
+    vm, pv = client_page_view(analysis, config)
+    progress = Markup("")
+    if pv is not None:
+        pw = Wording(config, "report/plateau.j2")
+        parts = ["client"]
+        if showing_causes(pv):
+            parts.append("client_causes")  # the words; the small drawing is left out
+        parts += ["options_heading", "client_options"]
+        progress = Markup("\n".join(markup_to_html(pw.text(m, pv)) for m in parts))
     width_mm = page_size(config)[0] / 72 * 25.4 - 36
     with _charts_as_svg():
         charts = draw_charts(analysis, config, width_mm, words.labels["chart"])
@@ -182,6 +191,7 @@ def _client_context(analysis: ClientAnalysis, config: Config) -> dict[str, Any]:
         "header": markup_to_html(words.text("header", vm)),
         "figures": figures,
         "narrative": markup_to_html(words.text("narrative", vm)),
+        "progress": progress,
         "charts_intro": markup_to_html(words.text("charts_intro", vm)),
         "charts": chart_items,
         "phases_text": markup_to_html(words.text("phases", vm)),
@@ -216,12 +226,41 @@ def render_practitioner_html_pdf(analysis: ClientAnalysis, config: Config) -> by
 
 def _practitioner_context(analysis: ClientAnalysis, config: Config) -> dict[str, Any]:
     """The practitioner page from the product's summary view and practitioner wording."""
+    from reportgen.report.plateau_view import plateau_view
     from reportgen.report.practitioner import summary_view
     from reportgen.report.wording import Wording
 
     words = Wording(config, "report/practitioner.j2")
     sv = summary_view(analysis, config, words)
     labels = words.labels
+    progress: dict[str, Any] | None = None
+    pv = plateau_view(analysis, config)
+    if pv is not None:  # the product's progress block: status line, parts table, method
+        pw = Wording(config, "report/plateau.j2")
+        tl = pw.table_labels
+        progress = {
+            "status": Markup(pw.text("practitioner_status", pv)),
+            "head": [
+                tl["head"],
+                tl["total"],
+                *(tl["parts"][r.code] for r in pv.rows),
+                tl["left-over"],
+            ],
+            "estimate": [
+                tl["estimate"],
+                pv.change_effect,
+                *(r.effect if r.measured else tl["not-measured"] for r in pv.rows),
+                pv.leftover_effect or "\u2013",
+            ],
+            "range": [
+                tl["range"],
+                pv.change_effect_interval,
+                *(r.effect_interval if r.measured else "\u2013" for r in pv.rows),
+                "",
+            ],
+            "notes": Markup(pw.text("practitioner_notes", pv)) if pv.rows else "",
+            "method": Markup(pw.text("practitioner_method", pv)),
+        }
     ident = [(labels["ident"][k], v) for k, v in sv.ident]
     half = (len(ident) + 1) // 2
     return {
@@ -234,6 +273,7 @@ def _practitioner_context(analysis: ClientAnalysis, config: Config) -> dict[str,
         "special": Markup(words.text("special_line", sv).strip()),
         "rows": [(labels["rows"][k], v, i, m) for k, v, i, m in sv.rows],
         "phases": sv.phases,
+        "progress": progress,
         "flags": [Markup(words.text("flag_line", f)) for f in sv.flags],
         "quality": Markup(words.text("quality_line", sv)),
         "references": [Markup(words.text("reference_line", m)) for m in sv.methods],

@@ -30,7 +30,7 @@ from .layout import card_grid, chart_block, data_table, practice_header, section
 from .outlook import outlook
 from .para import Paragraph
 from .pdfbuild import ChartSlot, Document, build, mark_heading
-from .plateau_view import plateau_flowables, plateau_view, showing_causes
+from .plateau_view import PlateauView, plateau_flowables, plateau_view, showing_causes
 from .theme import MARGIN, Theme, page_size, theme_for
 from .units import Units
 from .viewmodel import ClientView, client_view
@@ -156,19 +156,16 @@ def _heading_hook(para: Paragraph, level: int) -> None:
     mark_heading(para, level)
 
 
-def render_client_report(
-    analysis: ClientAnalysis, config: Config, *, timing: Timing | None = None
-) -> bytes:
-    """The client's monthly report as PDF bytes (at most 4 A4 pages with every section)."""
-    theme = theme_for(config.report.accent_colour)
-    words = Wording(config, "report/client.j2")
+def client_page_view(
+    analysis: ClientAnalysis, config: Config
+) -> tuple[ClientView, PlateauView | None]:
+    """The client report's view with the page-level facts its wording reads from
+    ``vm.extra``, and the progress section's view (None when it is not shown).  Every
+    route that fills ``templates/report/client.j2`` starts from this."""
     vm = client_view(analysis, config)
-    pagesize = page_size(config)
-    width = pagesize[0] - 2 * 18 * mm
-    sections = set(config.report.sections)
     axis = chart_context(analysis, config, 0.0, {})
     vm.extra["planned_intake"] = has_planned_intake(analysis, axis)
-    pv = plateau_view(analysis, config) if "overview" in sections else None
+    pv = plateau_view(analysis, config) if "overview" in config.report.sections else None
     # the progress section states the ratings beside the causes and offers the break
     causes = pv is not None and showing_causes(pv)
     vm.extra["plateau_causes"] = causes
@@ -177,6 +174,19 @@ def render_client_report(
     # when the progress section is shown it decides about a break (as an option or not,
     # by science.diet_break on the recent depth); the narrative's line stays out of it
     vm.extra["plateau_break"] = pv is not None
+    return vm, pv
+
+
+def render_client_report(
+    analysis: ClientAnalysis, config: Config, *, timing: Timing | None = None
+) -> bytes:
+    """The client's monthly report as PDF bytes (at most 4 A4 pages with every section)."""
+    theme = theme_for(config.report.accent_colour)
+    words = Wording(config, "report/client.j2")
+    vm, _ = client_page_view(analysis, config)
+    pagesize = page_size(config)
+    width = pagesize[0] - 2 * 18 * mm
+    sections = set(config.report.sections)
 
     t0 = time.perf_counter()
     charts: ChartPages | None = None

@@ -20,6 +20,7 @@ from .para import Paragraph
 from .pdfbuild import Document, build, mark_heading
 from .theme import page_size, theme_for
 from .units import DASH, Units
+from .viewmodel import headline_rate
 from .wording import Wording, blocks, esc
 
 # Attention score: an urgent flag outranks any number of cautions, a caution any number of notes.
@@ -57,7 +58,7 @@ def make_overview_line(analysis: ClientAnalysis) -> OverviewLine:
         phase_kind=ph.kind if ph else None,
         week_of_phase=a.week_of_phase,
         month_change_kg=a.month_change_kg.value,
-        weekly_rate_pct=a.weekly_rate_pct.value,
+        weekly_rate_pct=headline_rate(a)[1].value,  # the rate of the client's page 1
         realised_deficit_kcal=ph.realised_deficit_kcal.value if ph else None,
         observed_tdee_kcal=ph.observed_tdee_kcal.value if ph else None,
         adaptation_kcal=ph.adaptation_kcal.value if ph else None,

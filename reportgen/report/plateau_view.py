@@ -13,17 +13,18 @@ from dataclasses import dataclass, field
 
 from reportlab.lib import colors
 from reportlab.lib.units import mm
-from reportlab.platypus import Flowable, Table, TableStyle
+from reportlab.platypus import Flowable, Spacer, Table, TableStyle
 
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate, PlateauResult
 from reportgen.science.plateau import ZERO_Z
 
 from . import theme as T
+from .layout import data_table
 from .para import Paragraph
 from .theme import Theme
 from .units import Units
-from .wording import Wording, blocks
+from .wording import Wording, blocks, esc
 
 CAUSE_ORDER = ("intake", "body-size", "activity", "metabolic", "logging")
 
@@ -38,6 +39,8 @@ class CauseRow:
     text: str = ""  # e.g. "120 kcal/day"
     interval: str = ""  # e.g. "40-200 kcal/day"
     closed: bool = True  # closed (True) or widened (False) the deficit
+    effect: str = ""  # signed effect on the deficit without the unit, e.g. "-120"
+    effect_interval: str = ""  # its 80 % range without the unit, e.g. "-200 to -40"
 
 
 def _decision_interval(u: Units, r: Estimate) -> str:
@@ -46,6 +49,14 @@ def _decision_interval(u: Units, r: Estimate) -> str:
         return ""
     half = ZERO_Z * r.normal_sd
     return u.interval(Estimate(r.value, r.value - half, r.value + half), "pct_change")
+
+
+def _bare_interval(u: Units, est: Estimate) -> str:
+    """A signed energy interval without its unit ("-200 to -40"), for a table whose head
+    carries the unit; '' when there is none."""
+    if est.low is None or est.high is None:
+        return ""
+    return f"{u.e(est.low, signed=True, unit=False)} to {u.e(est.high, signed=True, unit=False)}"
 
 
 @dataclass
@@ -63,6 +74,9 @@ class PlateauView:
     energy_unit: str
     change: str = ""
     change_interval: str = ""
+    change_effect: str = ""  # signed, without the unit (the practitioner table)
+    change_effect_interval: str = ""
+    leftover_effect: str = ""
     shrank: bool = False
     rows: list[CauseRow] = field(default_factory=list)
     largest: str | None = None
@@ -73,6 +87,7 @@ class PlateauView:
     completeness_fell: bool = False
     logging_gap: str = ""
     logging_gap_interval: str = ""
+    logging_gap_bare_interval: str = ""
     metabolic_expected: str = ""
     hunger_change: str = ""
     energy_change: str = ""
@@ -128,6 +143,8 @@ def _causes(view: PlateauView, p: PlateauResult, u: Units) -> None:
     view.change = u.e(abs(c.value)) if c.value is not None else ""
     view.shrank = c.value is not None and c.value < 0
     view.change_interval = u.interval(c, "e_change")
+    view.change_effect = u.e(c.value, signed=True, unit=False)
+    view.change_effect_interval = _bare_interval(u, c)
     for code in CAUSE_ORDER:
         part = p.part(code)
         if part is None:
@@ -148,9 +165,13 @@ def _causes(view: PlateauView, p: PlateauResult, u: Units) -> None:
                 u.e(abs(k.value)),
                 u.interval(k, "e_change"),
                 k.value <= 0,
+                u.e(k.value, signed=True, unit=False),
+                _bare_interval(u, k),
             )
         )
     view.leftover = u.e(p.leftover_kcal, signed=True) if p.leftover_kcal is not None else ""
+    if p.leftover_kcal is not None:
+        view.leftover_effect = u.e(p.leftover_kcal, signed=True, unit=False)
     view.intake_change = u.e(p.intake_change_kcal, signed=True)
     if p.completeness_change_pct is not None:
         view.completeness_change = u.pp(p.completeness_change_pct, dp=0)
@@ -159,6 +180,7 @@ def _causes(view: PlateauView, p: PlateauResult, u: Units) -> None:
     if g.value is not None:
         view.logging_gap = u.e(g.value, signed=True)
         view.logging_gap_interval = u.interval(g, "e_change")
+        view.logging_gap_bare_interval = _bare_interval(u, g)
     if p.metabolic_expected_kcal is not None:
         view.metabolic_expected = u.e(p.metabolic_expected_kcal, signed=True)
     if p.hunger_change is not None:
@@ -190,10 +212,13 @@ def rating_words(change: float) -> str:
 def _option(code: str, values: dict[str, float], u: Units) -> dict[str, str]:
     out = {"code": code}
     for key, v in values.items():
-        if key.endswith("_kcal"):
+        if key == "kcal_per_1000_steps":  # the one cost per step of the page, in its unit
+            out["per_1000_steps"] = f"{u.number(float(u.energy(v)))} {u.energy_unit}"
+        elif key == "closes_kcal":  # beside the gap, which carries the unit
+            out["closes_e"] = u.e(v, unit=False)
+            out[key] = u.e(v)
+        elif key.endswith("_kcal"):
             out[key] = u.e(v, signed=key == "change_kcal")
-        elif key == "steps":
-            out[key] = u.number(v)
         else:
             out[key] = u.number(v)
     return out
@@ -275,6 +300,8 @@ def plateau_flowables(
     if view is None:
         return []
     words = Wording(config, "report/plateau.j2")
+    if macro == "practitioner":
+        return practitioner_flowables(view, words, theme, width)
     out: list[Flowable] = []
     out += blocks(words.text(macro, view), theme, heading_hook=heading_hook)
     if macro == "client" and showing_causes(view):
@@ -305,4 +332,41 @@ def plateau_flowables(
         out += blocks(words.text("options_heading", view), theme)
     if macro == "client":
         out += blocks(words.text("client_options", view), theme)
+    return out
+
+
+def practitioner_flowables(
+    view: PlateauView, words: Wording, theme: Theme, width: float
+) -> list[Flowable]:
+    """The practitioner summary's block, at the page's cell size: status and rate in one
+    run-in paragraph, the parts as a three-row table (estimate and 80 % range per part,
+    kcal/day), one line of logging figures and the method line."""
+    out: list[Flowable] = [Paragraph(words.text("practitioner_status", view), theme["cell"])]
+    if view.rows:
+        tl = words.table_labels
+        parts = tl["parts"]
+        header = [esc(tl["head"]), esc(tl["total"])]
+        header += [esc(parts[r.code]) for r in view.rows] + [esc(tl["left-over"])]
+        estimate = [esc(tl["estimate"]), esc(view.change_effect)]
+        estimate += [esc(r.effect) if r.measured else esc(tl["not-measured"]) for r in view.rows]
+        estimate.append(esc(view.leftover_effect or "\u2013"))
+        ranges = [esc(tl["range"]), esc(view.change_effect_interval)]
+        ranges += [esc(r.effect_interval) if r.measured else "\u2013" for r in view.rows]
+        ranges.append("")
+        first = 0.19 * width
+        rest = (width - first) / (len(header) - 1)
+        out.append(Spacer(1, 0.5 * mm))
+        out.append(
+            data_table(
+                header,
+                [estimate, ranges],
+                [first] + [rest] * (len(header) - 1),
+                theme,
+                right_from=1,
+                dense=True,
+            )
+        )
+        out.append(Spacer(1, 0.5 * mm))
+    notes = words.text("practitioner_notes", view) + " " if view.rows else ""
+    out.append(Paragraph(notes + words.text("practitioner_method", view), theme["small"]))
     return out

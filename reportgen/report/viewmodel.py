@@ -157,9 +157,10 @@ def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
         "yes" if act.known and act.value is not None and u.e_shown(act.value) != 0 else ""
     )
     if act.known and act.value is not None:
+        # the phase's mean steps against the baseline's (not the recent weeks')
         out["adapt_activity"] = (
             "fewer" if act.value < 0 else "more"
-        ) + f" steps, worth about {u.e(abs(act.value))}"
+        ) + f" steps on average this phase, worth about {u.e(abs(act.value))}"
     else:
         out["adapt_activity"] = "not measured (steps not logged)"
     gap = p.logging_gap_kcal
@@ -323,20 +324,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     figs["change"] = f
     # the words say "fast" exactly when the rapid-loss flag (science.flags.rapid_loss) is up
     rapid = any(fl.code == "rapid-loss" for fl in a.flags)
-    # One weekly rate on page 1: while a deficit phase runs, the rate of its last weeks that
-    # the progress section judges (named with its span), not the smoothed trend's slope,
-    # which lags a fresh stall; otherwise, and when the rapid-loss flag (which is about the
-    # smoothed slope) is up, the smoothed slope at the month's end, named as such.
-    rate_kg, pct, span_weeks = a.weekly_rate_kg, a.weekly_rate_pct, 0
-    if (
-        not rapid
-        and a.plateau is not None
-        and a.plateau.recent_rate_kg_per_week.known
-        and a.plateau.recent_rate_pct_per_week.known
-    ):
-        rate_kg = a.plateau.recent_rate_kg_per_week
-        pct = a.plateau.recent_rate_pct_per_week
-        span_weeks = a.plateau.recent_days // 7
+    rate_kg, pct, span_weeks = headline_rate(a)
     f = _estimate(u, rate_kg, "w_rate", "rate")
     if f.known:
         f.value = f"{f.value}/week"
@@ -375,6 +363,13 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
     story: dict[str, Any] = {
         "change_dir": _direction(a.month_change_kg),
         "change_abs": "" if a.month_change_kg.value is None else u.w(abs(a.month_change_kg.value)),
+        # the month's change cannot be told from none: its 80 % range, said beside it, so a
+        # change "down" does not read against a flat or rising recent rate
+        "change_unclear": (
+            u.interval(a.month_change_kg, "w_change")
+            if _holds_zero(a.month_change_kg) and _direction(a.month_change_kg) in ("down", "up")
+            else ""
+        ),
         # the realised deficit in words: "about 50 kcal/day more than", never "−50 ... below"
         "deficit_abs": _deficit_words(u, ph)[0],
         "deficit_side": _deficit_words(u, ph)[1],
@@ -529,6 +524,31 @@ def _last_weigh_in(a: ClientAnalysis) -> dt.date | None:
     if not ok.any():
         return None
     return dt.date.fromisoformat(str(a.log.dates[ok][-1].astype("datetime64[D]")))
+
+
+def headline_rate(a: ClientAnalysis) -> tuple[Estimate, Estimate, int]:
+    """The one weekly rate a reader sees first (page 1, the overview): kg/week, % of body
+    weight per week, and its span in weeks (0: the smoothed trend's slope).
+
+    While a deficit phase runs, the rate of its last weeks that the progress section judges
+    (named with its span), not the smoothed trend's slope, which lags a fresh stall;
+    otherwise, and when the rapid-loss flag (which is about the smoothed slope) is up, the
+    smoothed slope at the month's end, named as such.
+    """
+    rapid = any(fl.code == "rapid-loss" for fl in a.flags)
+    p = a.plateau
+    if (
+        not rapid
+        and p is not None
+        and p.recent_rate_kg_per_week.known
+        and p.recent_rate_pct_per_week.known
+    ):
+        return p.recent_rate_kg_per_week, p.recent_rate_pct_per_week, p.recent_days // 7
+    return a.weekly_rate_kg, a.weekly_rate_pct, 0
+
+
+def _holds_zero(est: Estimate) -> bool:
+    return est.low is not None and est.high is not None and est.low <= 0.0 <= est.high
 
 
 def _direction(est: Estimate) -> str:

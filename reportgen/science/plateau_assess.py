@@ -20,7 +20,12 @@ from reportgen.results import Estimate
 from reportgen.science import balance as bal
 from reportgen.science import plateau as pl
 from reportgen.science import plateau_causes as pc
-from reportgen.science.activity import kcal_per_1000_steps, step_energy_change_kcal, step_length_m
+from reportgen.science.activity import (
+    MIN_STEP_DAYS,
+    kcal_per_1000_steps,
+    step_energy_change_kcal,
+    step_length_m,
+)
 from reportgen.science.composition import energy_density_kcal_per_kg
 from reportgen.science.expected import (
     Baseline,
@@ -328,6 +333,8 @@ def assess_plateau(inp: PlateauInputs) -> PlateauAssessment:
     if planned_deficit is not None and recent is not None:
         gap = planned_deficit - recent.deficit_kcal
     per_step = kcal_per_1000_steps(cur_w, step_length_m(inp.height_cm, inp.sex)) / 1000.0
+    # a step option only for a client who logs steps (in the recent window)
+    steps_logged = int(np.isfinite(inp.steps[lo:]).sum()) >= MIN_STEP_DAYS
     recent_intake = None if recent is None else recent.intake_kcal
     ifr = None
     depth = None
@@ -362,7 +369,7 @@ def assess_plateau(inp: PlateauInputs) -> PlateauAssessment:
         gap_kcal=gap,
         intake_for_planned_rate=ifr,
         recent_intake_kcal=recent_intake,
-        kcal_per_step=per_step,
+        kcal_per_step=per_step if steps_logged else None,
         days_in_deficit=last - inp.deficit_start + 1,
         deficit_depth_pct=depth,
         sex=inp.sex,
