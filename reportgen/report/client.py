@@ -340,6 +340,12 @@ def _arrange(
     return story
 
 
+def _phase_name_cell(words: Wording, name: str, kind: str) -> str:
+    """The phase's name in bold, its kind below unless the name already says it."""
+    k = words.text("phase_kind", kind, name)
+    return f"<b>{esc(name)}</b>" + (f"<br/>{k}" if k else "")
+
+
 def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> Flowable:
     labels = words.labels
     cols = labels["phase_cols"]
@@ -347,7 +353,7 @@ def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> 
     header = [esc(c) + (f"<br/>{esc(u)}" if u else "") for c, u in zip(cols, units, strict=True)]
     rows = [
         [
-            f"<b>{esc(p['name'])}</b><br/>{words.text('phase_kind', p['kind'])}",
+            _phase_name_cell(words, p["name"], p["kind"]),
             esc(p["dates"]),
             p["days"],
             esc(p["intake"]),

@@ -56,7 +56,7 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
     M = words.labels["methods"]
     c = a.client
     ph = a.current_phase
-    kind_text = _plain(words.text("phase_kind", ph.kind)) if ph is not None else ""
+    title = _plain(words.text("phase_title", ph.name, ph.kind)) if ph is not None else ""
     ident = [
         ("client", c.name),
         ("id", c.client_id),
@@ -71,9 +71,9 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
         ("month", vm.month),
         (
             "phase",
-            f"{ph.name} ({kind_text}), week {a.week_of_phase}, from {u.d(ph.start)}"
+            f"{title}, week {a.week_of_phase}, from {u.d(ph.start)}"
             if ph is not None and a.week_of_phase
-            else (f"{ph.name} ({kind_text})" if ph is not None else DASH),
+            else (title if ph is not None else DASH),
         ),
     ]
     trend_method = DASH

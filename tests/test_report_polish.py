@@ -1,0 +1,94 @@
+"""Wording a client or a referral partner reads as a whole: phase names said once, safety
+thresholds in the practice's energy unit, phase names on the charts never cut short."""
+
+from __future__ import annotations
+
+import dataclasses
+import re
+
+import pytest
+from _report_helpers import pdf_pages_text, sample_analysis
+
+from reportgen.config import Config, ReportSettings
+from reportgen.report import render_client_report
+from reportgen.report.charts import phase_label_lines
+from reportgen.report.practitioner import render_practitioner_summary
+from reportgen.results import Flag
+from reportgen.science import flags as F
+
+KJ_PER_KCAL = 4.184  # thermochemical calorie (ISO 80000-5), exact
+
+
+def flat(text: str) -> str:
+    return " ".join(text.split())
+
+
+def kj(kcal: float) -> str:
+    """Independent formatting: kJ rounded to 50, as the report rounds kilojoules."""
+    return f"{round(kcal * KJ_PER_KCAL / 50) * 50:,.0f} kJ/day"
+
+
+def test_cautions_follow_the_configured_energy_unit() -> None:
+    """A practice that reports kJ reads its intake limits in kJ, not a hard-coded kcal."""
+    cfg = Config(report=ReportSettings(energy_unit="kJ"))
+    text = flat(" ".join(pdf_pages_text(render_client_report(sample_analysis("c001"), cfg))))
+    cautions = text[text.index("Who should be under medical supervision") :]
+    assert "kcal" not in cautions
+    for limit in (F.INTAKE_FLOOR_WOMEN_KCAL, F.INTAKE_FLOOR_MEN_KCAL, F.INTAKE_VLCD_KCAL):
+        assert kj(limit) in cautions, kj(limit)
+    assert f"under {F.ADULT_AGE_YEARS};" in cautions
+    assert f"BMI is under {F.BMI_UNDERWEIGHT:.1f}" in cautions
+    # and in kcal, the same sentence with kcal figures
+    text = flat(" ".join(pdf_pages_text(render_client_report(sample_analysis("c001"), Config()))))
+    assert f"below about {F.INTAKE_FLOOR_WOMEN_KCAL:,.0f} kcal/day for women" in text
+
+
+def test_flag_advice_follows_the_configured_energy_unit() -> None:
+    """The advice under an intake flag quotes the limit in the report's unit."""
+    a = sample_analysis("c001")
+    flags = (
+        Flag("low-intake", "caution", {"intake_kcal": 1150.0, "threshold_kcal": 1200.0}),
+        Flag("very-low-intake", "urgent", {"intake_kcal": 700.0, "threshold_kcal": 800.0}),
+    )
+    a = dataclasses.replace(a, flags=(*a.flags, *flags))
+    cfg = Config(report=ReportSettings(energy_unit="kJ"))
+    text = flat(" ".join(pdf_pages_text(render_client_report(a, cfg))))
+    assert f"Intake under {kj(F.INTAKE_FLOOR_WOMEN_KCAL)} (women)" in text
+    assert f"Diets under about {kj(F.INTAKE_VLCD_KCAL)} need medical supervision" in text
+    assert re.search(r"\d kcal", text) is None
+
+
+@pytest.mark.parametrize("client_id", ["c002", "c008"])
+def test_a_phase_name_that_says_its_kind_is_not_followed_by_it(client_id: str) -> None:
+    a = sample_analysis(client_id)
+    texts = [
+        flat(" ".join(pdf_pages_text(render_client_report(a, Config())))),
+        flat(" ".join(pdf_pages_text(render_practitioner_summary(a, Config())))),
+    ]
+    for p in a.phases:
+        for text in texts:
+            for kind in ("deficit", "maintenance", "surplus", "diet break", "break"):
+                if kind in p.name.lower():
+                    assert f"{p.name} ({kind})" not in text
+    ph = a.current_phase
+    assert ph is not None
+    subtitle = texts[0]
+    if ph.kind not in ph.name.lower():
+        assert f"{ph.name} ({ph.kind})" in subtitle  # a name that does not say it keeps it
+
+
+def test_chart_phase_names_are_whole_or_broken_at_word_ends() -> None:
+    assert phase_label_lines("Two-week break", 20) == "Two-week break"
+    assert phase_label_lines("Two-week break", 10) == "Two-week\nbreak"
+    assert phase_label_lines("Two-week break", 6) == "Two-\nweek\nbreak"
+    assert phase_label_lines("Two-week break", 4) == ""  # "break" cannot fit: no stub
+    assert phase_label_lines("Block 1", 3) == ""
+
+
+def test_c002_charts_print_the_break_phase_whole() -> None:
+    """On c002's charts the narrow break band shows "Two-week break" whole, never an
+    ellipsis."""
+    pages = pdf_pages_text(render_client_report(sample_analysis("c002"), Config()))
+    charts = " ".join(pages[1:])
+    assert "…" not in charts
+    assert "Two-week" in charts and "break" in charts
