@@ -12,8 +12,10 @@ from _report_helpers import pdf_pages_text, sample_analysis
 from reportgen.config import Config, ReportSettings
 from reportgen.report import render_client_report
 from reportgen.report.charts import phase_label_lines
+from reportgen.report.layout import keep_units
 from reportgen.report.practitioner import render_practitioner_summary
-from reportgen.results import Flag
+from reportgen.report.units import Units
+from reportgen.results import Estimate, Flag
 from reportgen.science import flags as F
 
 KJ_PER_KCAL = 4.184  # thermochemical calorie (ISO 80000-5), exact
@@ -92,3 +94,19 @@ def test_c002_charts_print_the_break_phase_whole() -> None:
     charts = " ".join(pages[1:])
     assert "…" not in charts
     assert "Two-week" in charts and "break" in charts
+
+
+def test_an_interval_bound_that_rounds_to_zero_prints_as_zero() -> None:
+    """ "−140 to ±0 kcal/day" read as a change of zero; a bound is a plain 0."""
+    u = Units("kg", "kcal")
+    assert u.interval(Estimate(-70.0, -143.0, -3.0), "e_change") == "−140 to 0 kcal/day"
+    assert u.e(-3.0, signed=True) == "±0 kcal/day"  # a change of zero keeps its sign
+
+
+def test_card_notes_keep_a_number_with_its_unit() -> None:
+    """c001's body-fat card wrapped "30.9" / "% → 27.3 %"; numbers keep their units."""
+    assert keep_units("30.9 % → 27.3 %") == "30.9\u00a0% → 27.3\u00a0%"
+    assert keep_units("−0.30 kg/week, 2 kgs") == "−0.30\u00a0kg/week, 2 kgs"
+    page1 = pdf_pages_text(render_client_report(sample_analysis("c001"), Config()))[0]
+    # no line of the cards ends in a decimal left without its unit
+    assert [ln for ln in page1.splitlines() if re.search(r"\d\.\d\s*$", ln)] == []

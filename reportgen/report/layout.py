@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 from collections.abc import Sequence
 from functools import cache
 from pathlib import Path
@@ -187,7 +188,7 @@ def cards(
                 theme["figure" if known else "figure_missing"],
             ),
             Spacer(1, 1.0 * mm),
-            Paragraph(note, theme["detail"]),
+            Paragraph(keep_units(note), theme["detail"]),
         ]
         row.append(body)
         if len(row) == columns:
@@ -220,6 +221,14 @@ def cards(
     # rows separated by a gap: add space between rows via row heights is not possible with
     # auto heights, so split into one table per row
     return t
+
+
+_NUMBER_UNIT = re.compile(r"(\d) (%|kg/week|lb/week|kg|lb|kcal/day|kJ/day|points)(?![\w/])")
+
+
+def keep_units(markup: str) -> str:
+    """A number and its unit on one line: '30.9 %' never wraps as '30.9' / '%'."""
+    return _NUMBER_UNIT.sub("\\1\u00a0\\2", markup)
 
 
 def _split_unit(value: str) -> str:
