@@ -12,9 +12,9 @@ from _report_helpers import pdf_pages_text, sample_analysis
 from reportgen.config import Config, ReportSettings
 from reportgen.report import render_client_report
 from reportgen.report.charts import phase_label_lines
-from reportgen.report.layout import keep_units
 from reportgen.report.practitioner import render_practitioner_summary
 from reportgen.report.units import Units
+from reportgen.report.wording import keep_units
 from reportgen.results import Estimate, Flag
 from reportgen.science import flags as F
 

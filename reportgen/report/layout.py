@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import re
 from collections.abc import Sequence
 from functools import cache
 from pathlib import Path
@@ -27,7 +26,7 @@ from . import theme as T
 from .para import Paragraph
 from .pdfbuild import ChartBox, ChartSlot, mark_heading
 from .theme import Theme
-from .wording import blocks, esc
+from .wording import blocks, esc, keep_units
 
 LOGO_MAX_H = 16 * mm
 LOGO_MAX_W = 48 * mm
@@ -221,14 +220,6 @@ def cards(
     # rows separated by a gap: add space between rows via row heights is not possible with
     # auto heights, so split into one table per row
     return t
-
-
-_NUMBER_UNIT = re.compile(r"(\d) (%|kg/week|lb/week|kg|lb|kcal/day|kJ/day|points)(?![\w/])")
-
-
-def keep_units(markup: str) -> str:
-    """A number and its unit on one line: '30.9 %' never wraps as '30.9' / '%'."""
-    return _NUMBER_UNIT.sub("\\1\u00a0\\2", markup)
 
 
 def _split_unit(value: str) -> str:
