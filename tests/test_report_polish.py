@@ -110,3 +110,16 @@ def test_card_notes_keep_a_number_with_its_unit() -> None:
     page1 = pdf_pages_text(render_client_report(sample_analysis("c001"), Config()))[0]
     # no line of the cards ends in a decimal left without its unit
     assert [ln for ln in page1.splitlines() if re.search(r"\d\.\d\s*$", ln)] == []
+
+
+def test_practitioner_summary_names_the_client_reports_rate_beside_the_smoothed_slope() -> None:
+    """c014: page 1 says -0.10 kg/week over the last 4 weeks while the smoothed slope is
+    -0.38; the summary showed only the latter as "Weekly rate".  Both are shown, named."""
+    a = sample_analysis("c014")
+    p = a.plateau
+    assert p is not None and p.recent_rate_kg_per_week.value is not None
+    text = flat(pdf_pages_text(render_practitioner_summary(a, Config()))[0])
+    recent = f"{p.recent_rate_kg_per_week.value:+.2f}".replace("-", "\u2212")
+    assert f"Weekly rate, recent weeks {recent} kg/week" in text
+    assert f"last {p.recent_days // 7} weeks" in text and "as on the client report" in text
+    assert "Weekly rate, smoothed trend" in text
