@@ -14,7 +14,7 @@ from reportgen.report import render_client_report
 from reportgen.report.charts import phase_label_lines
 from reportgen.report.practitioner import render_practitioner_summary
 from reportgen.report.units import Units
-from reportgen.report.wording import keep_units
+from reportgen.report.wording import keep_units, whole_dates
 from reportgen.results import Estimate, Flag
 from reportgen.science import flags as F
 
@@ -123,3 +123,13 @@ def test_practitioner_summary_names_the_client_reports_rate_beside_the_smoothed_
     assert f"Weekly rate, recent weeks {recent} kg/week" in text
     assert f"last {p.recent_days // 7} weeks" in text and "as on the client report" in text
     assert "Weekly rate, smoothed trend" in text
+
+
+def test_phase_table_dates_wrap_only_at_their_dash() -> None:
+    """c002's phase table printed "21 Aug" / "2026"; a date stays whole."""
+    assert (
+        whole_dates("01 Aug 2026 – 21 Aug 2026") == "01\u00a0Aug\u00a02026 – 21\u00a0Aug\u00a02026"
+    )
+    pages = pdf_pages_text(render_client_report(sample_analysis("c002"), Config()))
+    table = next(p for p in pages if "Phases so far" in p)
+    assert [ln for ln in table.splitlines() if re.search(r"\b\d\d [A-Z][a-z]{2}\s*$", ln)] == []

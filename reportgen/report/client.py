@@ -34,7 +34,7 @@ from .plateau_view import plateau_flowables, plateau_view, showing_causes
 from .theme import MARGIN, Theme, page_size, theme_for
 from .units import Units
 from .viewmodel import ClientView, client_view
-from .wording import Wording, blocks, esc
+from .wording import Wording, blocks, esc, whole_dates
 
 # Chart box heights in mm (the width is the text width).
 CHART_HEIGHTS_MM = {"weight": 84, "energy": 76, "signals": 78, "bodycomp": 46, "projection": 56}
@@ -354,7 +354,7 @@ def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> 
     rows = [
         [
             _phase_name_cell(words, p["name"], p["kind"]),
-            esc(p["dates"]),
+            esc(whole_dates(p["dates"])),
             p["days"],
             esc(p["intake"]),
             esc(p["deficit"]),

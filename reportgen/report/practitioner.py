@@ -29,7 +29,7 @@ from .plateau_view import plateau_flowables
 from .theme import Theme, page_size, theme_for
 from .units import DASH, Units
 from .viewmodel import ClientView, client_view
-from .wording import Wording, blocks, esc
+from .wording import Wording, blocks, esc, whole_dates
 
 
 @dataclass
@@ -427,7 +427,7 @@ def render_practitioner_summary(
             [
                 esc(p["name"]),
                 words.text("phase_kind", p["kind"]),
-                esc(p["dates"]),
+                esc(whole_dates(p["dates"])),
                 p["days"],
                 esc(p["intake"]),
                 esc(p["deficit"]),

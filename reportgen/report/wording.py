@@ -109,6 +109,11 @@ def keep_units(text: str) -> str:
     return _NUMBER_UNIT.sub("\\1\u00a0\\2", text)
 
 
+def whole_dates(span: str) -> str:
+    """'01 Aug 2026 – 21 Aug 2026' wraps only at its dash, never inside a date."""
+    return " \u2013 ".join(part.replace(" ", "\u00a0") for part in span.split(" \u2013 "))
+
+
 def markup(value: str) -> Markup:
     return Markup(value)
 
