@@ -139,3 +139,20 @@ def test_phase_table_dates_wrap_only_at_their_dash() -> None:
         for day in (p.start, p.end):
             if day is not None and day <= a.as_of:
                 assert any(f"{day:%d %b %Y}" in ln for ln in lines), day
+
+
+def test_a_flat_recent_trend_and_the_phase_deficit_are_not_said_as_one() -> None:
+    """c015 holds steady over the last 4 weeks while the phase as a whole ran a deficit of
+    about 350 kcal/day; page 1 said both as if of now ("about 350 kcal/day below what you
+    burned" and "intake and expenditure are about even at the moment")."""
+    a = sample_analysis("c015")
+    ph = a.current_phase
+    assert ph is not None and ph.realised_deficit_kcal.value is not None
+    page1 = flat(pdf_pages_text(render_client_report(a, Config()))[0])
+    size = round(ph.realised_deficit_kcal.value / 10) * 10
+    assert (
+        f"Averaged over this phase (since {ph.start:%d %b %Y}), you ate about {size:,} "
+        "kcal/day below what you burned" in page1
+    )
+    assert "about even at the moment" not in page1
+    assert "holding steady" in page1 and "about even in recent weeks" in page1
