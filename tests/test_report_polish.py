@@ -151,7 +151,7 @@ def test_a_flat_recent_trend_and_the_phase_deficit_are_not_said_as_one() -> None
     page1 = flat(pdf_pages_text(render_client_report(a, Config()))[0])
     size = round(ph.realised_deficit_kcal.value / 10) * 10
     assert (
-        f"Averaged over this phase (since {ph.start:%d %b %Y}), you ate about {size:,} "
+        f"over this phase (since {ph.start:%d %b %Y}) you ate about {size:,} "
         "kcal/day below what you burned" in page1
     )
     assert "about even at the moment" not in page1

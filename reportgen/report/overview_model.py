@@ -31,3 +31,5 @@ class OverviewLine:
     attention: int  # sort key: higher means look at this client first
     progress_status: str | None = None  # the running deficit phase's (science.plateau)
     adaptation_zero_inside: bool = False  # its 80 % interval includes zero
+    adaptation_low_kcal: float | None = None  # that interval, to judge it as printed
+    adaptation_high_kcal: float | None = None

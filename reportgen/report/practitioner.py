@@ -141,7 +141,7 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
         basis = "of expected" if ph.adaptation_kcal.known else ""
         if ph.adaptation_data_kcal.known:
             k = ph.adaptation_kcal
-            zero_inside = k.low is not None and k.high is not None and k.low <= 0.0 <= k.high
+            zero_inside = u.zero_shown(k.low, k.high)  # as the range is printed
             basis = M["adapt_zero"] if zero_inside else M["adapt_combined"]
         label = "adaptation_combined" if ph.adaptation_data_kcal.known else "adaptation"
         rows.append((label, v + (f" ({pct})" if pct else ""), i, basis))

@@ -84,6 +84,19 @@ class Units:
         text = _num(value, 0, signed=signed)
         return f"{text} {self.energy_label}" if unit else text
 
+    def e_shown(self, kcal: float) -> float:
+        """The number :meth:`e` prints for ``kcal`` (in the display unit), for decisions
+        that must agree with the printed figure."""
+        if self.energy_unit == "kJ":
+            return _round_to(kcal * KJ_PER_KCAL, 50)
+        return _round_to(kcal, 10)
+
+    def zero_shown(self, low_kcal: float | None, high_kcal: float | None) -> bool:
+        """Whether an energy range as :meth:`e` prints it includes zero ("-140 to ±0" does)."""
+        if low_kcal is None or high_kcal is None:
+            return False
+        return self.e_shown(low_kcal) <= 0 <= self.e_shown(high_kcal)
+
     def pct(self, value: float | None, *, dp: int = 1, signed: bool = False) -> str:
         if value is None or not math.isfinite(value):
             return DASH

@@ -122,12 +122,17 @@ def _rate_band(pct: float | None, rapid: bool, progress: str | None = None) -> s
     return "target"
 
 
-def _adapt_state(est: Estimate, pct: Estimate, implausible: bool) -> str:
+def _adapt_state(u: Units, est: Estimate, pct: Estimate, implausible: bool) -> str:
     if not est.known or est.value is None:
         return "unknown"
     if implausible:
         return "implausible"
-    if est.low is not None and est.high is not None and est.low <= 0 <= est.high:
+    # decided on the printed range: a range printed as "-140 to ±0" includes no change
+    if (
+        est.low is not None
+        and est.high is not None
+        and u.e_shown(est.low) <= 0 <= u.e_shown(est.high)
+    ):
         return "within"
     if pct.value is not None and abs(pct.value) < ADAPT_MIN_PCT:
         return "within"
@@ -142,15 +147,18 @@ def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
     data = p.adaptation_data_kcal
     # the client's own data alone cannot tell the figure from no change: say that the
     # combined estimate leans on the typical value
-    out["adapt_data_weak"] = (
-        "yes"
-        if data.known
-        and data.low is not None
-        and data.high is not None
-        and data.low <= 0 <= data.high
-        else ""
-    )
+    weak = data.known and data.value is not None and u.zero_shown(data.low, data.high)
+    out["adapt_data_weak"] = "yes" if weak else ""
+    if weak and data.value is not None and data.low is not None and data.high is not None:
+        out["adapt_data"] = u.e(data.value, signed=True, unit=False)
+        out["adapt_data_range"] = (
+            f"{u.e(data.low, signed=True, unit=False)} to {u.e(data.high, signed=True)}"
+        )
     act = p.activity_change_kcal
+    # the typical value counts the measured change in steps (on the data's footing)
+    out["adapt_typical_steps"] = (
+        "yes" if act.known and act.value is not None and u.e_shown(act.value) != 0 else ""
+    )
     if act.known and act.value is not None:
         out["adapt_activity"] = (
             "fewer" if act.value < 0 else "more"
@@ -396,6 +404,9 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "adapt_activity": "",
         "adapt_logging": "",
         "adapt_data_weak": "",
+        "adapt_typical_steps": "",
+        "adapt_data": "",
+        "adapt_data_range": "",
         "adapt_large": False,
         "signals": [_signal_view(u, s) for s in a.signals],
         "notable_signals": [_signal_view(u, s) for s in a.signals if s.size in SIGNAL_NOTABLE],
@@ -417,7 +428,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         "projection_dir": "",
     }
     if ph is not None:
-        story["adapt_state"] = _adapt_state(ph.adaptation_kcal, ph.adaptation_pct, implausible)
+        story["adapt_state"] = _adapt_state(u, ph.adaptation_kcal, ph.adaptation_pct, implausible)
         if ph.adaptation_kcal.known and ph.adaptation_kcal.value is not None:
             story["adapt_abs"] = u.e(abs(ph.adaptation_kcal.value))
         adapt_pct = ph.adaptation_pct.value
