@@ -101,7 +101,7 @@ def test_range_printed_as_reaching_zero_is_not_called_a_fall() -> None:
     assert "not distinguishable from no adaptation" in text
     assert "Expenditure below expected" not in text
     text = " ".join(pdf_pages_text(render_practitioner_summary(b, Config()))).replace("\n", " ")
-    assert "−140 to ±0" in text and "not distinguishable from no adaptation" in text
+    assert "−140 to 0 kcal/day" in text and "not distinguishable from no adaptation" in text
 
 
 def test_sample_client_with_expenditure_below_expected() -> None:

@@ -10,6 +10,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from reportgen.config import Config, ReportSettings
+from reportgen.report.cautions import caution_values
 from reportgen.report.theme import theme_for
 from reportgen.report.units import Units
 from reportgen.report.wording import Wording, blocks, esc
@@ -64,9 +65,11 @@ def test_weight_text_round_trips_to_within_rounding(kg: float) -> None:
 
 def test_every_flag_the_analysis_can_raise_has_wording() -> None:
     words = Wording(Config(), "report/common.j2")
+    caution = caution_values(Units("kg", "kcal"))
     for code in FLAG_CODES:
         assert code in words.flag_titles, f"no title for flag {code}"
-        assert code in words.flag_advice, f"no advice for flag {code}"
+        advice = str(words.flag_advice_text(SimpleNamespace(code=code), caution))
+        assert advice and "Discuss this with your coach" not in advice, f"no advice for {code}"
     overview = Wording(Config(), "report/overview.j2")
     assert set(FLAG_CODES) <= set(overview.flag_short)
 

@@ -20,6 +20,7 @@ import datetime as dt
 import hashlib
 import io
 import os
+import re
 import tempfile
 from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
@@ -402,6 +403,27 @@ def _y_labels(ax: Axes, ticks: Sequence[float], labels: Sequence[str]) -> None:
     ax.yaxis.set_label_coords(-(widest + 5) / axes_pt, 0.5)
 
 
+def phase_label_lines(name: str, room: int, max_lines: int = 3) -> str:
+    """A phase name for its band: whole on one line, or broken at spaces and after hyphens
+    into at most ``max_lines`` lines of at most ``room`` characters; "" when it cannot be
+    printed whole (a name is never cut short: the phase table names every phase)."""
+    if room < 4 or not name:
+        return ""
+    if len(name) <= room:
+        return name
+    parts = re.findall(r"[^\s-]*-|[^\s-]+", name)
+    lines: list[str] = []
+    for part in parts:
+        if lines and len(lines[-1]) + (0 if lines[-1].endswith("-") else 1) + len(part) <= room:
+            joiner = "" if lines[-1].endswith("-") else " "
+            lines[-1] += joiner + part
+        else:
+            lines.append(part)
+    if len(lines) > max_lines or max(len(x) for x in lines) > room:
+        return ""
+    return "\n".join(lines)
+
+
 def _shade_phases(
     ax: Axes, phases: Sequence[PhaseResult], ctx: ChartContext, *, names: bool
 ) -> None:
@@ -421,8 +443,8 @@ def _shade_phases(
             # fit the name inside its band (about 0.6 em per character at 5.8 pt), 2 pt in
             day_pt = axes_pt / max(x1 - x0 + 1, 1)
             room = int(((b - a + 1) * day_pt - 4) / (5.8 * 0.6))
-            if room >= 4:
-                name = p.name if len(p.name) <= room else p.name[: room - 1] + "…"
+            name = phase_label_lines(p.name, room)
+            if name:
                 ax.text(
                     a - 0.5 + 2 / day_pt,
                     0.97,

@@ -34,7 +34,7 @@ from .plateau_view import PlateauView, plateau_flowables, plateau_view, showing_
 from .theme import MARGIN, Theme, page_size, theme_for
 from .units import Units
 from .viewmodel import ClientView, client_view
-from .wording import Wording, blocks, esc
+from .wording import Wording, blocks, esc, whole_dates
 
 # Chart box heights in mm (the width is the text width).
 CHART_HEIGHTS_MM = {"weight": 84, "energy": 76, "signals": 78, "bodycomp": 46, "projection": 56}
@@ -350,6 +350,12 @@ def _arrange(
     return story
 
 
+def _phase_name_cell(words: Wording, name: str, kind: str) -> str:
+    """The phase's name in bold, its kind below unless the name already says it."""
+    k = words.text("phase_kind", kind, name)
+    return f"<b>{esc(name)}</b>" + (f"<br/>{k}" if k else "")
+
+
 def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> Flowable:
     labels = words.labels
     cols = labels["phase_cols"]
@@ -357,8 +363,8 @@ def _phase_table(vm: ClientView, words: Wording, theme: Theme, width: float) -> 
     header = [esc(c) + (f"<br/>{esc(u)}" if u else "") for c, u in zip(cols, units, strict=True)]
     rows = [
         [
-            f"<b>{esc(p['name'])}</b><br/>{words.text('phase_kind', p['kind'])}",
-            esc(p["dates"]),
+            _phase_name_cell(words, p["name"], p["kind"]),
+            esc(whole_dates(p["dates"])),
             p["days"],
             esc(p["intake"]),
             esc(p["deficit"]),

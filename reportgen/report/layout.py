@@ -26,7 +26,7 @@ from . import theme as T
 from .para import Paragraph
 from .pdfbuild import ChartBox, ChartSlot, mark_heading
 from .theme import Theme
-from .wording import blocks, esc
+from .wording import blocks, esc, keep_units
 
 LOGO_MAX_H = 16 * mm
 LOGO_MAX_W = 48 * mm
@@ -187,7 +187,7 @@ def cards(
                 theme["figure" if known else "figure_missing"],
             ),
             Spacer(1, 1.0 * mm),
-            Paragraph(note, theme["detail"]),
+            Paragraph(keep_units(note), theme["detail"]),
         ]
         row.append(body)
         if len(row) == columns:

@@ -17,7 +17,7 @@ from reportlab.platypus import Flowable, Spacer, Table, TableStyle
 
 from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate, PlateauResult
-from reportgen.science.plateau import ZERO_Z
+from reportgen.science.plateau import ON_TRACK_SHARE, ZERO_Z
 
 from . import theme as T
 from .layout import data_table
@@ -100,6 +100,23 @@ class PlateauView:
     cautions: tuple[str, ...] = ()
     # the 95 % range that the "cannot tell yet" decision uses (science.plateau.ZERO_Z)
     rate_interval_decision: str = ""
+    # where the printed 80 % range of the rate lies against the planned rate: "inside",
+    # "slower" (the whole range is slower than the plan) or "faster"; "" without a plan
+    plan_side: str = ""
+    on_track_share: str = ""  # the share of the planned pace counted as on track, "75 %"
+
+
+def _plan_side(r: Estimate, planned: float | None) -> str:
+    """Where the rate's range, as printed, lies against the planned rate (negative = loss)."""
+    if planned is None or r.low is None or r.high is None:
+        return ""
+    # compared as printed (two decimals), so the words agree with the figures
+    lo, hi, plan = round(r.low, 2), round(r.high, 2), round(planned, 2)
+    if lo > plan:
+        return "slower"
+    if hi < plan:
+        return "faster"
+    return "inside"
 
 
 def plateau_view(a: ClientAnalysis, config: Config) -> PlateauView | None:
@@ -125,6 +142,8 @@ def plateau_view(a: ClientAnalysis, config: Config) -> PlateauView | None:
             else ""
         ),
         planned_source=p.planned_source,
+        plan_side=_plan_side(r, p.planned_rate_pct_per_week) if r.known else "",
+        on_track_share=u.pct(100.0 * ON_TRACK_SHARE, dp=0),
         energy_unit=u.energy_label,
         largest=p.largest,
         causes_reason=p.causes_reason,

@@ -29,7 +29,7 @@ from .plateau_view import plateau_flowables
 from .theme import Theme, page_size, theme_for
 from .units import DASH, Units
 from .viewmodel import ClientView, client_view
-from .wording import Wording, blocks, esc
+from .wording import Wording, blocks, esc, whole_dates
 
 
 @dataclass
@@ -56,7 +56,7 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
     M = words.labels["methods"]
     c = a.client
     ph = a.current_phase
-    kind_text = _plain(words.text("phase_kind", ph.kind)) if ph is not None else ""
+    title = _plain(words.text("phase_title", ph.name, ph.kind)) if ph is not None else ""
     ident = [
         ("client", c.name),
         ("id", c.client_id),
@@ -71,9 +71,9 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
         ("month", vm.month),
         (
             "phase",
-            f"{ph.name} ({kind_text}), week {a.week_of_phase}, from {u.d(ph.start)}"
+            f"{title}, week {a.week_of_phase}, from {u.d(ph.start)}"
             if ph is not None and a.week_of_phase
-            else (f"{ph.name} ({kind_text})" if ph is not None else DASH),
+            else (title if ph is not None else DASH),
         ),
     ]
     trend_method = DASH
@@ -84,9 +84,33 @@ def summary_view(a: ClientAnalysis, config: Config, words: Wording) -> SummaryVi
     rows: list[tuple[str, str, str, str]] = []
     rows.append(("weight", *_est(u, a.current_weight_kg, "w"), trend_method))
     rows.append(("change", *_est(u, a.month_change_kg, "w_change"), trend_method))
-    v, i = _est(u, a.weekly_rate_kg, "w_rate")
-    rows.append(("rate", v + ("/week" if a.weekly_rate_kg.known else ""), i, "trend slope"))
-    rows.append(("rate_pct", *_est(u, a.weekly_rate_pct, "pct_change"), "trend slope ÷ trend"))
+
+    def _rate(e: Estimate) -> tuple[str, str]:
+        v, i = _est(u, e, "w_rate")
+        return v, (f"{i}/week" if e.known and i else i)
+
+    # the rate the progress status (and, unless the rapid-loss flag is up, the client's
+    # page 1) uses, beside the smoothed slope, so the two are never read as one figure
+    p = a.plateau
+    if p is not None and p.recent_rate_kg_per_week.known and p.recent_rate_pct_per_week.known:
+        v, i = _rate(p.recent_rate_kg_per_week)
+        pct = u.pct(p.recent_rate_pct_per_week.value, dp=2, signed=True)
+        where = (
+            "on the client report and in the status"
+            if vm.story["rate_span_weeks"]
+            else "in the status"
+        )
+        span = f"last {p.recent_days // 7} weeks ({pct}); as {where}"
+        rows.append(("rate_recent", f"{v}/week", i, span))
+        v, i = _rate(a.weekly_rate_kg)
+        pct = u.pct(a.weekly_rate_pct.value, dp=2, signed=True)
+        rows.append(
+            ("rate", v + ("/week" if a.weekly_rate_kg.known else ""), i, f"trend slope ({pct})")
+        )
+    else:
+        v, i = _rate(a.weekly_rate_kg)
+        rows.append(("rate", v + ("/week" if a.weekly_rate_kg.known else ""), i, "trend slope"))
+        rows.append(("rate_pct", *_est(u, a.weekly_rate_pct, "pct_change"), "trend slope ÷ trend"))
     rows.append(
         ("intake", u.e(a.month_mean_intake_kcal), "", f"{vm.figures['intake'].detail or 0} days")
     )
@@ -403,7 +427,7 @@ def render_practitioner_summary(
             [
                 esc(p["name"]),
                 words.text("phase_kind", p["kind"]),
-                esc(p["dates"]),
+                esc(whole_dates(p["dates"])),
                 p["days"],
                 esc(p["intake"]),
                 esc(p["deficit"]),

@@ -125,6 +125,8 @@ class Units:
         if est.low is None or est.high is None:
             return ""
         lo, hi = self.fmt(est.low, kind, unit=False, **kw), self.fmt(est.high, kind, **kw)
+        # a bound that rounds to zero is "0", not the "±0" of a change (−140 to 0 kcal/day)
+        lo, hi = lo.removeprefix("±"), hi.removeprefix("±")
         return (
             f"{lo} to {hi}" if lo.startswith(MINUS) or hi.startswith(MINUS) else f"{lo}{DASH}{hi}"
         )

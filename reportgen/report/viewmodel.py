@@ -19,6 +19,7 @@ from reportgen.config import Config
 from reportgen.results import ClientAnalysis, Estimate, PhaseResult
 from reportgen.science.diet_break import diet_break_due
 
+from .cautions import caution_values
 from .outlook import outlook
 from .theme import missing_glyphs
 from .units import Units
@@ -73,6 +74,8 @@ class ClientView:
     flags: list[dict[str, Any]]
     sections: tuple[str, ...]
     extra: dict[str, Any] = field(default_factory=dict)
+    # the safety thresholds in the configured units (reportgen.report.cautions)
+    caution: dict[str, str] = field(default_factory=dict)
 
 
 def practice_view(config: Config) -> dict[str, str]:
@@ -511,6 +514,7 @@ def client_view(a: ClientAnalysis, config: Config) -> ClientView:
         flags=[_flag_view(u, fl) for fl in a.flags],
         sections=config.report.sections,
         extra=extra,
+        caution=caution_values(u),
     )
 
 

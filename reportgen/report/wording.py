@@ -16,6 +16,7 @@ Templates write a tiny line-based markup, one block per paragraph:
 
 from __future__ import annotations
 
+import re
 from collections.abc import Callable
 from functools import cache
 from pathlib import Path
@@ -100,6 +101,19 @@ def esc(value: object) -> str:
     return str(escape(str(value)))
 
 
+_NUMBER_UNIT = re.compile(r"(\d) (%|kg/week|lb/week|kg|lb|kcal/day|kJ/day|points)(?![\w/])")
+
+
+def keep_units(text: str) -> str:
+    """A number and its unit on one line: '30.9 %' never wraps as '30.9' / '%'."""
+    return _NUMBER_UNIT.sub("\\1\u00a0\\2", text)
+
+
+def whole_dates(span: str) -> str:
+    """'01 Aug 2026 – 21 Aug 2026' wraps only at its dash, never inside a date."""
+    return " \u2013 ".join(part.replace(" ", "\u00a0") for part in span.split(" \u2013 "))
+
+
 def markup(value: str) -> Markup:
     return Markup(value)
 
@@ -115,7 +129,7 @@ def blocks(
     def flush() -> None:
         nonlocal buf, style
         if buf:
-            out.append(Paragraph(" ".join(buf), theme[style]))
+            out.append(Paragraph(keep_units(" ".join(buf)), theme[style]))
         buf = []
         style = "body"
 
@@ -135,7 +149,7 @@ def blocks(
         else:
             if line.startswith("- "):
                 flush()
-                out.append(Paragraph(line[2:], theme["bullet"], bulletText="\u2022"))
+                out.append(Paragraph(keep_units(line[2:]), theme["bullet"], bulletText="\u2022"))
             elif line.startswith("> ") and not buf:
                 style = "lead"
                 buf.append(line[2:])
