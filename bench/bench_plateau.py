@@ -20,7 +20,11 @@ Printed, against the targets of the plateau work:
   (target >= 80 %);
 * false-stall rate: clients truly losing 0.5 %/week or more called ``stalled``
   (target <= 5 %);
-* per scenario, and the mean absolute error and 80 % coverage of each part.
+* per scenario, and the mean absolute error and 80 % coverage of each part;
+* for reading the labels: cause clients whose noise-free scale (tissue plus the
+  generator's glycogen, water and food mass) rose by 0.1 %/week or more over the
+  recent window, or fell at three quarters or more of their rate without the cause
+  (water from unlogged high days can do either; a perfect trend would read that).
 
 Besides the six scenarios of the status target, ``--fast-losers`` clients of the
 ``fast-loss`` scenario (a deeper cut, on plan) are added so that enough clients lose
@@ -290,6 +294,19 @@ def main(argv: list[str] | None = None) -> int:
         f"(statuses {dict(Counter(o.status for o in doubtful))}); "
         f"accuracy without them {_pct(rest_ok, len(rest))}"
     )
+    # where water moves the scale: the noise-free scale (tissue + glycogen/water + food
+    # mass) over the recent window rose by the gaining margin, or fell at three quarters or
+    # more of the same client's rate without the cause (for reading, not a target)
+    cause_rows = [o for o in six if o.sim.cause is not None]
+    rose = [o for o in cause_rows if o.sim.true_scale_rate_pct >= 0.1]
+    fell = [
+        o for o in cause_rows if o.sim.true_scale_rate_pct <= 0.75 * o.sim.rate_without_cause_pct
+    ]
+    for what, rows in (("rose >= 0.1 %/week", rose), ("fell >= 3/4 of no-cause rate", fell)):
+        print(
+            f"  'stalled' labels where the noise-free scale {what}: {len(rows)} "
+            f"(scenario: status {dict(Counter(f'{o.sim.scenario}: {o.status}' for o in rows))})"
+        )
 
     print("\nparts (effect on the realised deficit, kcal/day): mean abs error, 80 % coverage")
     err: dict[str, list[float]] = defaultdict(list)

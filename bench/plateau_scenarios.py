@@ -112,6 +112,9 @@ class PlateauSim:
     # the same client's recent tissue rate without the cause (the first pass)
     rate_without_cause_pct: float = math.nan
     true_deficit_change_kcal: float = math.nan
+    # the noise-free scale (tissue + glycogen/water + food mass) over the recent window:
+    # least-squares slope, % of body weight/week (what a perfect trend would read)
+    true_scale_rate_pct: float = math.nan
 
 
 def _person(rng: np.random.Generator) -> Person:
@@ -347,6 +350,7 @@ def simulate_plateau(
         parts["intake"] = -(1 - p.tef) * d_lm
         parts["logging"] = -(1 - p.tef) * (d_true_intake - d_lm)
     tissue_rate = (run.tissue[n - 1] - run.tissue[r0]) / (n - 1 - r0) * 7
+    scale_slope = float(np.polyfit(np.arange(n - r0, dtype=float), run.weight[r0:], 1)[0])
     rate0 = (first.tissue[n - 1] - first.tissue[r0]) / (n - 1 - r0) * 7
     status = "on-track"
     accepted: tuple[str, ...] = ("on-track",)
@@ -377,4 +381,5 @@ def simulate_plateau(
         true_recent_rate_pct=100 * tissue_rate / float(run.weight[r0:].mean()),
         rate_without_cause_pct=100 * rate0 / float(first.weight[r0:].mean()),
         true_deficit_change_kcal=mean(run.energy_gap, r0, n) - mean(run.energy_gap, e0, e1),
+        true_scale_rate_pct=100 * 7 * scale_slope / float(run.weight[r0:].mean()),
     )
