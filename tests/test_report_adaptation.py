@@ -38,6 +38,8 @@ def test_client_report_names_the_three_causes() -> None:
     assert "slower metabolism" in text and "90 kcal" in text  # typical for the deficit
     assert "fewer steps on average this phase, worth about 60 kcal" in text
     assert "about 210 kcal" in text and "more eaten than logged" in text
+    # the logging check spans the phase (the progress section's spans its recent weeks)
+    assert "over the phase your weight suggests about 210 kcal/day more eaten than logged" in text
 
 
 def test_practitioner_summary_shows_data_typical_and_combined() -> None:

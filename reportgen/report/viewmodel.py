@@ -170,14 +170,15 @@ def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
     if gap.known and gap.value is not None and gap.low is not None and gap.high is not None:
         if gap.high < 0:
             out["adapt_logging"] = (
-                f"your weight suggests about {u.e(abs(gap.value))} more eaten than logged"
+                "over the phase your weight suggests about "
+                f"{u.e(abs(gap.value))} more eaten than logged"
             )
         elif gap.low > 0:
             out["adapt_logging"] = (
-                f"your weight suggests about {u.e(gap.value)} less eaten than logged"
+                f"over the phase your weight suggests about {u.e(gap.value)} less eaten than logged"
             )
         else:
-            out["adapt_logging"] = "logged intake is in line with what your weight suggests"
+            out["adapt_logging"] = "over the phase, logged intake is in line with your weight"
     return out
 
 
