@@ -54,6 +54,7 @@ SUMMARY_COLUMNS: tuple[str, ...] = (
     "activity_change_recent_kcal",
     "metabolic_change_kcal",
     "logging_completeness_change_pct",
+    "progress_reason",
 )
 # Filled on the row of the running deficit phase only (the plateau assessment's phase).
 PLATEAU_COLUMNS = SUMMARY_COLUMNS[SUMMARY_COLUMNS.index("progress_status") :]
@@ -202,7 +203,19 @@ def plateau_cells(plateau: PlateauResult) -> SummaryRow:
         "logging_completeness_change_pct": format_number(
             plateau.completeness_change_pct, DECIMALS["logging_completeness_change_pct"]
         ),
+        "progress_reason": progress_reason(plateau),
     }
+
+
+def progress_reason(plateau: PlateauResult) -> str:
+    """Why the status is what it is, where the status alone does not say: the reason code
+    of ``too-early`` / ``too-few-data``, the water reasons of ``likely-water`` joined by
+    "+", else ''."""
+    if plateau.status in ("too-early", "too-few-data"):
+        return plateau.reason or ""
+    if plateau.status == "likely-water":
+        return "+".join(plateau.water_reasons)
+    return ""
 
 
 def summary_rows(analysis: ClientAnalysis) -> list[SummaryRow]:

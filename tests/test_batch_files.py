@@ -47,12 +47,18 @@ PLATEAU_ISSUE_COLUMNS = (
     "progress_status, recent_rate_pct_per_week, intake_drift_kcal, body_size_change_kcal, "
     "activity_change_recent_kcal, metabolic_change_kcal, logging_completeness_change_pct"
 )
+# added after the issue's columns: why a status is what it is
+EXTRA_COLUMNS = "progress_reason"
 
 
 def test_columns_match_the_issue_exactly() -> None:
-    assert ", ".join(SUMMARY_COLUMNS) == ISSUE_COLUMNS + ", " + PLATEAU_ISSUE_COLUMNS
+    assert (
+        ", ".join(SUMMARY_COLUMNS)
+        == ISSUE_COLUMNS + ", " + PLATEAU_ISSUE_COLUMNS + ", " + EXTRA_COLUMNS
+    )
     numeric = set(SUMMARY_COLUMNS) - {
         "progress_status",
+        "progress_reason",
         "client_id",
         "phase",
         "start",
@@ -280,6 +286,7 @@ def test_known_values_fixed_decimals_and_csv_round_trip() -> None:
             "activity_change_recent_kcal": "",
             "metabolic_change_kcal": "",
             "logging_completeness_change_pct": "",
+            "progress_reason": "",
         }
     ]
 
@@ -328,10 +335,25 @@ def test_plateau_cells_fixed_decimals_and_blanks() -> None:
         "activity_change_recent_kcal": "",  # steps not logged: blank, never zero
         "metabolic_change_kcal": "-120",  # -120.5 -> even
         "logging_completeness_change_pct": "-21.4",
+        "progress_reason": "",  # "stalled" says it all
     }
-    # without a cause split the drift stays blank too
-    bare = plateau_cells(dataclasses.replace(pl, parts=(), status="too-early"))
+    # without a cause split the drift stays blank too; the reason says why it is too early
+    bare = plateau_cells(
+        dataclasses.replace(pl, parts=(), status="too-early", reason="phase-under-3-weeks")
+    )
     assert bare["intake_drift_kcal"] == "" and bare["progress_status"] == "too-early"
+    assert bare["progress_reason"] == "phase-under-3-weeks"
+    wide = plateau_cells(dataclasses.replace(pl, status="too-few-data", reason="interval-too-wide"))
+    assert wide["progress_reason"] == "interval-too-wide"
+    water = plateau_cells(
+        dataclasses.replace(
+            pl,
+            status="likely-water",
+            underlying="stalled",
+            water_reasons=("high-intake-days", "break-before"),
+        )
+    )
+    assert water["progress_reason"] == "high-intake-days+break-before"
 
 
 def test_rows_sorted_by_client_then_start_and_header_only_when_empty() -> None:
