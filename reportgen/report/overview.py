@@ -70,12 +70,6 @@ def make_overview_line(analysis: ClientAnalysis) -> OverviewLine:
         flags=flags,
         attention=attention,
         progress_status=progress,
-        adaptation_zero_inside=bool(
-            ph is not None
-            and ph.adaptation_kcal.low is not None
-            and ph.adaptation_kcal.high is not None
-            and ph.adaptation_kcal.low <= 0.0 <= ph.adaptation_kcal.high
-        ),
         adaptation_low_kcal=ph.adaptation_kcal.low if ph else None,
         adaptation_high_kcal=ph.adaptation_kcal.high if ph else None,
     )
@@ -132,9 +126,7 @@ def render_overview(
             week=str(ln.week_of_phase) if ln.week_of_phase else "",
         )
         adapt = u.e(ln.adaptation_kcal, signed=True, unit=False)
-        if ln.adaptation_zero_inside or u.zero_shown(
-            ln.adaptation_low_kcal, ln.adaptation_high_kcal
-        ):
+        if u.zero_shown(ln.adaptation_low_kcal, ln.adaptation_high_kcal):
             adapt += " (≈0)"
         elif ln.adaptation_pct is not None:
             adapt += f" ({u.pct(ln.adaptation_pct, dp=0, signed=True)})"

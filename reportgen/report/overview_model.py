@@ -30,6 +30,6 @@ class OverviewLine:
     flags: tuple[tuple[str, str], ...]  # (code, severity)
     attention: int  # sort key: higher means look at this client first
     progress_status: str | None = None  # the running deficit phase's (science.plateau)
-    adaptation_zero_inside: bool = False  # its 80 % interval includes zero
-    adaptation_low_kcal: float | None = None  # that interval, to judge it as printed
+    # its 80 % interval, to judge as printed whether it includes zero
+    adaptation_low_kcal: float | None = None
     adaptation_high_kcal: float | None = None

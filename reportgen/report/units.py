@@ -77,11 +77,7 @@ class Units:
         """Energy rounded to 10 kcal or 50 kJ: daily estimates are not better than that."""
         if kcal is None or not math.isfinite(kcal):
             return DASH
-        if self.energy_unit == "kJ":
-            value = _round_to(kcal * KJ_PER_KCAL, 50)
-        else:
-            value = _round_to(kcal, 10)
-        text = _num(value, 0, signed=signed)
+        text = _num(self.e_shown(kcal), 0, signed=signed)
         return f"{text} {self.energy_label}" if unit else text
 
     def e_shown(self, kcal: float) -> float:

@@ -149,11 +149,9 @@ def _adapt_causes(u: Units, p: PhaseResult) -> dict[str, str]:
     # combined estimate leans on the typical value
     weak = data.known and data.value is not None and u.zero_shown(data.low, data.high)
     out["adapt_data_weak"] = "yes" if weak else ""
-    if weak and data.value is not None and data.low is not None and data.high is not None:
+    if weak:
         out["adapt_data"] = u.e(data.value, signed=True, unit=False)
-        out["adapt_data_range"] = (
-            f"{u.e(data.low, signed=True, unit=False)} to {u.e(data.high, signed=True)}"
-        )
+        out["adapt_data_range"] = u.interval(data, "e_change")
     act = p.activity_change_kcal
     # the typical value counts the measured change in steps (on the data's footing)
     out["adapt_typical_steps"] = (
